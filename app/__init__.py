@@ -1,0 +1,1 @@
+"""Tiltyard desktop app and command line (PySide6 + pyqtgraph over the engine)."""

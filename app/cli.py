@@ -1,0 +1,234 @@
+"""The ``tiltyard`` command line.
+
+Exit status: 0 done, 2 bad input or usage (one line on stderr naming the file,
+field and reason), 1 an internal fault. ``--verbose`` shows the traceback of a
+fault for a problem report.
+"""
+
+from __future__ import annotations
+
+import argparse
+import datetime as _dt
+import json
+import sys
+import traceback
+
+from tiltyard import __version__
+
+EXIT_OK, EXIT_FAULT, EXIT_INPUT = 0, 1, 2
+
+
+class UserError(Exception):
+    """Bad input: reported in one line, exit status 2."""
+
+
+class _Parser(argparse.ArgumentParser):
+    def error(self, message):  # one line, exit 2
+        sys.stderr.write(f"{self.prog}: {message} (see '{self.prog} --help')\n")
+        raise SystemExit(EXIT_INPUT)
+
+
+def _date(text: str) -> _dt.date:
+    try:
+        return _dt.date.fromisoformat(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"--date {text!r}: expected YYYY-MM-DD") from None
+
+
+def build_parser() -> argparse.ArgumentParser:
+    from tiltyard.engine.plane import TRANSPOSITION_MODELS
+    from tiltyard.engine.sky import CLEARSKY_MODELS, SOLAR_CONSTANT_W_M2
+    from tiltyard.engine.timegrid import REFERENCE_YEAR, STEPS_MIN
+
+    p = _Parser(prog="tiltyard",
+                description="Solar site assessment: sun path, horizon, irradiance on any plane. "
+                            "Figures are preliminary feasibility estimates, not a design.",
+                epilog="SITE is a site file (.json) or the name of a bundled demo site "
+                       "(see 'tiltyard sites'). With no subcommand the desktop app opens.")
+    p.add_argument("--version", action="version", version=f"tiltyard {__version__}")
+    p.add_argument("--verbose", action="store_true",
+                   help="show the full traceback of an internal fault (for problem reports)")
+    sub = p.add_subparsers(dest="command", parser_class=_Parser, metavar="COMMAND")
+
+    s = sub.add_parser("sites", help="list the bundled demo sites")
+    s.add_argument("--json", action="store_true", help="write JSON to stdout")
+
+    s = sub.add_parser("sun", help="sunrise, sunset, solar noon and the sun's path on a date",
+                       description="Sun events and path for one local date. Times are local "
+                                   "clock time with the zone's daylight saving.")
+    s.add_argument("site", metavar="SITE")
+    s.add_argument("--date", type=_date, required=True, help="local date, YYYY-MM-DD")
+    s.add_argument("--step", type=float, default=10.0, metavar="MIN",
+                   help="path sampling step in minutes (default 10)")
+    s.add_argument("--json", action="store_true", help="write one JSON document to stdout")
+
+    s = sub.add_parser("irradiance", help="a year of irradiation on one plane, by month",
+                       description="Monthly and annual irradiation on a plane of given tilt and "
+                                   "azimuth (degrees clockwise from true north, south = 180).")
+    s.add_argument("site", metavar="SITE")
+    s.add_argument("--tilt", type=float, required=True, metavar="DEG",
+                   help="plane tilt from horizontal, 0-90")
+    s.add_argument("--azimuth", type=float, required=True, metavar="DEG",
+                   help="plane azimuth clockwise from north, 0-360 (south = 180)")
+    s.add_argument("--model", choices=TRANSPOSITION_MODELS, default="perez",
+                   help="sky diffuse model (default perez)")
+    s.add_argument("--sky", default="clear", metavar="clear",
+                   help="sky basis: clear (clear-sky, an upper bound)")
+    s.add_argument("--clearsky", choices=CLEARSKY_MODELS, default="ineichen",
+                   help="clear-sky model (default ineichen)")
+    s.add_argument("--solar-constant", type=float, default=SOLAR_CONSTANT_W_M2, metavar="W_M2",
+                   help=f"solar constant in W/m2 (default {SOLAR_CONSTANT_W_M2:g})")
+    s.add_argument("--year", type=int, default=REFERENCE_YEAR,
+                   help=f"year (default {REFERENCE_YEAR}, a non-leap reference year)")
+    s.add_argument("--step", type=int, default=60, choices=STEPS_MIN, metavar="MIN",
+                   help="interval length in minutes: " + ", ".join(map(str, STEPS_MIN)))
+    s.add_argument("--json", action="store_true", help="write one JSON document to stdout")
+    return p
+
+
+def _load_site(arg: str):
+    from tiltyard.engine.site import resolve_site
+    return resolve_site(arg)
+
+
+def _fmt_time(ts) -> str:
+    return "-" if ts is None else ts.strftime("%H:%M:%S")
+
+
+def cmd_sites(args) -> int:
+    from tiltyard.engine.site import demo_site_names, load_demo
+
+    rows = []
+    for name in demo_site_names():
+        s = load_demo(name)
+        rows.append({"name": name, "title": s.name, "latitude_deg": s.latitude_deg,
+                     "longitude_deg": s.longitude_deg, "elevation_m": s.elevation_m,
+                     "timezone": s.timezone})
+    if args.json:
+        print(json.dumps({"sites": rows}, indent=2, ensure_ascii=False))
+        return EXIT_OK
+    print(f"{'name':20} {'lat deg':>8} {'lon deg':>8} {'elev m':>7}  {'time zone':20} title")
+    for r in rows:
+        print(f"{r['name']:20} {r['latitude_deg']:8.2f} {r['longitude_deg']:8.2f} "
+              f"{r['elevation_m']:7.0f}  {r['timezone']:20} {r['title']}")
+    return EXIT_OK
+
+
+def cmd_sun(args) -> int:
+    from tiltyard.engine.jobs import sun_day
+
+    if not 0.5 <= args.step <= 120:
+        raise UserError(f"--step = {args.step:g}: must be between 0.5 and 120 minutes")
+    site = _load_site(args.site)
+    day = sun_day(site, args.date, step_min=args.step)
+    if args.json:
+        print(json.dumps({"sun": day.to_json_dict()}, indent=2, ensure_ascii=False))
+        return EXIT_OK
+    print(f"Sun at {site.name}  ({site.latitude_deg:.4f}, {site.longitude_deg:.4f}, "
+          f"{site.elevation_m:.0f} m)")
+    print(f"Date {args.date.isoformat()}, local clock time, zone {site.timezone}")
+    if day.polar == "day":
+        print("Polar day: the sun stays above the horizon all day.")
+    elif day.polar == "night":
+        print("Polar night: the sun stays below the horizon all day.")
+    print(f"  sunrise           {_fmt_time(day.sunrise)}")
+    print(f"  solar noon        {_fmt_time(day.solar_noon)}")
+    print(f"  sunset            {_fmt_time(day.sunset)}")
+    print(f"  day length        {day.day_length_h:.2f} h")
+    print(f"  max elevation     {day.max_elevation_deg:.2f} deg")
+    print("  (sunrise/sunset: sun centre at -0.8333 deg, NREL SPA)")
+    if len(day.path):
+        print()
+        print(f"  {'time':8} {'azimuth deg':>11} {'elevation deg':>13}  site horizon")
+        for t, a, e, v in zip(day.path["time"], day.path["azimuth_deg"],
+                              day.path["elevation_deg"], day.path["visible"], strict=True):
+            if t.minute == 0 or len(day.path) <= 30:
+                print(f"  {t.strftime('%H:%M'):8} {a:11.1f} {e:13.1f}  "
+                      f"{'sun visible' if v else 'behind horizon'}")
+    return EXIT_OK
+
+
+def cmd_irradiance(args) -> int:
+    from tiltyard.engine.jobs import CAUTION, IrradianceOptions, irradiance_year
+
+    if args.sky != "clear":
+        raise UserError(f"--sky = {args.sky!r}: this version supports only 'clear'")
+    try:
+        opts = IrradianceOptions(model=args.model, sky=args.sky, clearsky_model=args.clearsky,
+                                 solar_constant_w_m2=args.solar_constant, year=args.year,
+                                 step_min=args.step)
+    except ValueError as err:
+        raise UserError(str(err)) from None
+    if not 0 <= args.tilt <= 90:
+        raise UserError(f"--tilt = {args.tilt:g}: must be between 0 and 90 deg")
+    if not 0 <= args.azimuth <= 360:
+        raise UserError(f"--azimuth = {args.azimuth:g}: must be between 0 and 360 deg "
+                        "(clockwise from north)")
+    site = _load_site(args.site)
+    res = irradiance_year(site, args.tilt, args.azimuth, opts)
+    if args.json:
+        print(json.dumps({"irradiance": res.to_json_dict()}, indent=2, ensure_ascii=False))
+        return EXIT_OK
+    print(f"Irradiation on a plane at {site.name}")
+    print(f"  tilt {res.surface_tilt:g} deg, azimuth {res.surface_azimuth:g} deg "
+          "(clockwise from north)")
+    print(f"  sky: clear ({opts.clearsky_model}), transposition: {opts.model}, "
+          f"solar constant {opts.solar_constant_w_m2:g} W/m2, year {opts.year}, "
+          f"{opts.step_min}-min intervals")
+    print(f"  Linke turbidity: {res.turbidity_source}")
+    print(f"  sky-view factor with horizon {res.shading.sky_view_factor:.3f} "
+          f"(open {res.shading.sky_view_factor_open:.3f})")
+    print()
+    cols = [("H0 hor", "extraterrestrial_horizontal_kwh_m2"), ("GHI", "ghi_kwh_m2"),
+            ("POA", "poa_kwh_m2"), ("beam", "poa_beam_kwh_m2"),
+            ("sky dif", "poa_sky_diffuse_kwh_m2"), ("ground", "poa_ground_kwh_m2"),
+            ("hor loss", "horizon_loss_kwh_m2")]
+    print("  month  " + " ".join(f"{c:>9}" for c, _ in cols) + "   (kWh/m2)")
+    names = ["Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"]
+    for m in range(1, 13):
+        row = res.monthly.loc[m]
+        print(f"  {names[m - 1]:5}  " + " ".join(f"{row[k]:9.1f}" for _, k in cols))
+    print("  year   " + " ".join(f"{res.annual[k]:9.1f}" for _, k in cols))
+    print()
+    print(f"  Horizon loss {res.horizon_loss_pct:.1f} % of the open-horizon plane irradiation: "
+          f"beam {res.annual['horizon_loss_beam_kwh_m2']:.1f}, circumsolar "
+          f"{res.annual['horizon_loss_circumsolar_kwh_m2']:.1f}, isotropic sky "
+          f"{res.annual['horizon_loss_isotropic_kwh_m2']:.1f}, horizon band "
+          f"{res.annual['horizon_loss_horizon_band_kwh_m2']:.1f} kWh/m2")
+    for note in res.notes:
+        print(f"  Note: {note}.")
+    print(f"  {CAUTION}")
+    return EXIT_OK
+
+
+COMMANDS = {"sites": cmd_sites, "sun": cmd_sun, "irradiance": cmd_irradiance}
+
+
+def main(argv: list[str] | None = None) -> int:
+    """Run the command line; returns the exit status."""
+    argv = sys.argv[1:] if argv is None else argv
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    from tiltyard.engine.site import SiteError
+
+    try:
+        if args.command is None:
+            sys.stderr.write("tiltyard: the desktop app is not part of this version yet; "
+                             "use a subcommand (see 'tiltyard --help')\n")
+            return EXIT_INPUT
+        return COMMANDS[args.command](args)
+    except (UserError, SiteError) as err:
+        sys.stderr.write(f"tiltyard: {err}\n")
+        return EXIT_INPUT
+    except BrokenPipeError:
+        return EXIT_OK
+    except Exception as err:  # an internal fault: one line, traceback on request
+        if args.verbose:
+            traceback.print_exc()
+        sys.stderr.write(f"tiltyard: internal fault: {type(err).__name__}: {err} "
+                         "(run again with --verbose and report it)\n")
+        return EXIT_FAULT
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())

@@ -1,0 +1,1 @@
+"""Tiltyard computation engine: pure numpy/pandas/pvlib, never Qt."""

@@ -1,0 +1,309 @@
+"""Horizon profiles, obstacles, sun visibility and sky-view factors.
+
+One stored convention: azimuth in degrees clockwise from true north, horizon
+elevation in degrees above the horizontal (negative below it, for sites on high
+ground). The site's effective horizon is the upper envelope of its measured
+profile and its obstacles.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from .site import HorizonProfile, Obstacle, Site
+
+#: Width of the Perez horizon-brightening band above the horizon, degrees.
+#: Perez, R. et al. (1987), Solar Energy 39(3), 221-231: a 6.5° band (from memory).
+HORIZON_BAND_DEG = 6.5
+
+
+def profile_elevation_deg(profile: HorizonProfile, azimuth_deg) -> np.ndarray:
+    """Horizon elevation of a measured profile, interpolated with wrap-around.
+
+    Linear interpolation in azimuth between the measured points, continuing
+    across north (the last point joins the first). An empty profile is 0°
+    everywhere; a single point is a constant horizon.
+
+    Parameters
+    ----------
+    profile : HorizonProfile
+        Measured points.
+    azimuth_deg : array_like
+        Directions, degrees clockwise from north (any real values).
+
+    Returns
+    -------
+    numpy.ndarray
+        Elevation in degrees.
+
+    References
+    ----------
+    Linear interpolation on a circle, common practice, no source.
+    """
+    az = np.mod(np.asarray(azimuth_deg, dtype=float), 360.0)
+    if profile.is_empty:
+        return np.zeros_like(az)
+    xp = np.asarray(profile.azimuth_deg, dtype=float)
+    fp = np.asarray(profile.elevation_deg, dtype=float)
+    if len(xp) == 1:
+        return np.full_like(az, fp[0])
+    return np.interp(az, xp, fp, period=360.0)
+
+
+def obstacle_elevation_deg(obstacles, azimuth_deg) -> np.ndarray:
+    """Horizon elevation due to obstacles measured on site.
+
+    Each obstacle raises the horizon to ``atan(height_m / distance_m)`` across
+    its angular span ``bearing_deg +/- width_deg / 2``; outside every span the
+    value is -90° (no obstruction).
+
+    Parameters
+    ----------
+    obstacles : sequence of Obstacle
+        Obstacles with bearing, width, distance and height above the panels.
+    azimuth_deg : array_like
+        Directions, degrees clockwise from north.
+
+    Returns
+    -------
+    numpy.ndarray
+        Elevation in degrees.
+
+    References
+    ----------
+    Plane trigonometry: elevation angle of a top at height h over distance d is
+    ``atan(h / d)`` (common practice, no source). The obstacle is treated as
+    equally high across its width, a conservative simplification.
+    """
+    az = np.mod(np.asarray(azimuth_deg, dtype=float), 360.0)
+    out = np.full_like(az, -90.0)
+    for ob in obstacles:
+        half = ob.width_deg / 2.0
+        delta = np.abs((az - ob.bearing_deg + 180.0) % 360.0 - 180.0)
+        out = np.where(delta <= half, np.maximum(out, ob.elevation_deg), out)
+    return out
+
+
+def site_horizon_deg(site: Site, azimuth_deg) -> np.ndarray:
+    """The site's effective horizon: profile and obstacles merged (upper envelope).
+
+    Parameters
+    ----------
+    site : Site
+        Site with ``horizon`` and ``obstacles``.
+    azimuth_deg : array_like
+        Directions, degrees clockwise from north.
+
+    Returns
+    -------
+    numpy.ndarray
+        Elevation in degrees.
+
+    References
+    ----------
+    Upper envelope of obstructions, common practice, no source.
+    """
+    return np.maximum(profile_elevation_deg(site.horizon, azimuth_deg),
+                      obstacle_elevation_deg(site.obstacles, azimuth_deg))
+
+
+def merged_profile(site: Site, step_deg: float = 1.0) -> HorizonProfile:
+    """The effective horizon sampled every ``step_deg`` as a profile.
+
+    Obstacle edges are sampled too, so a narrow obstacle is never lost between
+    samples. Useful for display and for exporting the horizon.
+    """
+    az = np.arange(0.0, 360.0, step_deg)
+    edges = []
+    for ob in site.obstacles:
+        half = ob.width_deg / 2.0
+        edges += [(ob.bearing_deg - half) % 360.0, (ob.bearing_deg + half) % 360.0]
+    az = np.unique(np.round(np.concatenate([az, np.asarray(edges, dtype=float)]), 6) % 360.0)
+    el = site_horizon_deg(site, az)
+    return HorizonProfile(tuple(az.tolist()), tuple(np.round(el, 4).tolist()))
+
+
+def sun_visible(site: Site, azimuth_deg, apparent_elevation_deg) -> np.ndarray:
+    """True where the sun's centre is above the site's effective horizon.
+
+    References
+    ----------
+    Common practice, no source: the sun is taken as a point at its centre.
+    With a horizon below the horizontal the sun can be visible at negative
+    elevations.
+    """
+    el = np.asarray(apparent_elevation_deg, dtype=float)
+    return el > site_horizon_deg(site, azimuth_deg)
+
+
+def _azimuth_samples(n_az: int) -> np.ndarray:
+    return (np.arange(n_az) + 0.5) * (360.0 / n_az)
+
+
+def sky_view_factor(surface_tilt, surface_azimuth, horizon_elevation_deg, n_az: int = 1440):
+    """Isotropic sky-view factor of a plane with a horizon.
+
+    The fraction of isotropic sky radiance a plane receives compared with a
+    horizontal plane under a full, unobstructed sky:
+
+    ``F = (1/pi) * integral over visible sky of max(cos(theta), 0) dOmega``
+
+    where ``theta`` is the angle between the sky direction and the plane's
+    normal and the visible sky lies above the horizon elevation ``h(A)`` at each
+    azimuth ``A`` (which may be negative). With ``h = 0`` everywhere this is
+    the classical ``(1 + cos(tilt)) / 2``. The elevation integral is done in
+    closed form per azimuth, the azimuth integral by the midpoint rule on
+    ``n_az`` samples.
+
+    Parameters
+    ----------
+    surface_tilt : array_like
+        Plane tilt from horizontal, degrees (broadcasts with surface_azimuth).
+    surface_azimuth : array_like
+        Plane azimuth, degrees clockwise from north.
+    horizon_elevation_deg : callable or array_like
+        ``h(A)`` as a function of azimuth (degrees), or its values at the
+        ``n_az`` midpoint azimuths ``(k + 0.5) * 360 / n_az``.
+    n_az : int, default 1440
+        Number of azimuth samples (0.25° apart).
+
+    Returns
+    -------
+    numpy.ndarray
+        Sky-view factor in [0, 1], shaped like the broadcast tilt/azimuth.
+
+    References
+    ----------
+    Liu, B. Y. H. & Jordan, R. C. (1963). The long-term average performance of
+    flat-plate solar energy collectors. Solar Energy 7(2), 53-74 (isotropic
+    sky, view factor ``(1 + cos beta) / 2``). The obstructed form integrates
+    the same cosine-weighted radiance over the visible part of the sky
+    (Duffie & Beckman 2013, sec. 2.15; common practice).
+    """
+    az = _azimuth_samples(n_az)
+    if callable(horizon_elevation_deg):
+        h_deg = np.asarray(horizon_elevation_deg(az), dtype=float)
+    else:
+        h_deg = np.broadcast_to(np.asarray(horizon_elevation_deg, dtype=float), az.shape)
+    h = np.radians(np.clip(h_deg, -90.0, 90.0))
+    beta = np.radians(np.asarray(surface_tilt, dtype=float))
+    gamma = np.radians(np.asarray(surface_azimuth, dtype=float))
+    beta, gamma = np.broadcast_arrays(beta, gamma)
+    shape = beta.shape
+    beta = beta.reshape(-1, 1)
+    gamma = gamma.reshape(-1, 1)
+    a = np.cos(beta)                                    # weight of sin(e)
+    b = np.sin(beta) * np.cos(np.radians(az)[None, :] - gamma)   # weight of cos(e)
+    # integrand (a sin e + b cos e) cos e is positive for e > -atan2(b, a)
+    e_pos = -np.arctan2(b, a)
+    lo = np.maximum(h[None, :], e_pos)
+    hi = np.pi / 2.0
+
+    def prim(e):
+        return a * np.sin(e) ** 2 / 2.0 + b * (e / 2.0 + np.sin(2.0 * e) / 4.0)
+
+    g = np.where(lo < hi, prim(hi) - prim(np.minimum(lo, hi)), 0.0)
+    f = g.sum(axis=1) * (2.0 * np.pi / n_az) / np.pi
+    return np.clip(f, 0.0, 1.0).reshape(shape)
+
+
+def horizon_band_fraction(surface_tilt, surface_azimuth, horizon_elevation_deg,
+                          n_az: int = 1440, band_deg: float = HORIZON_BAND_DEG):
+    """Visible share of the horizon-brightening band, as the plane sees it.
+
+    At each azimuth the band from 0° to ``band_deg`` is partly hidden by the
+    horizon; the hidden share is weighted by how squarely the plane faces that
+    azimuth (``max(sin(tilt) cos(A - azimuth), 0)``, the plane's view of a
+    horizontal direction). A horizontal plane gets 1 (the Perez horizon term
+    is zero there anyway).
+
+    Parameters
+    ----------
+    surface_tilt, surface_azimuth : array_like
+        Plane orientation, degrees (azimuth clockwise from north).
+    horizon_elevation_deg : callable or array_like
+        Horizon as in :func:`sky_view_factor`.
+    n_az : int
+        Azimuth samples.
+    band_deg : float
+        Band height, degrees.
+
+    Returns
+    -------
+    numpy.ndarray
+        Fraction in [0, 1].
+
+    References
+    ----------
+    Perez, R., Seals, R., Ineichen, P., Stewart, R. & Menicucci, D. (1987). A
+    new simplified version of the Perez diffuse irradiance model for tilted
+    surfaces. Solar Energy 39(3), 221-231 (the horizon band). Treating an
+    obstruction as hiding the band it covers is common practice, no source.
+    """
+    az = _azimuth_samples(n_az)
+    if callable(horizon_elevation_deg):
+        h_deg = np.asarray(horizon_elevation_deg(az), dtype=float)
+    else:
+        h_deg = np.broadcast_to(np.asarray(horizon_elevation_deg, dtype=float), az.shape)
+    vis = np.clip((band_deg - np.maximum(h_deg, 0.0)) / band_deg, 0.0, 1.0)
+    beta = np.radians(np.asarray(surface_tilt, dtype=float))
+    gamma = np.radians(np.asarray(surface_azimuth, dtype=float))
+    beta, gamma = np.broadcast_arrays(beta, gamma)
+    shape = beta.shape
+    w = np.maximum(np.sin(beta.reshape(-1, 1)) * np.cos(np.radians(az)[None, :]
+                                                         - gamma.reshape(-1, 1)), 0.0)
+    tot = w.sum(axis=1)
+    frac = np.where(tot > 0, (w * vis[None, :]).sum(axis=1) / np.where(tot > 0, tot, 1.0), 1.0)
+    return frac.reshape(shape)
+
+
+@dataclass(frozen=True)
+class HorizonShading:
+    """Horizon effects for one plane, ready to apply to irradiance components.
+
+    Attributes
+    ----------
+    sky_view_factor : float
+        Isotropic sky-view factor with the horizon.
+    sky_view_factor_open : float
+        The same for an open horizon, ``(1 + cos tilt) / 2``.
+    horizon_band_fraction : float
+        Visible share of the horizon-brightening band.
+    """
+
+    sky_view_factor: float
+    sky_view_factor_open: float
+    horizon_band_fraction: float
+
+    @property
+    def isotropic_ratio(self) -> float:
+        """Factor applied to the isotropic sky diffuse (may exceed 1 for a
+        horizon below the horizontal)."""
+        if self.sky_view_factor_open <= 0:
+            return 1.0
+        return self.sky_view_factor / self.sky_view_factor_open
+
+
+def plane_shading(site: Site, surface_tilt: float, surface_azimuth: float) -> HorizonShading:
+    """Horizon effects of ``site``'s effective horizon on one plane.
+
+    References
+    ----------
+    See :func:`sky_view_factor` and :func:`horizon_band_fraction`.
+    """
+    def hz(a):
+        return site_horizon_deg(site, a)
+
+    svf = float(sky_view_factor(surface_tilt, surface_azimuth, hz))
+    open_svf = (1.0 + np.cos(np.radians(surface_tilt))) / 2.0
+    band = float(horizon_band_fraction(surface_tilt, surface_azimuth, hz))
+    return HorizonShading(svf, float(open_svf), band)
+
+
+__all__ = [
+    "HORIZON_BAND_DEG", "HorizonShading", "Obstacle", "horizon_band_fraction", "merged_profile",
+    "obstacle_elevation_deg", "plane_shading", "profile_elevation_deg", "site_horizon_deg",
+    "sky_view_factor", "sun_visible",
+]

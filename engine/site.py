@@ -1,0 +1,507 @@
+"""The site model: one place, its horizon, obstacles and candidate planes.
+
+A :class:`Site` is a frozen dataclass validated on construction. Every
+validation failure raises :class:`SiteError`, which names the field, the value
+and the allowed range, so the app can show the message next to the field and
+the command line can print it as one line.
+
+Site files are JSON (``"format": "tiltyard-site"``); see DESIGN.md. Saving is
+atomic: the new content is written to a temporary file in the same folder,
+flushed and fsynced, then moved over the old file with :func:`os.replace`.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import numbers
+import os
+import tempfile
+from dataclasses import dataclass, field, replace
+from importlib import resources
+from pathlib import Path
+from typing import Any
+from zoneinfo import ZoneInfo, ZoneInfoNotFoundError, available_timezones
+
+FORMAT_NAME = "tiltyard-site"
+FORMAT_VERSION = 1
+
+#: Name of the demo site the quick start and the app open by default.
+DEFAULT_DEMO = "larkmoor-dairy"
+
+
+class SiteError(ValueError):
+    """A site value or site file is not acceptable.
+
+    Attributes
+    ----------
+    field : str
+        Dotted path of the offending field (``"obstacles[1].distance_m"``).
+    value : object
+        The value that was refused.
+    reason : str
+        What is wrong and what is allowed.
+    file : str or None
+        The file being read, if any.
+    """
+
+    def __init__(self, field: str, value: Any, reason: str, file: str | None = None):
+        self.field = field
+        self.value = value
+        self.reason = reason
+        self.file = file
+        super().__init__(self._text())
+
+    def _text(self) -> str:
+        where = f"{self.file}: " if self.file else ""
+        shown = _short_repr(self.value)
+        return f"{where}{self.field} = {shown}: {self.reason}"
+
+    def in_file(self, file: str | os.PathLike) -> SiteError:
+        """Return the same error attributed to ``file``."""
+        return SiteError(self.field, self.value, self.reason, str(file))
+
+
+def _short_repr(value: Any) -> str:
+    text = repr(value)
+    return text if len(text) <= 60 else text[:57] + "..."
+
+
+def _number(field_name: str, value: Any, lo: float | None = None, hi: float | None = None,
+            unit: str = "") -> float:
+    """Validate one finite number within [lo, hi] and return it as float."""
+    if isinstance(value, bool) or not isinstance(value, numbers.Real):
+        raise SiteError(field_name, value, "must be a number")
+    value_f = float(value)
+    if not math.isfinite(value_f):
+        raise SiteError(field_name, value, "must be a finite number")
+    rng = _range_text(lo, hi, unit)
+    if lo is not None and value_f < lo:
+        raise SiteError(field_name, value, f"must be {rng}")
+    if hi is not None and value_f > hi:
+        raise SiteError(field_name, value, f"must be {rng}")
+    return value_f
+
+
+def _range_text(lo, hi, unit):
+    u = f" {unit}" if unit else ""
+    if lo is not None and hi is not None:
+        return f"between {lo:g} and {hi:g}{u}"
+    if lo is not None:
+        return f"at least {lo:g}{u}"
+    return f"at most {hi:g}{u}"
+
+
+def _twelve(field_name: str, values: Any, lo: float, hi: float, unit: str = "") -> tuple:
+    if not isinstance(values, (list, tuple)) or len(values) != 12:
+        raise SiteError(field_name, values, "must be a list of 12 monthly values, January first")
+    return tuple(_number(f"{field_name}[{i}]", v, lo, hi, unit) for i, v in enumerate(values))
+
+
+@dataclass(frozen=True)
+class Obstacle:
+    """A nearby obstacle measured on site (tree, building, mast).
+
+    ``height_m`` is the obstacle's height above the panels, ``distance_m`` the
+    horizontal distance from the panels, ``bearing_deg`` the direction of its
+    centre (clockwise from true north) and ``width_deg`` its angular width as
+    seen from the panels.
+    """
+
+    label: str
+    bearing_deg: float
+    width_deg: float
+    distance_m: float
+    height_m: float
+
+    def __post_init__(self):
+        object.__setattr__(self, "bearing_deg",
+                           _number("bearing_deg", self.bearing_deg, 0, 360, "deg") % 360.0)
+        object.__setattr__(self, "width_deg", _number("width_deg", self.width_deg, 0.1, 180, "deg"))
+        object.__setattr__(self, "distance_m",
+                           _number("distance_m", self.distance_m, 0.1, 100000, "m"))
+        object.__setattr__(self, "height_m", _number("height_m", self.height_m, 0, 10000, "m"))
+
+    @classmethod
+    def from_bearing_range(cls, label: str, start_deg: float, end_deg: float,
+                           distance_m: float, height_m: float) -> Obstacle:
+        """Build an obstacle from the bearings of its left and right edges.
+
+        The obstacle spans clockwise from ``start_deg`` to ``end_deg`` (so
+        350 -> 10 is a 20° obstacle across north).
+        """
+        start = _number("bearing_start_deg", start_deg, 0, 360, "deg")
+        end = _number("bearing_end_deg", end_deg, 0, 360, "deg")
+        width = (end - start) % 360.0
+        if width == 0:
+            raise SiteError("bearing_end_deg", end_deg, "must differ from the start bearing")
+        return cls(label, (start + width / 2.0) % 360.0, width, distance_m, height_m)
+
+    @property
+    def elevation_deg(self) -> float:
+        """Elevation angle of the obstacle's top seen from the panels, degrees."""
+        return math.degrees(math.atan2(self.height_m, self.distance_m))
+
+
+@dataclass(frozen=True)
+class Plane:
+    """A candidate or existing panel plane."""
+
+    label: str
+    tilt_deg: float
+    azimuth_deg: float
+
+    def __post_init__(self):
+        object.__setattr__(self, "tilt_deg", _number("tilt_deg", self.tilt_deg, 0, 90, "deg"))
+        object.__setattr__(self, "azimuth_deg",
+                           _number("azimuth_deg", self.azimuth_deg, 0, 360, "deg") % 360.0)
+
+
+@dataclass(frozen=True)
+class HorizonProfile:
+    """Horizon elevation against azimuth, azimuth clockwise from true north.
+
+    Azimuths are stored sorted in [0, 360); interpolation wraps around north.
+    Elevations may be negative (a site on high ground sees below the
+    horizontal). An empty profile is a flat horizon at 0°.
+    """
+
+    azimuth_deg: tuple = ()
+    elevation_deg: tuple = ()
+
+    def __post_init__(self):
+        az, el = self.azimuth_deg, self.elevation_deg
+        if not isinstance(az, (list, tuple)) or not isinstance(el, (list, tuple)):
+            raise SiteError("horizon", (az, el), "azimuth_deg and elevation_deg must be lists")
+        if len(az) != len(el):
+            raise SiteError("horizon.elevation_deg", el,
+                            f"must have as many values as azimuth_deg ({len(az)})")
+        azs = [_number(f"horizon.azimuth_deg[{i}]", a, 0, 360, "deg") % 360.0
+               for i, a in enumerate(az)]
+        els = [_number(f"horizon.elevation_deg[{i}]", e, -30, 90, "deg") for i, e in enumerate(el)]
+        if len(set(azs)) != len(azs):
+            raise SiteError("horizon.azimuth_deg", az, "azimuths must be distinct (0 and 360 are "
+                            "the same direction)")
+        pairs = sorted(zip(azs, els, strict=True))
+        object.__setattr__(self, "azimuth_deg", tuple(p[0] for p in pairs))
+        object.__setattr__(self, "elevation_deg", tuple(p[1] for p in pairs))
+
+    @property
+    def is_empty(self) -> bool:
+        return len(self.azimuth_deg) == 0
+
+
+@dataclass(frozen=True)
+class Site:
+    """One site: location, time zone, ground, horizon, obstacles and planes.
+
+    Construction validates every field and raises :class:`SiteError` naming
+    the field, the value and the allowed range.
+    """
+
+    name: str
+    latitude_deg: float
+    longitude_deg: float
+    elevation_m: float = 0.0
+    timezone: str = "UTC"
+    albedo: float | tuple = 0.2
+    horizon: HorizonProfile = field(default_factory=HorizonProfile)
+    obstacles: tuple = ()
+    planes: tuple = ()
+    linke_turbidity: tuple | None = None
+    monthly_ghi_kwh_m2_day: tuple | None = None
+    notes: str = ""
+
+    def __post_init__(self):
+        if not isinstance(self.name, str) or not self.name.strip():
+            raise SiteError("name", self.name, "must be a non-empty text")
+        if len(self.name) > 200:
+            raise SiteError("name", self.name, "must be at most 200 characters")
+        object.__setattr__(self, "latitude_deg",
+                           _number("latitude_deg", self.latitude_deg, -90, 90, "deg"))
+        object.__setattr__(self, "longitude_deg",
+                           _number("longitude_deg", self.longitude_deg, -180, 180, "deg"))
+        object.__setattr__(self, "elevation_m",
+                           _number("elevation_m", self.elevation_m, -500, 9000, "m"))
+        if not isinstance(self.timezone, str) or not self.timezone:
+            raise SiteError("timezone", self.timezone, "must be an IANA time zone name")
+        try:
+            ZoneInfo(self.timezone)
+        except (ZoneInfoNotFoundError, ValueError):
+            raise SiteError("timezone", self.timezone,
+                            "is not a known IANA time zone (for example 'Europe/London')") from None
+        if isinstance(self.albedo, (list, tuple)):
+            object.__setattr__(self, "albedo", _twelve("albedo", self.albedo, 0, 1))
+        else:
+            object.__setattr__(self, "albedo", _number("albedo", self.albedo, 0, 1))
+        if isinstance(self.horizon, dict):
+            object.__setattr__(self, "horizon", HorizonProfile(
+                tuple(self.horizon.get("azimuth_deg", ())),
+                tuple(self.horizon.get("elevation_deg", ()))))
+        elif not isinstance(self.horizon, HorizonProfile):
+            raise SiteError("horizon", self.horizon, "must be a horizon profile")
+        object.__setattr__(self, "obstacles", tuple(self.obstacles))
+        object.__setattr__(self, "planes", tuple(self.planes))
+        for i, ob in enumerate(self.obstacles):
+            if not isinstance(ob, Obstacle):
+                raise SiteError(f"obstacles[{i}]", ob, "must be an obstacle")
+        for i, pl in enumerate(self.planes):
+            if not isinstance(pl, Plane):
+                raise SiteError(f"planes[{i}]", pl, "must be a plane")
+        if self.linke_turbidity is not None:
+            object.__setattr__(self, "linke_turbidity",
+                               _twelve("linke_turbidity", self.linke_turbidity, 1, 10))
+        if self.monthly_ghi_kwh_m2_day is not None:
+            object.__setattr__(self, "monthly_ghi_kwh_m2_day",
+                               _twelve("monthly_ghi_kwh_m2_day", self.monthly_ghi_kwh_m2_day,
+                                       0, 12, "kWh/m2/day"))
+        if not isinstance(self.notes, str):
+            raise SiteError("notes", self.notes, "must be text")
+
+    # -- conveniences -------------------------------------------------------
+    @property
+    def hemisphere(self) -> str:
+        """``"north"`` or ``"south"`` (the equator counts as north)."""
+        return "south" if self.latitude_deg < 0 else "north"
+
+    @property
+    def equator_azimuth_deg(self) -> float:
+        """Azimuth of the direction facing the equator: 180 in the north, 0 in the south."""
+        return 0.0 if self.latitude_deg < 0 else 180.0
+
+    def albedo_by_month(self) -> tuple:
+        """Albedo for each month, January first (12 values)."""
+        if isinstance(self.albedo, tuple):
+            return self.albedo
+        return (self.albedo,) * 12
+
+    def with_changes(self, **changes) -> Site:
+        """Return a validated copy with some fields changed."""
+        return replace(self, **changes)
+
+
+# -- JSON mapping -----------------------------------------------------------
+
+def _obstacle_from_dict(d: dict, i: int) -> Obstacle:
+    prefix = f"obstacles[{i}]"
+    if not isinstance(d, dict):
+        raise SiteError(prefix, d, "must be an object")
+    try:
+        label = str(d.get("label", f"obstacle {i + 1}"))
+        for key in ("distance_m", "height_m"):
+            if key not in d:
+                raise SiteError(f"{prefix}.{key}", None, "is required")
+        if "bearing_start_deg" in d or "bearing_end_deg" in d:
+            return Obstacle.from_bearing_range(label, d.get("bearing_start_deg"),
+                                               d.get("bearing_end_deg"), d["distance_m"],
+                                               d["height_m"])
+        for key in ("bearing_deg", "width_deg"):
+            if key not in d:
+                raise SiteError(f"{prefix}.{key}", None,
+                                "is required (or give bearing_start_deg and bearing_end_deg)")
+        return Obstacle(label, d["bearing_deg"], d["width_deg"], d["distance_m"], d["height_m"])
+    except SiteError as err:
+        if err.field.startswith(prefix):
+            raise
+        raise SiteError(f"{prefix}.{err.field}", err.value, err.reason) from None
+
+
+def _plane_from_dict(d: dict, i: int) -> Plane:
+    prefix = f"planes[{i}]"
+    if not isinstance(d, dict):
+        raise SiteError(prefix, d, "must be an object")
+    for key in ("tilt_deg", "azimuth_deg"):
+        if key not in d:
+            raise SiteError(f"{prefix}.{key}", None, "is required")
+    try:
+        return Plane(str(d.get("label", f"plane {i + 1}")), d["tilt_deg"], d["azimuth_deg"])
+    except SiteError as err:
+        raise SiteError(f"{prefix}.{err.field}", err.value, err.reason) from None
+
+
+def site_from_dict(d: dict) -> Site:
+    """Build a :class:`Site` from the JSON structure of a site file.
+
+    Raises
+    ------
+    SiteError
+        If the format is not a Tiltyard site, the version is newer than this
+        program understands, or any field is invalid.
+    """
+    if not isinstance(d, dict):
+        raise SiteError("(top level)", type(d).__name__, "must be a JSON object")
+    fmt = d.get("format")
+    if fmt != FORMAT_NAME:
+        raise SiteError("format", fmt, f"must be {FORMAT_NAME!r}; this is not a Tiltyard site file")
+    version = d.get("format_version")
+    if isinstance(version, bool) or not isinstance(version, int) or version < 1:
+        raise SiteError("format_version", version, "must be a whole number, 1 or more")
+    if version > FORMAT_VERSION:
+        raise SiteError("format_version", version,
+                        f"is newer than this Tiltyard understands (up to {FORMAT_VERSION}); "
+                        "update Tiltyard to open this file")
+    for key in ("name", "latitude_deg", "longitude_deg"):
+        if key not in d:
+            raise SiteError(key, None, "is required")
+    horizon = d.get("horizon") or {}
+    if not isinstance(horizon, dict):
+        raise SiteError("horizon", horizon, "must be an object with azimuth_deg and elevation_deg")
+    obstacles = d.get("obstacles") or []
+    planes = d.get("planes") or []
+    if not isinstance(obstacles, list):
+        raise SiteError("obstacles", obstacles, "must be a list")
+    if not isinstance(planes, list):
+        raise SiteError("planes", planes, "must be a list")
+    albedo = d.get("albedo", 0.2)
+    if isinstance(albedo, list):
+        albedo = tuple(albedo)
+    lt = d.get("linke_turbidity")
+    ghi = d.get("monthly_ghi_kwh_m2_day")
+    return Site(
+        name=d["name"],
+        latitude_deg=d["latitude_deg"],
+        longitude_deg=d["longitude_deg"],
+        elevation_m=d.get("elevation_m", 0.0),
+        timezone=d.get("timezone", "UTC"),
+        albedo=albedo,
+        horizon=HorizonProfile(tuple(horizon.get("azimuth_deg", ()) or ()),
+                               tuple(horizon.get("elevation_deg", ()) or ())),
+        obstacles=tuple(_obstacle_from_dict(o, i) for i, o in enumerate(obstacles)),
+        planes=tuple(_plane_from_dict(p, i) for i, p in enumerate(planes)),
+        linke_turbidity=tuple(lt) if isinstance(lt, list) else lt,
+        monthly_ghi_kwh_m2_day=tuple(ghi) if isinstance(ghi, list) else ghi,
+        notes=d.get("notes", "") or "",
+    )
+
+
+def site_to_dict(site: Site) -> dict:
+    """The JSON structure of a site file for ``site`` (current format version)."""
+    d = {
+        "format": FORMAT_NAME,
+        "format_version": FORMAT_VERSION,
+        "name": site.name,
+        "latitude_deg": site.latitude_deg,
+        "longitude_deg": site.longitude_deg,
+        "elevation_m": site.elevation_m,
+        "timezone": site.timezone,
+        "albedo": list(site.albedo) if isinstance(site.albedo, tuple) else site.albedo,
+        "horizon": {"azimuth_deg": list(site.horizon.azimuth_deg),
+                    "elevation_deg": list(site.horizon.elevation_deg)},
+        "obstacles": [{"label": o.label, "bearing_deg": o.bearing_deg, "width_deg": o.width_deg,
+                       "distance_m": o.distance_m, "height_m": o.height_m}
+                      for o in site.obstacles],
+        "planes": [{"label": p.label, "tilt_deg": p.tilt_deg, "azimuth_deg": p.azimuth_deg}
+                   for p in site.planes],
+        "linke_turbidity": list(site.linke_turbidity) if site.linke_turbidity else None,
+        "notes": site.notes,
+    }
+    if site.monthly_ghi_kwh_m2_day is not None:
+        d["monthly_ghi_kwh_m2_day"] = list(site.monthly_ghi_kwh_m2_day)
+    return d
+
+
+def load_site(path: str | os.PathLike) -> Site:
+    """Read a site file.
+
+    Raises
+    ------
+    SiteError
+        With ``file`` set, naming the field and the reason (also for unreadable
+        files and malformed JSON, where the field is the line and column).
+    """
+    path = Path(path)
+    try:
+        text = path.read_text(encoding="utf-8")
+    except FileNotFoundError:
+        raise SiteError("(file)", str(path), "does not exist", str(path)) from None
+    except UnicodeDecodeError as err:
+        raise SiteError("(file)", str(path), f"is not UTF-8 text ({err.reason})", str(path)) from None
+    except OSError as err:
+        raise SiteError("(file)", str(path), f"cannot be read ({err.strerror})", str(path)) from None
+    try:
+        data = json.loads(text)
+    except json.JSONDecodeError as err:
+        raise SiteError(f"line {err.lineno}, column {err.colno}", text.splitlines()[err.lineno - 1]
+                        .strip()[:40] if text.splitlines() else "",
+                        f"is not valid JSON ({err.msg})", str(path)) from None
+    try:
+        return site_from_dict(data)
+    except SiteError as err:
+        raise err.in_file(path) from None
+
+
+def atomic_write_text(path: str | os.PathLike, text: str) -> None:
+    """Write ``text`` to ``path`` atomically.
+
+    The text goes to a temporary file in the same folder, is flushed and
+    fsynced, then replaces ``path`` with :func:`os.replace`. A crash at any
+    point leaves either the old file or the new one, never a truncated file.
+    """
+    write_bytes_atomically(path, text.encode("utf-8"))
+
+
+def write_bytes_atomically(path: str | os.PathLike, data: bytes) -> None:
+    """Write ``data`` to ``path`` atomically (temp file, fsync, rename)."""
+    path = Path(path)
+    folder = path.parent if str(path.parent) else Path(".")
+    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=folder)
+    try:
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(data)
+            fh.flush()
+            os.fsync(fh.fileno())
+        os.replace(tmp, path)
+    except BaseException:
+        try:
+            os.unlink(tmp)
+        except FileNotFoundError:
+            pass
+        raise
+    try:  # make the rename itself durable where the platform allows it
+        dir_fd = os.open(folder, os.O_RDONLY)
+    except OSError:
+        return
+    try:
+        os.fsync(dir_fd)
+    except OSError:
+        pass
+    finally:
+        os.close(dir_fd)
+
+
+def save_site(site: Site, path: str | os.PathLike) -> None:
+    """Save ``site`` as a site file, atomically."""
+    atomic_write_text(path, json.dumps(site_to_dict(site), indent=2, ensure_ascii=False) + "\n")
+
+
+# -- demo sites -------------------------------------------------------------
+
+def demo_site_names() -> list[str]:
+    """Names of the bundled demo sites (file names without ``.json``)."""
+    files = resources.files("tiltyard.sample_sites")
+    return sorted(p.name[:-5] for p in files.iterdir() if p.name.endswith(".json"))
+
+
+def load_demo(name: str = DEFAULT_DEMO) -> Site:
+    """Load a bundled demo site by name."""
+    if name not in demo_site_names():
+        raise SiteError("site", name, "is not a bundled demo site; choose one of "
+                        + ", ".join(demo_site_names()))
+    res = resources.files("tiltyard.sample_sites") / f"{name}.json"
+    try:
+        return site_from_dict(json.loads(res.read_text(encoding="utf-8")))
+    except SiteError as err:
+        raise err.in_file(f"demo:{name}") from None
+
+
+def resolve_site(arg: str) -> Site:
+    """A site from a file path or the name of a bundled demo site."""
+    p = Path(arg)
+    if p.suffix.lower() == ".json" or p.exists() or os.sep in arg:
+        return load_site(p)
+    return load_demo(arg)
+
+
+def known_timezones() -> set[str]:
+    """All IANA zone names known to this installation."""
+    return available_timezones()

@@ -1,0 +1,281 @@
+"""Extraterrestrial and clear-sky irradiance.
+
+Extraterrestrial normal irradiance is the solar constant scaled by the inverse
+square of the SPA Earth-Sun distance. Clear-sky models are those of pvlib:
+Ineichen-Perez (with the Linke turbidity climatology pvlib ships, or monthly
+values from the site file), simplified Solis, and Haurwitz. Haurwitz gives
+global horizontal irradiance only; where beam and diffuse are needed it is
+split with the Erbs et al. (1982) correlation, and outputs say so.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import pandas as pd
+import pvlib
+
+from .site import Site
+from .sun import daily_declination_eot, earth_sun_distance_au, site_pressure_pa
+from .timegrid import REFERENCE_YEAR
+
+#: Default solar constant, W/m². Kopp, G. & Lean, J. L. (2011). A new, lower
+#: value of total solar irradiance: Evidence and climate significance.
+#: Geophys. Res. Lett. 38, L01706 (1360.8 +/- 0.5 W/m², rounded).
+SOLAR_CONSTANT_W_M2 = 1361.0
+
+CLEARSKY_MODELS = ("ineichen", "simplified_solis", "haurwitz")
+
+CLEARSKY_REFERENCES = {
+    "ineichen": "Ineichen, P. & Perez, R. (2002). A new airmass independent formulation for "
+                "the Linke turbidity coefficient. Solar Energy 73(3), 151-157.",
+    "simplified_solis": "Ineichen, P. (2008). A broadband simplified version of the Solis "
+                        "clear sky model. Solar Energy 82(8), 758-762.",
+    "haurwitz": "Haurwitz, B. (1945). Insolation in relation to cloudiness and cloud density. "
+                "J. Meteorology 2, 154-166 (GHI only; beam and diffuse split by Erbs, Klein & "
+                "Duffie 1982, Solar Energy 28(4), 293-302).",
+}
+
+
+def extraterrestrial_normal(times: pd.DatetimeIndex,
+                            solar_constant_w_m2: float = SOLAR_CONSTANT_W_M2) -> np.ndarray:
+    """Extraterrestrial irradiance on a plane normal to the sun, W/m².
+
+    Parameters
+    ----------
+    times : pandas.DatetimeIndex
+        Timezone-aware instants.
+    solar_constant_w_m2 : float, default 1361
+        Mean total solar irradiance at 1 AU.
+
+    Returns
+    -------
+    numpy.ndarray
+        ``solar_constant / R^2`` with ``R`` the Earth-Sun distance in AU.
+
+    References
+    ----------
+    Inverse-square law; distance by Reda & Andreas (2008), NREL/TP-560-34302,
+    sec. 3.2.8. Solar constant: Kopp & Lean (2011), GRL 38, L01706.
+    """
+    if not 1000.0 <= solar_constant_w_m2 <= 1500.0:
+        raise ValueError(f"solar_constant_w_m2 = {solar_constant_w_m2!r}: must be between "
+                         "1000 and 1500 W/m2")
+    r = earth_sun_distance_au(times)
+    return solar_constant_w_m2 / r**2
+
+
+def extraterrestrial_on_plane(dni_extra, zenith, aoi) -> np.ndarray:
+    """Extraterrestrial irradiance on a plane, W/m².
+
+    ``G_on max(cos(aoi), 0)`` while the sun is above the geometric horizon
+    (``zenith < 90``). For a horizontal plane ``aoi == zenith``.
+
+    Parameters
+    ----------
+    dni_extra : array_like
+        Extraterrestrial normal irradiance, W/m².
+    zenith : array_like
+        Geometric (unrefracted) solar zenith, degrees.
+    aoi : array_like
+        Angle of incidence on the plane, degrees.
+
+    References
+    ----------
+    Duffie & Beckman (2013), Solar Engineering of Thermal Processes, eq. 1.10.1.
+    """
+    g = np.asarray(dni_extra, dtype=float) * np.maximum(np.cos(np.radians(aoi)), 0.0)
+    return np.where(np.asarray(zenith) < 90.0, g, 0.0)
+
+
+def daily_extraterrestrial_kwh_m2(site: Site, year: int = REFERENCE_YEAR,
+                                  surface_tilt: float = 0.0, surface_azimuth: float | None = None,
+                                  solar_constant_w_m2: float = SOLAR_CONSTANT_W_M2,
+                                  n_hour_angle: int = 2880) -> pd.Series:
+    """Daily extraterrestrial irradiation on any plane, by integration over the day.
+
+    For each day the declination and Earth-Sun distance are taken from SPA at
+    local solar noon; the product ``G_on max(cos(theta), 0)`` with the sun above
+    the horizontal is integrated over the hour angle on ``n_hour_angle``
+    midpoint samples (0.125° of hour angle, 30 s of time, by default). This is
+    the numerical path needed for tilted planes (whose sunrise on the plane
+    differs from the horizon's) and for polar day, where the sunset-hour-angle
+    closed form does not apply to tilted surfaces.
+
+    Parameters
+    ----------
+    site : Site
+        Latitude (and longitude for local noon).
+    year : int
+        Calendar year.
+    surface_tilt : float, default 0
+        Plane tilt, degrees.
+    surface_azimuth : float, optional
+        Plane azimuth clockwise from north; defaults to the equator direction.
+    solar_constant_w_m2 : float, default 1361
+        Solar constant.
+    n_hour_angle : int, default 2880
+        Samples per day.
+
+    Returns
+    -------
+    pandas.Series
+        Irradiation in kWh/m² per day, indexed by date.
+
+    References
+    ----------
+    Duffie & Beckman (2013), eqs. 1.6.2 (angle of incidence from declination,
+    latitude, slope, surface azimuth and hour angle) and 1.10.1; declination
+    and distance from Reda & Andreas (2008), NREL/TP-560-34302.
+    """
+    if surface_azimuth is None:
+        surface_azimuth = site.equator_azimuth_deg
+    de = daily_declination_eot(site, year)
+    days = pd.to_datetime(pd.Index(de.index))
+    noon = (days + pd.Timedelta(hours=12)
+            - pd.Timedelta(hours=site.longitude_deg / 15.0)).tz_localize("UTC")
+    e0 = extraterrestrial_normal(noon, solar_constant_w_m2)
+    phi = np.radians(site.latitude_deg)
+    delta = np.radians(de["declination_deg"].to_numpy())[:, None]
+    w = np.radians(-180.0 + (np.arange(n_hour_angle) + 0.5) * 360.0 / n_hour_angle)[None, :]
+    beta = np.radians(surface_tilt)
+    # azimuth of the plane measured from south, west positive (D&B gamma)
+    gamma = np.radians(((surface_azimuth - 180.0) + 180.0) % 360.0 - 180.0)
+    cos_z = np.sin(phi) * np.sin(delta) + np.cos(phi) * np.cos(delta) * np.cos(w)
+    cos_t = (np.sin(delta) * np.sin(phi) * np.cos(beta)
+             - np.sin(delta) * np.cos(phi) * np.sin(beta) * np.cos(gamma)
+             + np.cos(delta) * np.cos(phi) * np.cos(beta) * np.cos(w)
+             + np.cos(delta) * np.sin(phi) * np.sin(beta) * np.cos(gamma) * np.cos(w)
+             + np.cos(delta) * np.sin(beta) * np.sin(gamma) * np.sin(w))
+    integrand = np.where(cos_z > 0, np.maximum(cos_t, 0.0), 0.0)
+    # dt = dw * 24 h / (2 pi)
+    hours_per_sample = 24.0 / n_hour_angle
+    kwh = e0 * integrand.sum(axis=1) * hours_per_sample / 1000.0
+    return pd.Series(kwh, index=de.index, name="h0_kwh_m2_day")
+
+
+# -- clear sky ------------------------------------------------------------------
+
+def monthly_to_daily(values_by_month, times: pd.DatetimeIndex) -> np.ndarray:
+    """Interpolate 12 monthly values to the given times, periodic over the year.
+
+    Each month's value sits at the middle of the month (by day of year); days
+    between are linearly interpolated, wrapping December to January.
+
+    References
+    ----------
+    The same mid-month interpolation pvlib applies to its Linke turbidity
+    climatology (pvlib.clearsky.lookup_linke_turbidity, interp_turbidity=True);
+    common practice, no source.
+    """
+    v = np.asarray(values_by_month, dtype=float)
+    month_len = np.array([31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31], dtype=float)
+    mid = np.cumsum(month_len) - month_len / 2.0
+    doy = pd.DatetimeIndex(times).dayofyear.to_numpy() - 0.5
+    return np.interp(doy, mid, v, period=365.0)
+
+
+@dataclass(frozen=True)
+class ClearSky:
+    """Clear-sky irradiance at a set of instants.
+
+    Attributes
+    ----------
+    data : pandas.DataFrame
+        ``ghi``, ``dni``, ``dhi`` in W/m², plus ``linke_turbidity`` for
+        Ineichen-Perez.
+    model : str
+        Model name.
+    turbidity_source : str
+        Where the Linke turbidity came from (or "not used").
+    note : str
+        Caveat to show with the results (clear-sky is an upper bound; a GHI-only
+        model's decomposition).
+    """
+
+    data: pd.DataFrame
+    model: str
+    turbidity_source: str
+    note: str
+
+
+def linke_turbidity(times: pd.DatetimeIndex, site: Site) -> tuple[np.ndarray, str]:
+    """Linke turbidity at the given times and where it came from.
+
+    Monthly values from the site file override pvlib's climatology.
+
+    References
+    ----------
+    Remund, J., Wald, L., Lefevre, M., Ranchin, T. & Page, J. (2003).
+    Worldwide Linke turbidity information. Proc. ISES Solar World Congress,
+    Goteborg (the climatology shipped with pvlib as LinkeTurbidities.h5).
+    """
+    if site.linke_turbidity is not None:
+        return monthly_to_daily(site.linke_turbidity, times), "monthly values from the site file"
+    lt = pvlib.clearsky.lookup_linke_turbidity(pd.DatetimeIndex(times), site.latitude_deg,
+                                               site.longitude_deg)
+    return np.asarray(lt, dtype=float), "pvlib monthly climatology (Remund et al. 2003)"
+
+
+def clear_sky(times: pd.DatetimeIndex, position: pd.DataFrame, site: Site,
+              model: str = "ineichen", dni_extra=None) -> ClearSky:
+    """Clear-sky GHI, DNI and DHI at the given instants.
+
+    Parameters
+    ----------
+    times : pandas.DatetimeIndex
+        Instants (timezone-aware).
+    position : pandas.DataFrame
+        Sun position at ``times`` (:func:`tiltyard.engine.sun.solar_position`).
+    site : Site
+        Site; its elevation always enters (pressure, altitude).
+    model : {"ineichen", "simplified_solis", "haurwitz"}
+        Clear-sky model.
+    dni_extra : array_like, optional
+        Extraterrestrial normal irradiance, W/m²; by default
+        :func:`extraterrestrial_normal` with the default solar constant.
+
+    Returns
+    -------
+    ClearSky
+
+    References
+    ----------
+    See :data:`CLEARSKY_REFERENCES`; implementations from pvlib.clearsky.
+    """
+    times = pd.DatetimeIndex(times)
+    if dni_extra is None:
+        dni_extra = extraterrestrial_normal(times)
+    dni_extra = np.asarray(dni_extra, dtype=float)
+    app_zen = position["apparent_zenith"].to_numpy()
+    pressure = site_pressure_pa(site.elevation_m)
+    note = "clear-sky irradiance: an upper bound, not an expected yield"
+    if model == "ineichen":
+        lt, source = linke_turbidity(times, site)
+        am_rel = pvlib.atmosphere.get_relative_airmass(app_zen)
+        am_abs = pvlib.atmosphere.get_absolute_airmass(am_rel, pressure)
+        with np.errstate(divide="ignore", invalid="ignore"):  # night rows give NaN, set to 0
+            cs = pvlib.clearsky.ineichen(app_zen, am_abs, lt, altitude=site.elevation_m,
+                                         dni_extra=dni_extra)
+        data = pd.DataFrame({"ghi": cs["ghi"], "dni": cs["dni"], "dhi": cs["dhi"],
+                             "linke_turbidity": lt}, index=times)
+    elif model == "simplified_solis":
+        cs = pvlib.clearsky.simplified_solis(90.0 - app_zen, pressure=pressure,
+                                             dni_extra=dni_extra)
+        data = pd.DataFrame({"ghi": cs["ghi"], "dni": cs["dni"], "dhi": cs["dhi"]}, index=times)
+        source = "not used (aod700 = 0.1, precipitable water = 1 cm, pvlib defaults)"
+    elif model == "haurwitz":
+        ghi = np.asarray(pvlib.clearsky.haurwitz(pd.Series(app_zen, index=times))["ghi"],
+                         dtype=float)
+        parts = pvlib.irradiance.erbs(ghi, position["zenith"].to_numpy(), times.dayofyear)
+        data = pd.DataFrame({"ghi": ghi, "dni": np.asarray(parts["dni"], dtype=float),
+                             "dhi": np.asarray(parts["dhi"], dtype=float)}, index=times)
+        source = "not used"
+        note += "; Haurwitz gives GHI only: DNI and DHI split from it by Erbs et al. (1982)"
+    else:
+        raise ValueError(f"model = {model!r}: must be one of {', '.join(CLEARSKY_MODELS)}")
+    data = data.fillna(0.0)
+    for col in ("ghi", "dni", "dhi"):
+        data[col] = np.maximum(data[col].to_numpy(dtype=float), 0.0)
+    return ClearSky(data, model, source, note)

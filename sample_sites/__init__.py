@@ -1,0 +1,1 @@
+"""Invented demo sites shipped with Tiltyard (JSON site files)."""
