@@ -26,6 +26,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
+
 from tiltyard.engine.geometry import (
     DAYS_IN_MONTH,
     MEAN_DAY_OF_MONTH,

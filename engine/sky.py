@@ -172,7 +172,7 @@ def monthly_to_daily(values_by_month, times: pd.DatetimeIndex) -> np.ndarray:
     v = np.asarray(values_by_month, dtype=float)
     month_len = np.array([31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31], dtype=float)
     mid = np.cumsum(month_len) - month_len / 2.0
-    doy = pd.DatetimeIndex(times).dayofyear.to_numpy() - 0.5
+    doy = pd.DatetimeIndex(times).day_of_year.to_numpy() - 0.5
     return np.interp(doy, mid, v, period=365.0)
 
 
@@ -268,7 +268,7 @@ def clear_sky(times: pd.DatetimeIndex, position: pd.DataFrame, site: Site,
     elif model == "haurwitz":
         ghi = np.asarray(pvlib.clearsky.haurwitz(pd.Series(app_zen, index=times))["ghi"],
                          dtype=float)
-        parts = pvlib.irradiance.erbs(ghi, position["zenith"].to_numpy(), times.dayofyear)
+        parts = pvlib.irradiance.erbs(ghi, position["zenith"].to_numpy(), times.day_of_year)
         data = pd.DataFrame({"ghi": ghi, "dni": np.asarray(parts["dni"], dtype=float),
                              "dhi": np.asarray(parts["dhi"], dtype=float)}, index=times)
         source = "not used"

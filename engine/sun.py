@@ -284,7 +284,7 @@ def sun_events(site: Site, dates) -> SunEvents:
         "solar_noon": transit,
         "day_length_h": length,
         "max_elevation_deg": max_el,
-        "polar": polar,
+        "polar": pd.Series(polar, dtype=object),
     })
     return SunEvents(table, tz)
 
@@ -325,7 +325,8 @@ def declination_deg(times: pd.DatetimeIndex) -> np.ndarray:
     x2 = _spa.mean_anomaly_moon(jce)
     x3 = _spa.moon_argument_latitude(jce)
     x4 = _spa.moon_ascending_longitude(jce)
-    l_o = _spa.longitude_obliquity_nutation(jce, x0, x1, x2, x3, x4)
+    l_o = np.empty((2,) + np.shape(jce))
+    _spa.longitude_obliquity_nutation(jce, x0, x1, x2, x3, x4, l_o)
     delta_psi, delta_eps = l_o[0], l_o[1]
     eps0 = _spa.mean_ecliptic_obliquity(jme)
     eps = _spa.true_ecliptic_obliquity(eps0, delta_eps)

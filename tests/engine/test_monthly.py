@@ -7,6 +7,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 from pvlib import irradiance, solarposition
+
 from tiltyard.engine.geometry import (
     DAYS_IN_MONTH,
     MEAN_DAY_OF_MONTH,
