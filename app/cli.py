@@ -10,6 +10,7 @@ from __future__ import annotations
 import argparse
 import datetime as _dt
 import json
+import re
 import sys
 import traceback
 
@@ -24,15 +25,17 @@ class UserError(Exception):
 
 class _Parser(argparse.ArgumentParser):
     def error(self, message):  # one line, exit 2
-        sys.stderr.write(f"{self.prog}: {message} (see '{self.prog} --help')\n")
+        sys.stderr.write(f"{self.prog}: {_one_line(message)} (see '{self.prog} --help')\n")
         raise SystemExit(EXIT_INPUT)
 
 
 def _date(text: str) -> _dt.date:
+    if not re.fullmatch(r"[0-9]{4}-[0-9]{2}-[0-9]{2}", text):
+        raise argparse.ArgumentTypeError(f"{text!r}: expected a date as YYYY-MM-DD")
     try:
         return _dt.date.fromisoformat(text)
-    except ValueError:
-        raise argparse.ArgumentTypeError(f"--date {text!r}: expected YYYY-MM-DD") from None
+    except ValueError as err:  # e.g. "day is out of range for month"
+        raise argparse.ArgumentTypeError(f"{text!r}: no such date ({err})") from None
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -204,11 +207,20 @@ def cmd_irradiance(args) -> int:
 COMMANDS = {"sites": cmd_sites, "sun": cmd_sun, "irradiance": cmd_irradiance}
 
 
+def _one_line(text) -> str:
+    return " ".join(str(text).split())
+
+
 def main(argv: list[str] | None = None) -> int:
-    """Run the command line; returns the exit status."""
+    """Run the command line; returns the exit status (also for usage errors,
+    ``--help`` and ``--version``, which argparse reports by raising SystemExit)."""
     argv = sys.argv[1:] if argv is None else argv
     parser = build_parser()
-    args = parser.parse_args(argv)
+    try:
+        args = parser.parse_args(argv)
+    except SystemExit as stop:
+        code = stop.code
+        return code if isinstance(code, int) else (EXIT_OK if code is None else EXIT_INPUT)
     from tiltyard.engine.site import SiteError
 
     try:
@@ -218,14 +230,14 @@ def main(argv: list[str] | None = None) -> int:
             return EXIT_INPUT
         return COMMANDS[args.command](args)
     except (UserError, SiteError) as err:
-        sys.stderr.write(f"tiltyard: {err}\n")
+        sys.stderr.write(f"tiltyard: {_one_line(err)}\n")
         return EXIT_INPUT
     except BrokenPipeError:
         return EXIT_OK
     except Exception as err:  # an internal fault: one line, traceback on request
         if args.verbose:
             traceback.print_exc()
-        sys.stderr.write(f"tiltyard: internal fault: {type(err).__name__}: {err} "
+        sys.stderr.write(f"tiltyard: internal fault: {type(err).__name__}: {_one_line(err)} "
                          "(run again with --verbose and report it)\n")
         return EXIT_FAULT
 

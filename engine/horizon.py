@@ -115,13 +115,18 @@ def merged_profile(site: Site, step_deg: float = 1.0) -> HorizonProfile:
     Obstacle edges are sampled too, so a narrow obstacle is never lost between
     samples. Useful for display and for exporting the horizon.
     """
-    az = np.arange(0.0, 360.0, step_deg)
-    edges = []
+    grid = np.arange(0.0, 360.0, step_deg)
+    edges, edge_el = [], []
     for ob in site.obstacles:
         half = ob.width_deg / 2.0
         edges += [(ob.bearing_deg - half) % 360.0, (ob.bearing_deg + half) % 360.0]
-    az = np.unique(np.round(np.concatenate([az, np.asarray(edges, dtype=float)]), 6) % 360.0)
+        edge_el += [ob.elevation_deg] * 2
+    edges = np.round(np.asarray(edges, dtype=float), 6) % 360.0
+    az = np.unique(np.concatenate([np.round(grid, 6) % 360.0, edges]))
     el = site_horizon_deg(site, az)
+    # rounding can move an edge a hair outside its obstacle's span; the edge
+    # sample carries the obstacle by construction
+    np.maximum.at(el, np.searchsorted(az, edges), np.asarray(edge_el, dtype=float))
     return HorizonProfile(tuple(az.tolist()), tuple(np.round(el, 4).tolist()))
 
 
@@ -140,6 +145,41 @@ def sun_visible(site: Site, azimuth_deg, apparent_elevation_deg) -> np.ndarray:
 
 def _azimuth_samples(n_az: int) -> np.ndarray:
     return (np.arange(n_az) + 0.5) * (360.0 / n_az)
+
+
+def _prim(a, b, e):
+    """Primitive of ``(a sin e + b cos e) cos e`` in ``e``."""
+    return a * np.sin(e) ** 2 / 2.0 + b * (e / 2.0 + np.sin(2.0 * e) / 4.0)
+
+
+def _svf_on_grid(tilt_deg, shift_idx, h, n_az):
+    """Sky-view factors of planes whose azimuths sit on the azimuth sample grid.
+
+    The same closed-form elevation integral as :func:`sky_view_factor`, with the
+    horizon-independent parts tabulated once per tilt over the relative azimuth
+    ``A - azimuth`` (which falls on the sample grid), so each plane costs table
+    look-ups instead of transcendental functions.
+    """
+    rel = np.radians((np.arange(n_az) + 0.5) * (360.0 / n_az))   # relative azimuth samples
+    s1 = np.sin(h) ** 2 / 2.0                                    # a-part of prim(h)
+    s2 = h / 2.0 + np.sin(2.0 * h) / 4.0                         # b-part of prim(h)
+    out = np.empty(tilt_deg.size)
+    k = np.arange(n_az)
+    for tilt in np.unique(tilt_deg):
+        sel = np.flatnonzero(tilt_deg == tilt)
+        beta = np.radians(tilt)
+        a = np.cos(beta)
+        b = np.sin(beta) * np.cos(rel)                           # per relative azimuth
+        e_pos = -np.arctan2(b, a)
+        prim_e = _prim(a, b, e_pos)
+        prim_top = _prim(a, b, np.pi / 2.0)
+        m = (k[None, :] - shift_idx[sel][:, None]) % n_az        # relative index per sample
+        bm = b[m]
+        cond = h[None, :] >= e_pos[m]
+        prim_lo = np.where(cond, a * s1[None, :] + bm * s2[None, :], prim_e[m])
+        g = prim_top[m] - prim_lo
+        out[sel] = g.sum(axis=1) * (2.0 / n_az)
+    return out
 
 
 def sky_view_factor(surface_tilt, surface_azimuth, horizon_elevation_deg, n_az: int = 1440):
@@ -188,24 +228,24 @@ def sky_view_factor(surface_tilt, surface_azimuth, horizon_elevation_deg, n_az: 
     else:
         h_deg = np.broadcast_to(np.asarray(horizon_elevation_deg, dtype=float), az.shape)
     h = np.radians(np.clip(h_deg, -90.0, 90.0))
-    beta = np.radians(np.asarray(surface_tilt, dtype=float))
-    gamma = np.radians(np.asarray(surface_azimuth, dtype=float))
-    beta, gamma = np.broadcast_arrays(beta, gamma)
-    shape = beta.shape
-    beta = beta.reshape(-1, 1)
-    gamma = gamma.reshape(-1, 1)
-    a = np.cos(beta)                                    # weight of sin(e)
-    b = np.sin(beta) * np.cos(np.radians(az)[None, :] - gamma)   # weight of cos(e)
-    # integrand (a sin e + b cos e) cos e is positive for e > -atan2(b, a)
-    e_pos = -np.arctan2(b, a)
-    lo = np.maximum(h[None, :], e_pos)
-    hi = np.pi / 2.0
-
-    def prim(e):
-        return a * np.sin(e) ** 2 / 2.0 + b * (e / 2.0 + np.sin(2.0 * e) / 4.0)
-
-    g = np.where(lo < hi, prim(hi) - prim(np.minimum(lo, hi)), 0.0)
-    f = g.sum(axis=1) * (2.0 * np.pi / n_az) / np.pi
+    tilt_deg, azim_deg = np.broadcast_arrays(np.asarray(surface_tilt, dtype=float),
+                                             np.asarray(surface_azimuth, dtype=float))
+    shape = tilt_deg.shape
+    tilt_deg, azim_deg = tilt_deg.ravel(), np.mod(azim_deg.ravel(), 360.0)
+    step = 360.0 / n_az
+    shift = azim_deg / step
+    if tilt_deg.size > 8 and np.allclose(shift, np.round(shift), atol=1e-9):
+        f = _svf_on_grid(tilt_deg, np.round(shift).astype(int) % n_az, h, n_az)
+    else:
+        beta = np.radians(tilt_deg).reshape(-1, 1)
+        gamma = np.radians(azim_deg).reshape(-1, 1)
+        a = np.cos(beta)                                    # weight of sin(e)
+        b = np.sin(beta) * np.cos(np.radians(az)[None, :] - gamma)   # weight of cos(e)
+        # integrand (a sin e + b cos e) cos e is positive for e > -atan2(b, a)
+        e_pos = -np.arctan2(b, a)
+        lo = np.maximum(h[None, :], e_pos)
+        g = _prim(a, b, np.pi / 2.0) - _prim(a, b, np.minimum(lo, np.pi / 2.0))
+        f = g.sum(axis=1) * (2.0 * np.pi / n_az) / np.pi
     return np.clip(f, 0.0, 1.0).reshape(shape)
 
 
@@ -248,14 +288,16 @@ def horizon_band_fraction(surface_tilt, surface_azimuth, horizon_elevation_deg,
     else:
         h_deg = np.broadcast_to(np.asarray(horizon_elevation_deg, dtype=float), az.shape)
     vis = np.clip((band_deg - np.maximum(h_deg, 0.0)) / band_deg, 0.0, 1.0)
-    beta = np.radians(np.asarray(surface_tilt, dtype=float))
-    gamma = np.radians(np.asarray(surface_azimuth, dtype=float))
-    beta, gamma = np.broadcast_arrays(beta, gamma)
-    shape = beta.shape
-    w = np.maximum(np.sin(beta.reshape(-1, 1)) * np.cos(np.radians(az)[None, :]
-                                                         - gamma.reshape(-1, 1)), 0.0)
-    tot = w.sum(axis=1)
-    frac = np.where(tot > 0, (w * vis[None, :]).sum(axis=1) / np.where(tot > 0, tot, 1.0), 1.0)
+    tilt, azim = np.broadcast_arrays(np.asarray(surface_tilt, dtype=float),
+                                     np.asarray(surface_azimuth, dtype=float))
+    shape = tilt.shape
+    tilt, azim = tilt.ravel(), azim.ravel()
+    # the weight sin(tilt) max(cos(A - azimuth), 0) has its tilt factor cancel
+    # in the ratio, so the share depends on the azimuth alone
+    uaz, inv = np.unique(np.mod(azim, 360.0), return_inverse=True)
+    w = np.maximum(np.cos(np.radians(az)[None, :] - np.radians(uaz)[:, None]), 0.0)
+    share = (w * vis[None, :]).sum(axis=1) / w.sum(axis=1)
+    frac = np.where(tilt > 0, share[inv], 1.0)
     return frac.reshape(shape)
 
 

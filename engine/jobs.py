@@ -16,21 +16,13 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from .horizon import HorizonShading, plane_shading, sun_visible
-from .plane import TRANSPOSITION_MODELS, TRANSPOSITION_REFERENCES, poa_components
+from .horizon import HorizonShading, plane_shading
+from .plane import TRANSPOSITION_REFERENCES, poa_components
 from .site import Site
-from .sky import (
-    CLEARSKY_MODELS,
-    CLEARSKY_REFERENCES,
-    SOLAR_CONSTANT_W_M2,
-    clear_sky,
-    extraterrestrial_normal,
-    extraterrestrial_on_plane,
-)
-from .sun import day_path, evaluation_points, sun_events
-from .timegrid import MIDPOINT_CONVENTION, REFERENCE_YEAR, STEPS_MIN, year_grid
-
-SKY_BASES = ("clear",)
+from .sky import CLEARSKY_REFERENCES, extraterrestrial_on_plane
+from .skyyear import IrradianceOptions, sky_year
+from .sun import day_path, sun_events
+from .timegrid import MIDPOINT_CONVENTION
 
 CAUTION = ("Preliminary feasibility estimate, not a design: structural, electrical and fire "
            "safety and the sizing of any installation belong to local codes and licensed "
@@ -113,52 +105,6 @@ def sun_day(site: Site, date, step_min: float = 10.0) -> SunDay:
 
 
 # -- irradiance -------------------------------------------------------------------
-
-@dataclass(frozen=True)
-class IrradianceOptions:
-    """Choices for a year of irradiance.
-
-    Attributes
-    ----------
-    model : {"isotropic", "haydavies", "perez"}
-        Sky diffuse transposition model.
-    sky : {"clear"}
-        Sky basis.
-    clearsky_model : {"ineichen", "simplified_solis", "haurwitz"}
-        Clear-sky model for the clear basis.
-    solar_constant_w_m2 : float
-        Solar constant.
-    year : int
-        Year (non-leap reference year by default).
-    step_min : int
-        Interval length, minutes.
-    """
-
-    model: str = "perez"
-    sky: str = "clear"
-    clearsky_model: str = "ineichen"
-    solar_constant_w_m2: float = SOLAR_CONSTANT_W_M2
-    year: int = REFERENCE_YEAR
-    step_min: int = 60
-
-    def __post_init__(self):
-        if self.model not in TRANSPOSITION_MODELS:
-            raise ValueError(f"model = {self.model!r}: must be one of "
-                             f"{', '.join(TRANSPOSITION_MODELS)}")
-        if self.sky not in SKY_BASES:
-            raise ValueError(f"sky = {self.sky!r}: must be one of {', '.join(SKY_BASES)}")
-        if self.clearsky_model not in CLEARSKY_MODELS:
-            raise ValueError(f"clearsky_model = {self.clearsky_model!r}: must be one of "
-                             f"{', '.join(CLEARSKY_MODELS)}")
-        if not 1000.0 <= float(self.solar_constant_w_m2) <= 1500.0:
-            raise ValueError(f"solar_constant_w_m2 = {self.solar_constant_w_m2!r}: must be "
-                             "between 1000 and 1500 W/m2")
-        if self.step_min not in STEPS_MIN:
-            raise ValueError(f"step_min = {self.step_min!r}: must be one of "
-                             f"{', '.join(map(str, STEPS_MIN))}")
-        if not 1900 <= int(self.year) <= 2100:
-            raise ValueError(f"year = {self.year!r}: must be between 1900 and 2100")
-
 
 MONTHLY_KEYS = ("extraterrestrial_horizontal_kwh_m2", "extraterrestrial_poa_kwh_m2", "ghi_kwh_m2",
                 "dni_kwh_m2", "dhi_kwh_m2", "poa_kwh_m2", "poa_beam_kwh_m2",
@@ -268,28 +214,22 @@ def irradiance_year(site: Site, surface_tilt: float, surface_azimuth: float,
     if not 0.0 <= float(surface_azimuth) <= 360.0:
         raise ValueError(f"surface_azimuth = {surface_azimuth!r}: must be between 0 and 360 deg")
     surface_azimuth = float(surface_azimuth) % 360.0
-    grid = year_grid(site.timezone, options.year, options.step_min)
-    ep = evaluation_points(grid, site)
-    pos = ep.position
-    frac = ep.sun_up_fraction
-    dni_extra = extraterrestrial_normal(ep.times_utc, options.solar_constant_w_m2)
-    cs = clear_sky(ep.times_utc, pos, site, options.clearsky_model, dni_extra)
-    up = frac > 0
-    ghi = np.where(up, cs.data["ghi"].to_numpy(), 0.0)
-    dni = np.where(up, cs.data["dni"].to_numpy(), 0.0)
-    dhi = np.where(up, cs.data["dhi"].to_numpy(), 0.0)
+    sky = sky_year(site, options)
+    grid, pos, frac = sky.grid, sky.position, sky.sun_up_fraction
+    ghi, dni, dhi, dni_extra = sky.ghi, sky.dni, sky.dhi, sky.dni_extra
     app_zen = pos["apparent_zenith"].to_numpy()
     zen = pos["zenith"].to_numpy()
     saz = pos["azimuth"].to_numpy()
-    vis = sun_visible(site, saz, pos["apparent_elevation"].to_numpy())
+    up = frac > 0
+    vis = sky.sun_visible
     shading = plane_shading(site, float(surface_tilt), surface_azimuth)
-    months = grid.start_local.month.to_numpy()
-    albedo = np.asarray(site.albedo_by_month(), dtype=float)[months - 1]
+    months = sky.month
     poa = poa_components(float(surface_tilt), surface_azimuth, app_zen, saz, ghi, dni, dhi,
-                         dni_extra, albedo, options.model, sun_visible=vis, shading=shading)
+                         dni_extra, sky.albedo, options.model, sun_visible=vis,
+                         shading=shading)
     series = pd.DataFrame(index=grid.start_utc)
     series.index.name = "interval_start_utc"
-    series["eval_time_utc"] = ep.times_utc
+    series["eval_time_utc"] = sky.times_utc
     series["sun_up_fraction"] = frac
     series["sun_visible"] = vis & up
     series["dni_extra"] = dni_extra
@@ -306,12 +246,12 @@ def irradiance_year(site: Site, surface_tilt: float, surface_azimuth: float,
             series[col] = poa[col].to_numpy() * frac
     monthly = _monthly_table(series, months, grid.step_h)
     annual = {k: float(monthly[k].sum()) for k in MONTHLY_KEYS}
-    notes = (cs.note,
+    notes = (sky.note,
              "ground-reflected irradiance from the unobstructed GHI and the albedo",
              "time convention: " + MIDPOINT_CONVENTION,
              f"reference year {options.year}" + (" (non-leap)" if options.year % 4 else ""))
     return IrradianceResult(site, float(surface_tilt), surface_azimuth, options, series, monthly,
-                            annual, shading, cs.turbidity_source, notes)
+                            annual, shading, sky.turbidity_source, notes)
 
 
 def _monthly_table(series: pd.DataFrame, months: np.ndarray, step_h: float) -> pd.DataFrame:

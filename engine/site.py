@@ -16,6 +16,7 @@ import json
 import math
 import numbers
 import os
+import stat
 import tempfile
 from dataclasses import dataclass, field, replace
 from importlib import resources
@@ -346,6 +347,9 @@ def site_from_dict(d: dict) -> Site:
     horizon = d.get("horizon") or {}
     if not isinstance(horizon, dict):
         raise SiteError("horizon", horizon, "must be an object with azimuth_deg and elevation_deg")
+    for key in ("azimuth_deg", "elevation_deg"):
+        if horizon.get(key) is not None and not isinstance(horizon[key], list):
+            raise SiteError(f"horizon.{key}", horizon[key], "must be a list of numbers in degrees")
     obstacles = d.get("obstacles") or []
     planes = d.get("planes") or []
     if not isinstance(obstacles, list):
@@ -421,8 +425,10 @@ def load_site(path: str | os.PathLike) -> Site:
     try:
         data = json.loads(text)
     except json.JSONDecodeError as err:
-        raise SiteError(f"line {err.lineno}, column {err.colno}", text.splitlines()[err.lineno - 1]
-                        .strip()[:40] if text.splitlines() else "",
+        lines = text.splitlines()
+        # the error may sit just past the last line (a file cut short)
+        shown = lines[err.lineno - 1].strip()[:40] if 0 < err.lineno <= len(lines) else ""
+        raise SiteError(f"line {err.lineno}, column {err.colno}", shown,
                         f"is not valid JSON ({err.msg})", str(path)) from None
     try:
         return site_from_dict(data)
@@ -447,6 +453,9 @@ def write_bytes_atomically(path: str | os.PathLike, data: bytes) -> None:
     fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=folder)
     try:
         with os.fdopen(fd, "wb") as fh:
+            # mkstemp makes an owner-only file; give the new file the old file's
+            # permissions, or the usual ones (0666 less the umask) for a new file
+            os.chmod(tmp, _target_mode(path))
             fh.write(data)
             fh.flush()
             os.fsync(fh.fileno())
@@ -467,6 +476,17 @@ def write_bytes_atomically(path: str | os.PathLike, data: bytes) -> None:
         pass
     finally:
         os.close(dir_fd)
+
+
+def _target_mode(path: Path) -> int:
+    """Permission bits a file written at ``path`` should get."""
+    try:
+        return stat.S_IMODE(os.stat(path).st_mode)
+    except OSError:
+        pass
+    mask = os.umask(0o022)  # reading the umask means setting it; put it straight back
+    os.umask(mask)
+    return 0o666 & ~mask
 
 
 def save_site(site: Site, path: str | os.PathLike) -> None:

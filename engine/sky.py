@@ -240,6 +240,13 @@ def clear_sky(times: pd.DatetimeIndex, position: pd.DataFrame, site: Site,
     -------
     ClearSky
 
+    Notes
+    -----
+    Ineichen-Perez output is bounded by the extraterrestrial irradiance
+    (DNI by ``dni_extra``, GHI by ``dni_extra cos(z)``): at sites above about
+    4000 m its altitude terms would otherwise exceed it. The note says when
+    the bound was applied.
+
     References
     ----------
     See :data:`CLEARSKY_REFERENCES`; implementations from pvlib.clearsky.
@@ -278,4 +285,42 @@ def clear_sky(times: pd.DatetimeIndex, position: pd.DataFrame, site: Site,
     data = data.fillna(0.0)
     for col in ("ghi", "dni", "dhi"):
         data[col] = np.maximum(data[col].to_numpy(dtype=float), 0.0)
+    if model == "ineichen":
+        n_capped = _cap_at_extraterrestrial(data, dni_extra, app_zen)
+        if n_capped:
+            note += (f"; Ineichen-Perez exceeds the extraterrestrial irradiance at "
+                     f"{site.elevation_m:g} m elevation (its altitude terms grow without bound, "
+                     f"above about 4000 m): capped to it at {n_capped} instants; the simplified "
+                     "Solis model stays physical there")
     return ClearSky(data, model, source, note)
+
+
+def _cap_at_extraterrestrial(data: pd.DataFrame, dni_extra, apparent_zenith) -> int:
+    """Bound clear-sky irradiance by the extraterrestrial irradiance, in place.
+
+    DNI is capped at ``dni_extra`` and GHI at ``dni_extra cos(z)``; DHI is then
+    ``GHI - DNI cos(z)`` so the closure of the components still holds. Returns
+    the number of instants changed.
+
+    References
+    ----------
+    Energy conservation: the atmosphere cannot add to the extraterrestrial
+    beam (Duffie & Beckman 2013, eq. 1.10.1, for the horizontal bound). The
+    Ineichen & Perez (2002) altitude terms ``cg1 = 5.09e-5 h + 0.868`` and
+    ``fh1 = exp(-h / 8000)`` exceed this bound above about 4000 m (pvlib
+    issue #285 reports the same at 20 km).
+    """
+    cos_z = np.maximum(np.cos(np.radians(np.asarray(apparent_zenith, dtype=float))), 0.0)
+    e0 = np.broadcast_to(np.asarray(dni_extra, dtype=float), cos_z.shape)
+    ghi = data["ghi"].to_numpy(dtype=float)
+    dni = data["dni"].to_numpy(dtype=float)
+    over = (ghi > e0 * cos_z) | (dni > e0)
+    if not over.any():
+        return 0
+    dni = np.minimum(dni, e0)
+    ghi = np.minimum(ghi, e0 * cos_z)
+    data["dni"] = dni
+    data["ghi"] = ghi
+    data["dhi"] = np.where(over, np.maximum(ghi - dni * cos_z, 0.0),
+                           data["dhi"].to_numpy(dtype=float))
+    return int(over.sum())

@@ -1,0 +1,175 @@
+"""The sky over one year at one site: the time-only terms every plane shares.
+
+:func:`sky_year` evaluates the year's intervals once — sun position at the
+evaluation instants, extraterrestrial irradiance, horizontal irradiance
+components for the chosen sky basis, sun visibility against the site horizon,
+albedo — so that one plane (:func:`tiltyard.engine.jobs.irradiance_year`) and
+thousands of planes (:mod:`tiltyard.engine.manyplane`) see exactly the same sky.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import pandas as pd
+
+from .horizon import sun_visible
+from .plane import TRANSPOSITION_MODELS
+from .site import Site
+from .sky import CLEARSKY_MODELS, SOLAR_CONSTANT_W_M2, clear_sky, extraterrestrial_normal
+from .sun import evaluation_points
+from .timegrid import REFERENCE_YEAR, STEPS_MIN, TimeGrid, year_grid
+
+SKY_BASES = ("clear",)
+
+
+@dataclass(frozen=True)
+class IrradianceOptions:
+    """Choices for a year of irradiance (sky basis and models).
+
+    Attributes
+    ----------
+    model : {"isotropic", "haydavies", "perez"}
+        Sky diffuse transposition model.
+    sky : {"clear"}
+        Sky basis.
+    clearsky_model : {"ineichen", "simplified_solis", "haurwitz"}
+        Clear-sky model for the clear basis.
+    solar_constant_w_m2 : float
+        Solar constant.
+    year : int
+        Year (non-leap reference year by default).
+    step_min : int
+        Interval length, minutes.
+    """
+
+    model: str = "perez"
+    sky: str = "clear"
+    clearsky_model: str = "ineichen"
+    solar_constant_w_m2: float = SOLAR_CONSTANT_W_M2
+    year: int = REFERENCE_YEAR
+    step_min: int = 60
+
+    def __post_init__(self):
+        if self.model not in TRANSPOSITION_MODELS:
+            raise ValueError(f"model = {self.model!r}: must be one of "
+                             f"{', '.join(TRANSPOSITION_MODELS)}")
+        if self.sky not in SKY_BASES:
+            raise ValueError(f"sky = {self.sky!r}: must be one of {', '.join(SKY_BASES)}")
+        if self.clearsky_model not in CLEARSKY_MODELS:
+            raise ValueError(f"clearsky_model = {self.clearsky_model!r}: must be one of "
+                             f"{', '.join(CLEARSKY_MODELS)}")
+        if not 1000.0 <= float(self.solar_constant_w_m2) <= 1500.0:
+            raise ValueError(f"solar_constant_w_m2 = {self.solar_constant_w_m2!r}: must be "
+                             "between 1000 and 1500 W/m2")
+        if self.step_min not in STEPS_MIN:
+            raise ValueError(f"step_min = {self.step_min!r}: must be one of "
+                             f"{', '.join(map(str, STEPS_MIN))}")
+        if not 1900 <= int(self.year) <= 2100:
+            raise ValueError(f"year = {self.year!r}: must be between 1900 and 2100")
+
+
+@dataclass(frozen=True)
+class SkyYear:
+    """Time-only terms of a year of intervals (arrays of one value per interval).
+
+    Irradiance values (``ghi``, ``dni``, ``dhi``, ``dni_extra``) are
+    instantaneous values at each interval's evaluation instant, W/m², zero
+    while the sun is down; multiply by ``sun_up_fraction`` for interval means.
+
+    Attributes
+    ----------
+    site, options : Site, IrradianceOptions
+        What was computed.
+    grid : TimeGrid
+        The intervals.
+    times_utc : pandas.DatetimeIndex
+        Evaluation instants.
+    sun_up_fraction : numpy.ndarray
+        Sun-up share of each interval.
+    position : pandas.DataFrame
+        Sun position at ``times_utc``.
+    ghi, dni, dhi, dni_extra : numpy.ndarray
+        Irradiance, W/m².
+    sun_visible : numpy.ndarray of bool
+        Sun above the site horizon (and up).
+    albedo : numpy.ndarray
+        Ground albedo per interval (monthly values expanded).
+    month : numpy.ndarray of int
+        Local calendar month (1-12) of each interval's start.
+    day_index : numpy.ndarray of int
+        Local day of the year, 0-based, of each interval's start.
+    turbidity_source, note : str
+        Provenance and caveat of the sky basis.
+    """
+
+    site: Site
+    options: IrradianceOptions
+    grid: TimeGrid
+    times_utc: pd.DatetimeIndex
+    sun_up_fraction: np.ndarray
+    position: pd.DataFrame
+    ghi: np.ndarray
+    dni: np.ndarray
+    dhi: np.ndarray
+    dni_extra: np.ndarray
+    sun_visible: np.ndarray
+    albedo: np.ndarray
+    month: np.ndarray
+    day_index: np.ndarray
+    turbidity_source: str
+    note: str
+
+    @property
+    def n_days(self) -> int:
+        """Days in the year (365 or 366)."""
+        return int(self.day_index.max()) + 1
+
+    @property
+    def kwh_weight(self) -> np.ndarray:
+        """kWh/m² per W/m² of instantaneous irradiance, per interval
+        (sun-up fraction times interval length in hours, over 1000)."""
+        return self.sun_up_fraction * self.grid.step_h / 1000.0
+
+
+def sky_year(site: Site, options: IrradianceOptions | None = None) -> SkyYear:
+    """Evaluate the time-only terms of a year for ``site``.
+
+    Parameters
+    ----------
+    site : Site
+        The site.
+    options : IrradianceOptions, optional
+        Sky basis, clear-sky model, solar constant, year and step.
+
+    Returns
+    -------
+    SkyYear
+
+    References
+    ----------
+    NREL SPA (Reda & Andreas 2008) for positions; Ineichen & Perez (2002),
+    Ineichen (2008) or Haurwitz (1945) for the clear sky (see
+    :mod:`tiltyard.engine.sky`).
+    """
+    options = options or IrradianceOptions()
+    grid = year_grid(site.timezone, options.year, options.step_min)
+    ep = evaluation_points(grid, site)
+    pos = ep.position
+    frac = ep.sun_up_fraction
+    up = frac > 0
+    dni_extra = extraterrestrial_normal(ep.times_utc, options.solar_constant_w_m2)
+    cs = clear_sky(ep.times_utc, pos, site, options.clearsky_model, dni_extra)
+    ghi = np.where(up, cs.data["ghi"].to_numpy(), 0.0)
+    dni = np.where(up, cs.data["dni"].to_numpy(), 0.0)
+    dhi = np.where(up, cs.data["dhi"].to_numpy(), 0.0)
+    vis = sun_visible(site, pos["azimuth"].to_numpy(),
+                      pos["apparent_elevation"].to_numpy()) & up
+    local = grid.start_local
+    month = local.month.to_numpy()
+    day_index = local.day_of_year.to_numpy() - 1
+    albedo = np.asarray(site.albedo_by_month(), dtype=float)[month - 1]
+    return SkyYear(site, options, grid, ep.times_utc, frac, pos, ghi, dni, dhi,
+                   np.asarray(dni_extra, dtype=float), vis, albedo, month, day_index,
+                   cs.turbidity_source, cs.note)
