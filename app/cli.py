@@ -86,7 +86,128 @@ def build_parser() -> argparse.ArgumentParser:
     s.add_argument("--step", type=int, default=60, choices=STEPS_MIN, metavar="MIN",
                    help="interval length in minutes: " + ", ".join(map(str, STEPS_MIN)))
     s.add_argument("--json", action="store_true", help="write one JSON document to stdout")
+
+    s = sub.add_parser("study", help="compare fixed, seasonal and monthly tilts (the tilt study)",
+                       description="Which tilt, and is adjusting it with the seasons worth it? "
+                                   "Compares horizontal, each site plane, the rule of thumb, the "
+                                   "optimal fixed plane, optimal two- and four-season and monthly "
+                                   "schedules, and two-axis tracking as a ceiling.")
+    s.add_argument("site", metavar="SITE")
+    s.add_argument("--sky", default="clear", metavar="clear",
+                   help="sky basis: clear (clear-sky, an upper bound)")
+    s.add_argument("--model", choices=TRANSPOSITION_MODELS, default="perez",
+                   help="sky diffuse model (default perez)")
+    s.add_argument("--objective", default="annual", metavar="OBJ",
+                   help="annual (default), worst-month, or months=11,12,1")
+    s.add_argument("--tilt-range", default="0:90", metavar="MIN:MAX",
+                   help="tilts the racking allows, degrees (default 0:90)")
+    s.add_argument("--tilt-step", type=float, default=1.0, metavar="DEG",
+                   help="tilt step of an adjustable rack, degrees (default 1)")
+    s.add_argument("--azimuth", default="free", metavar="free|DEG",
+                   help="free (optimised) or a fixed azimuth, degrees clockwise from north")
+    s.add_argument("--min-days", type=int, default=30, metavar="DAYS",
+                   help="minimum days between adjustments (default 30)")
+    s.add_argument("--switch-dates", default=None, metavar="MM-DD,MM-DD",
+                   help="fix the two-season switch dates instead of optimising them")
+    s.add_argument("--year", type=int, default=REFERENCE_YEAR,
+                   help=f"year (default {REFERENCE_YEAR}, a non-leap reference year)")
+    s.add_argument("--json", action="store_true", help="write one JSON document to stdout")
     return p
+
+
+def _study_options(args):
+    from tiltyard.engine.skyyear import IrradianceOptions
+    from tiltyard.engine.tilt import StudyOptions
+
+    if args.sky != "clear":
+        raise UserError(f"--sky = {args.sky!r}: this version supports only 'clear'")
+    obj, months = args.objective, ()
+    if obj.startswith("months="):
+        try:
+            months = tuple(int(x) for x in obj[len("months="):].split(",") if x.strip())
+        except ValueError:
+            raise UserError(f"--objective = {obj!r}: months must be numbers, e.g. "
+                            "months=11,12,1") from None
+        obj = "months"
+    try:
+        lo, hi = (float(x) for x in args.tilt_range.split(":"))
+    except ValueError:
+        raise UserError(f"--tilt-range = {args.tilt_range!r}: expected MIN:MAX in degrees, "
+                        "e.g. 10:60") from None
+    azimuth = None
+    if args.azimuth != "free":
+        try:
+            azimuth = float(args.azimuth)
+        except ValueError:
+            raise UserError(f"--azimuth = {args.azimuth!r}: expected 'free' or degrees "
+                            "clockwise from north") from None
+    switch = None
+    if args.switch_dates:
+        switch = tuple(x.strip() for x in args.switch_dates.split(","))
+    try:
+        return StudyOptions(
+            irradiance=IrradianceOptions(model=args.model, sky=args.sky, year=args.year),
+            objective=obj, months=months, tilt_min_deg=lo, tilt_max_deg=hi,
+            tilt_step_deg=args.tilt_step, azimuth_deg=azimuth, min_days_between=args.min_days,
+            switch_dates=switch)
+    except ValueError as err:
+        raise UserError(str(err)) from None
+
+
+def _schedule_words(opt) -> str:
+    if opt.kind == "two-axis":
+        return "follows the sun"
+    if len(opt.schedule) == 1:
+        p = opt.schedule[0]
+        return f"{p.tilt_deg:g} deg all year, azimuth {p.azimuth_deg:g}"
+    return "; ".join(f"{p.tilt_deg:g} deg {p.start}..{p.end}" for p in opt.schedule)
+
+
+def cmd_study(args) -> int:
+    from tiltyard.engine.jobs import CAUTION
+    from tiltyard.engine.tilt import tilt_study
+
+    opts = _study_options(args)
+    site = _load_site(args.site)
+    try:
+        st = tilt_study(site, opts)
+    except ValueError as err:
+        raise UserError(str(err)) from None
+    if args.json:
+        print(json.dumps({"study": st.to_json_dict()}, indent=2, ensure_ascii=False))
+        return EXIT_OK
+    d = st.to_json_dict()
+    print(f"Tilt study for {site.name}  ({site.latitude_deg:.4f}, {site.longitude_deg:.4f})")
+    print(f"  sky: {opts.irradiance.sky}, model: {opts.irradiance.model}, year "
+          f"{opts.irradiance.year}; objective: {opts.objective_label}; tilts "
+          f"{opts.tilt_min_deg:g}-{opts.tilt_max_deg:g} by {opts.tilt_step_deg:g} deg; azimuth "
+          f"{'free' if opts.azimuth_deg is None else f'{opts.azimuth_deg:g} deg'}")
+    print()
+    print(f"  {'option':52} {'annual':>8} {'objective':>9} {'vs hor':>7} {'vs fixed':>8} "
+          f"{'of track':>8} {'adj/yr':>6}")
+    print(f"  {'':52} {'kWh/m2':>8} {'kWh/m2':>9} {'%':>7} {'%':>8} {'%':>8} {'':>6}")
+    for row in d["options"]:
+        def pct(v):
+            return "-" if v is None else f"{v:+.1f}"
+        print(f"  {row['label'][:52]:52} {row['annual_kwh_m2']:8.1f} "
+              f"{row['objective_value_kwh_m2']:9.1f} {pct(row['gain_vs_horizontal_pct']):>7} "
+              f"{pct(row['gain_vs_fixed_optimal_pct']):>8} "
+              f"{row['share_of_tracking_pct']:8.1f} {row['adjustments_per_year']:6d}")
+    print()
+    print("  Schedules:")
+    for opt in st.options:
+        print(f"    {opt.label[:40]:40} {_schedule_words(opt)}")
+    rec = st.recommended
+    print()
+    print(f"  Recommended: {rec.label} - {_schedule_words(rec)}")
+    print(f"  (rule: {st.recommendation_rule})")
+    go = d["grid_optimum"]
+    print(f"  Best plane on the tilt x azimuth grid: {go['tilt_deg']:g} deg, azimuth "
+          f"{go['azimuth_deg']:g} deg, {go['annual_kwh_m2']:.1f} kWh/m2 a year")
+    for w in st.warnings:
+        print(f"  Note: {w}")
+    print(f"  {CAUTION}")
+    return EXIT_OK
 
 
 def _load_site(arg: str):
@@ -204,7 +325,8 @@ def cmd_irradiance(args) -> int:
     return EXIT_OK
 
 
-COMMANDS = {"sites": cmd_sites, "sun": cmd_sun, "irradiance": cmd_irradiance}
+COMMANDS = {"sites": cmd_sites, "sun": cmd_sun, "irradiance": cmd_irradiance,
+            "study": cmd_study}
 
 
 def _one_line(text) -> str:

@@ -135,6 +135,7 @@ def poa_components(surface_tilt, surface_azimuth, solar_zenith, solar_azimuth, g
     out["poa_circumsolar_open"] = circ
     out["poa_horizon_open"] = hor
     out["poa_sky_diffuse_open"] = iso + circ + hor
-    out["poa_global_open"] = beam + iso + circ + hor + ground
+    # summed in the same order as poa_global, so an open horizon loses exactly 0
+    out["poa_global_open"] = beam + out["poa_sky_diffuse_open"] + ground
     out["aoi"] = aoi
     return pd.DataFrame(out, index=index)

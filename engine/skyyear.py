@@ -9,19 +9,24 @@ thousands of planes (:mod:`tiltyard.engine.manyplane`) see exactly the same sky.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 import pandas as pd
 
+from .allsky import check_weather_step, monthly_sky, weather_sky
 from .horizon import sun_visible
 from .plane import TRANSPOSITION_MODELS
 from .site import Site
 from .sky import CLEARSKY_MODELS, SOLAR_CONSTANT_W_M2, clear_sky, extraterrestrial_normal
 from .sun import evaluation_points
 from .timegrid import REFERENCE_YEAR, STEPS_MIN, TimeGrid, year_grid
+from .weather import WeatherData
 
-SKY_BASES = ("clear",)
+#: Sky bases: the clear sky; a synthetic year from the site's monthly mean
+#: daily GHI (:func:`tiltyard.engine.allsky.monthly_sky`); a weather series
+#: (:func:`tiltyard.engine.allsky.weather_sky`).
+SKY_BASES = ("clear", "monthly", "file")
 
 
 @dataclass(frozen=True)
@@ -32,8 +37,9 @@ class IrradianceOptions:
     ----------
     model : {"isotropic", "haydavies", "perez"}
         Sky diffuse transposition model.
-    sky : {"clear"}
-        Sky basis.
+    sky : {"clear", "monthly", "file"}
+        Sky basis: clear sky; synthetic year scaled to the site's
+        ``monthly_ghi_kwh_m2_day``; the weather series in ``weather``.
     clearsky_model : {"ineichen", "simplified_solis", "haurwitz"}
         Clear-sky model for the clear basis.
     solar_constant_w_m2 : float
@@ -42,6 +48,9 @@ class IrradianceOptions:
         Year (non-leap reference year by default).
     step_min : int
         Interval length, minutes.
+    weather : WeatherData, optional
+        The weather series for ``sky = "file"`` (required there, refused
+        otherwise); its interval must equal ``step_min``.
     """
 
     model: str = "perez"
@@ -50,6 +59,7 @@ class IrradianceOptions:
     solar_constant_w_m2: float = SOLAR_CONSTANT_W_M2
     year: int = REFERENCE_YEAR
     step_min: int = 60
+    weather: WeatherData | None = field(default=None, repr=False)
 
     def __post_init__(self):
         if self.model not in TRANSPOSITION_MODELS:
@@ -68,6 +78,14 @@ class IrradianceOptions:
                              f"{', '.join(map(str, STEPS_MIN))}")
         if not 1900 <= int(self.year) <= 2100:
             raise ValueError(f"year = {self.year!r}: must be between 1900 and 2100")
+        if self.sky == "file":
+            if not isinstance(self.weather, WeatherData):
+                raise ValueError(f"weather = {self.weather!r}: sky = 'file' needs the weather "
+                                 "data (a WeatherData, e.g. from load_weather_for_site)")
+            check_weather_step(self.weather, self.step_min)
+        elif self.weather is not None:
+            raise ValueError(f"weather is given but sky = {self.sky!r}: weather data are used "
+                             "only with sky = 'file'")
 
 
 @dataclass(frozen=True)
@@ -102,6 +120,9 @@ class SkyYear:
         Local day of the year, 0-based, of each interval's start.
     turbidity_source, note : str
         Provenance and caveat of the sky basis.
+    temp_air, wind_speed : numpy.ndarray or None
+        Air temperature (°C) and wind speed (m/s) per interval from the
+        weather data (NaN where missing); None if the basis has none.
     """
 
     site: Site
@@ -120,6 +141,8 @@ class SkyYear:
     day_index: np.ndarray
     turbidity_source: str
     note: str
+    temp_air: np.ndarray | None = None
+    wind_speed: np.ndarray | None = None
 
     @property
     def n_days(self) -> int:
@@ -151,7 +174,9 @@ def sky_year(site: Site, options: IrradianceOptions | None = None) -> SkyYear:
     ----------
     NREL SPA (Reda & Andreas 2008) for positions; Ineichen & Perez (2002),
     Ineichen (2008) or Haurwitz (1945) for the clear sky (see
-    :mod:`tiltyard.engine.sky`).
+    :mod:`tiltyard.engine.sky`); Erbs, Klein & Duffie (1982), Solar Energy
+    28(4), 293-302, for the beam/diffuse split of the ``monthly`` basis and
+    of GHI-only weather data (see :mod:`tiltyard.engine.allsky`).
     """
     options = options or IrradianceOptions()
     grid = year_grid(site.timezone, options.year, options.step_min)
@@ -159,17 +184,34 @@ def sky_year(site: Site, options: IrradianceOptions | None = None) -> SkyYear:
     pos = ep.position
     frac = ep.sun_up_fraction
     up = frac > 0
-    dni_extra = extraterrestrial_normal(ep.times_utc, options.solar_constant_w_m2)
-    cs = clear_sky(ep.times_utc, pos, site, options.clearsky_model, dni_extra)
-    ghi = np.where(up, cs.data["ghi"].to_numpy(), 0.0)
-    dni = np.where(up, cs.data["dni"].to_numpy(), 0.0)
-    dhi = np.where(up, cs.data["dhi"].to_numpy(), 0.0)
-    vis = sun_visible(site, pos["azimuth"].to_numpy(),
-                      pos["apparent_elevation"].to_numpy()) & up
+    dni_extra = np.asarray(extraterrestrial_normal(ep.times_utc, options.solar_constant_w_m2),
+                           dtype=float)
+    zenith = pos["zenith"].to_numpy()
     local = grid.start_local
     month = local.month.to_numpy()
     day_index = local.day_of_year.to_numpy() - 1
+    temp_air = wind_speed = None
+    if options.sky == "file":
+        sky = weather_sky(options.weather, grid, frac, zenith, dni_extra)
+        ghi, dni, dhi = sky.ghi, sky.dni, sky.dhi
+        temp_air, wind_speed = sky.temp_air, sky.wind_speed
+        turbidity_source, note = "not used (measured weather)", sky.note
+    else:
+        cs = clear_sky(ep.times_utc, pos, site, options.clearsky_model, dni_extra)
+        ghi = np.where(up, cs.data["ghi"].to_numpy(), 0.0)
+        dni = np.where(up, cs.data["dni"].to_numpy(), 0.0)
+        dhi = np.where(up, cs.data["dhi"].to_numpy(), 0.0)
+        turbidity_source, note = cs.turbidity_source, cs.note
+        if options.sky == "monthly":
+            kwh_weight = frac * grid.step_h / 1000.0
+            sky = monthly_sky(site, ghi, zenith, dni_extra, month, kwh_weight, options.year)
+            ghi, dni, dhi = sky.ghi, sky.dni, sky.dhi
+            turbidity_source = (f"shape from the {options.clearsky_model} clear sky: "
+                                f"{cs.turbidity_source}")
+            note = sky.note
+    vis = sun_visible(site, pos["azimuth"].to_numpy(),
+                      pos["apparent_elevation"].to_numpy()) & up
     albedo = np.asarray(site.albedo_by_month(), dtype=float)[month - 1]
     return SkyYear(site, options, grid, ep.times_utc, frac, pos, ghi, dni, dhi,
-                   np.asarray(dni_extra, dtype=float), vis, albedo, month, day_index,
-                   cs.turbidity_source, cs.note)
+                   dni_extra, vis, albedo, month, day_index,
+                   turbidity_source, note, temp_air, wind_speed)

@@ -475,7 +475,7 @@ def day_path(site: Site, date, step_min: float = 5.0, horizon_deg=None) -> pd.Da
     start = day.tz_localize(site.timezone, ambiguous=True, nonexistent="shift_forward")
     end = (day + pd.Timedelta(days=1)).tz_localize(site.timezone, ambiguous=True,
                                                    nonexistent="shift_forward")
-    t = pd.date_range(start, end, freq=pd.Timedelta(minutes=step_min))
+    t = pd.date_range(start, end, freq=pd.Timedelta(minutes=step_min), inclusive="left")
     pos = solar_position(t, site)
     el = pos["apparent_elevation"].to_numpy()
     az = pos["azimuth"].to_numpy()

@@ -266,6 +266,22 @@ def test_east_west_mirror_symmetry(tilt):
     np.testing.assert_allclose(east, west, rtol=0, atol=1e-9)  # geometry, 1e-9
 
 
+def test_many_planes_on_the_azimuth_grid_match_one_at_a_time():
+    # many planes whose azimuths fall on the sample grid take a tabulated path; it must
+    # give the same numbers as the direct integral one plane at a time (1e-12)
+    prof = HorizonProfile((0, 45, 120, 170, 200, 260, 300), (6.0, 12.0, -4.0, 18.0, 2.0, 35.0, 0.0))
+
+    def h_fn(a):
+        return profile_elevation_deg(prof, a)
+
+    tilt = np.repeat([0.0, 10.0, 35.0, 62.5, 90.0], 8)
+    azim = np.tile([0.0, 45.0, 90.25, 135.0, 180.0, 225.5, 270.0, 359.75], 5)
+    together = sky_view_factor(tilt, azim, h_fn)
+    one_by_one = np.array([float(sky_view_factor(t, a, h_fn)) for t, a in zip(tilt, azim,
+                                                                                strict=True)])
+    np.testing.assert_allclose(together, one_by_one, rtol=0, atol=1e-12)
+
+
 def test_sky_view_factor_accepts_sample_values():
     n_az = 360
     az = (np.arange(n_az) + 0.5) * 360.0 / n_az

@@ -1,0 +1,622 @@
+"""Tilt study: fixed, seasonal and monthly tilt schedules, optimised for an objective.
+
+Every option is a *schedule*: one or more periods of the year, each with a tilt
+and an azimuth. Daily plane-of-array irradiation for all candidate planes comes
+from the many-plane engine in one pass, so every option is scored on the same
+sky and the same horizon.
+
+Optimisation is exact on the stated grid: candidate tilts are the tilt range at
+the tilt step (a rack with notches every 5° is optimised over the notches, not
+rounded afterwards); fixed-azimuth or free-azimuth (1° after a 5° search);
+switch dates to the day. The two-period search is exhaustive over every pair of
+switch days; the four-period search is exhaustive on a 14-day lattice, then
+refined to the day by coordinate search (stated on the option). Objectives:
+the annual total, the worst month, or a chosen set of months.
+"""
+
+from __future__ import annotations
+
+import itertools
+from dataclasses import dataclass, field
+
+import numpy as np
+import pandas as pd
+
+from .manyplane import many_plane_daily, many_plane_terms
+from .plane import poa_components
+from .site import Site
+from .skyyear import IrradianceOptions, SkyYear, sky_year
+
+OPTION_KINDS = ("horizontal", "plane", "rule-of-thumb", "fixed-optimal", "two-season",
+                "four-season", "monthly", "two-axis")
+
+MONTH_NAMES = ("January", "February", "March", "April", "May", "June", "July", "August",
+               "September", "October", "November", "December")
+
+
+@dataclass(frozen=True)
+class StudyOptions:
+    """What to optimise and under which constraints.
+
+    Attributes
+    ----------
+    irradiance : IrradianceOptions
+        Sky basis and models.
+    objective : {"annual", "worst-month", "months"}
+        Maximise the annual total, the smallest monthly total, or the total over
+        ``months``.
+    months : tuple of int
+        Months (1-12) for the ``months`` objective.
+    tilt_min_deg, tilt_max_deg, tilt_step_deg : float
+        Candidate tilts: ``tilt_min_deg`` to ``tilt_max_deg`` by ``tilt_step_deg``.
+    azimuth_deg : float or None
+        Fixed azimuth for every optimised option (the roof faces where it
+        faces); None lets the fixed optimum choose its azimuth, and schedules
+        then use the fixed optimum's azimuth.
+    min_days_between : int
+        Minimum length of a schedule period, days.
+    switch_dates : tuple of str or None
+        Fixed switch dates ("MM-DD") for the two-period schedule instead of
+        optimised ones (two dates).
+    """
+
+    irradiance: IrradianceOptions = field(default_factory=IrradianceOptions)
+    objective: str = "annual"
+    months: tuple = ()
+    tilt_min_deg: float = 0.0
+    tilt_max_deg: float = 90.0
+    tilt_step_deg: float = 1.0
+    azimuth_deg: float | None = None
+    min_days_between: int = 30
+    switch_dates: tuple | None = None
+
+    def __post_init__(self):
+        if self.objective not in ("annual", "worst-month", "months"):
+            raise ValueError(f"objective = {self.objective!r}: must be annual, worst-month or "
+                             "months=M,M,...")
+        if self.objective == "months":
+            if not self.months or any(not 1 <= int(m) <= 12 for m in self.months):
+                raise ValueError(f"months = {self.months!r}: must be month numbers 1-12")
+        if not 0.0 <= self.tilt_min_deg <= self.tilt_max_deg <= 90.0:
+            raise ValueError(f"tilt range = {self.tilt_min_deg:g}:{self.tilt_max_deg:g}: must "
+                             "satisfy 0 <= min <= max <= 90 deg")
+        if not 0.1 <= self.tilt_step_deg <= 90.0:
+            raise ValueError(f"tilt_step_deg = {self.tilt_step_deg!r}: must be between 0.1 and "
+                             "90 deg")
+        if self.azimuth_deg is not None and not 0.0 <= self.azimuth_deg <= 360.0:
+            raise ValueError(f"azimuth_deg = {self.azimuth_deg!r}: must be between 0 and 360 deg")
+        if not 1 <= int(self.min_days_between) <= 120:
+            raise ValueError(f"min_days_between = {self.min_days_between!r}: must be between 1 "
+                             "and 120 days")
+        if self.switch_dates is not None and len(self.switch_dates) != 2:
+            raise ValueError(f"switch_dates = {self.switch_dates!r}: give two dates MM-DD")
+
+    def candidate_tilts(self) -> np.ndarray:
+        """The tilts the optimiser may choose, degrees."""
+        n = int(np.floor((self.tilt_max_deg - self.tilt_min_deg) / self.tilt_step_deg + 1e-9))
+        return np.round(self.tilt_min_deg + self.tilt_step_deg * np.arange(n + 1), 6)
+
+    @property
+    def objective_label(self) -> str:
+        if self.objective == "months":
+            return "months=" + ",".join(str(int(m)) for m in self.months)
+        return self.objective
+
+
+@dataclass(frozen=True)
+class Period:
+    """One period of a schedule: from ``start`` to ``end`` inclusive ("MM-DD")."""
+
+    start: str
+    end: str
+    tilt_deg: float | None
+    azimuth_deg: float | None
+
+
+@dataclass(frozen=True)
+class StudyOption:
+    """One compared option."""
+
+    label: str
+    kind: str
+    schedule: tuple
+    monthly_kwh_m2: np.ndarray
+    annual_kwh_m2: float
+    note: str = ""
+
+    @property
+    def adjustments_per_year(self) -> int:
+        return 0 if len(self.schedule) <= 1 else len(self.schedule)
+
+
+@dataclass(frozen=True)
+class TiltStudy:
+    """The result of :func:`tilt_study`.
+
+    Attributes
+    ----------
+    options : tuple of StudyOption
+        In the order of :data:`OPTION_KINDS` (site planes in file order).
+    tilt_curve : pandas.DataFrame
+        Annual irradiation against tilt (0-90° by 1°) at ``curve_azimuth_deg``.
+    grid_pct : pandas.DataFrame
+        Annual irradiation on the tilt x azimuth grid as % of the grid optimum
+        (index tilt_deg, columns azimuth_deg).
+    warnings : tuple of str
+        Things a practitioner should look at.
+    """
+
+    site: Site
+    options_used: StudyOptions
+    options: tuple
+    tilt_curve: pd.DataFrame
+    curve_azimuth_deg: float
+    grid_pct: pd.DataFrame
+    grid_optimum: tuple
+    warnings: tuple
+    sky_note: str
+    active_months: tuple = tuple(range(1, 13))
+    worth_pct: float = 3.0
+
+    def option(self, kind: str) -> StudyOption:
+        return next(o for o in self.options if o.kind == kind)
+
+    def score(self, opt: StudyOption) -> float:
+        return _score_monthly(opt.monthly_kwh_m2[:, None], self.options_used,
+                              self._active_mask)[0]
+
+    @property
+    def _active_mask(self):
+        return np.isin(np.arange(1, 13), self.active_months)
+
+    @property
+    def recommended(self) -> StudyOption:
+        """The option to recommend under the objective.
+
+        Start from the fixed optimum and move to two, four, then twelve
+        adjustments a year only while each step raises the objective by at
+        least ``worth_pct`` percent (3 % by default: common practice, no
+        source; each adjustment costs a site visit). An existing plane is kept
+        if it is within ``worth_pct`` of the fixed optimum.
+        """
+        ladder = [self.option(k) for k in ("fixed-optimal", "two-season", "four-season",
+                                            "monthly")]
+        best = ladder[0]
+        for nxt in ladder[1:]:
+            if self.score(nxt) >= self.score(best) * (1.0 + self.worth_pct / 100.0):
+                best = nxt
+            else:
+                break
+        return best
+
+    @property
+    def recommendation_rule(self) -> str:
+        return (f"fixed optimum unless more adjustments raise the {self.options_used.objective_label}"
+                f" objective by at least {self.worth_pct:g} % per step")
+
+    def gain_pct(self, opt: StudyOption, kind: str) -> float | None:
+        base = self.option(kind).annual_kwh_m2
+        return None if base <= 0 else 100.0 * (opt.annual_kwh_m2 / base - 1.0)
+
+    def to_json_dict(self) -> dict:
+        """The ``study`` document of the command line's ``--json`` output."""
+        o = self.options_used
+        ceiling = self.option("two-axis").annual_kwh_m2
+        rows = []
+        for opt in self.options:
+            rows.append({
+                "label": opt.label, "kind": opt.kind,
+                "schedule": [{"start": p.start, "end": p.end, "tilt_deg": p.tilt_deg,
+                              "azimuth_deg": p.azimuth_deg} for p in opt.schedule],
+                "annual_kwh_m2": round(opt.annual_kwh_m2, 3),
+                "monthly_kwh_m2": [round(float(v), 3) for v in opt.monthly_kwh_m2],
+                "gain_vs_horizontal_pct": _r(self.gain_pct(opt, "horizontal")),
+                "gain_vs_fixed_optimal_pct": _r(self.gain_pct(opt, "fixed-optimal")),
+                "share_of_tracking_pct": _r(100.0 * opt.annual_kwh_m2 / ceiling
+                                            if ceiling > 0 else None),
+                "objective_value_kwh_m2": round(float(self.score(opt)), 3),
+                "adjustments_per_year": opt.adjustments_per_year,
+                "note": opt.note,
+            })
+        return {
+            "site": self.site.name, "year": o.irradiance.year, "sky": o.irradiance.sky,
+            "model": o.irradiance.model, "objective": o.objective_label,
+            "constraints": {"tilt_range_deg": [o.tilt_min_deg, o.tilt_max_deg],
+                            "tilt_step_deg": o.tilt_step_deg,
+                            "azimuth": "free" if o.azimuth_deg is None else o.azimuth_deg,
+                            "min_days_between": o.min_days_between},
+            "recommended": self.recommended.label,
+            "recommendation_rule": self.recommendation_rule,
+            "active_months": list(self.active_months),
+            "options": rows,
+            "tilt_curve": {"azimuth_deg": self.curve_azimuth_deg,
+                           "tilt_deg": self.tilt_curve.index.tolist(),
+                           "annual_kwh_m2": [round(v, 3) for v in
+                                             self.tilt_curve["annual_kwh_m2"]]},
+            "grid_optimum": {"tilt_deg": self.grid_optimum[0],
+                             "azimuth_deg": self.grid_optimum[1],
+                             "annual_kwh_m2": round(self.grid_optimum[2], 3)},
+            "warnings": list(self.warnings),
+            "sky_note": self.sky_note,
+        }
+
+
+def _r(v):
+    return None if v is None else round(float(v), 3)
+
+
+# -- scoring ------------------------------------------------------------------
+
+def _month_of_day(sky: SkyYear) -> np.ndarray:
+    days = pd.date_range(f"{sky.options.year}-01-01", periods=sky.n_days, freq="D")
+    return days.month.to_numpy()
+
+
+def _score_monthly(monthly: np.ndarray, opts: StudyOptions, active=None) -> np.ndarray:
+    """Objective value of each column of a (12, n) monthly table, kWh/m².
+
+    ``worst-month`` takes the smallest total among the ``active`` months (those
+    with daylight: a month of polar night cannot be improved by any tilt), with
+    the annual total as a tie-break worth 1e-6 of it.
+    """
+    if opts.objective == "annual":
+        return monthly.sum(axis=0)
+    if opts.objective == "worst-month":
+        act = np.ones(12, dtype=bool) if active is None else np.asarray(active, dtype=bool)
+        return monthly[act].min(axis=0) + 1e-6 * monthly.sum(axis=0)
+    idx = np.asarray(sorted({int(m) for m in opts.months})) - 1
+    return monthly[idx].sum(axis=0)
+
+
+def _monthly_from_daily(daily: np.ndarray, month_of_day: np.ndarray) -> np.ndarray:
+    out = np.zeros((12,) + daily.shape[1:])
+    np.add.at(out, month_of_day - 1, daily)
+    return out
+
+
+def _mmdd(year: int, day_index: int) -> str:
+    return (pd.Timestamp(year, 1, 1) + pd.Timedelta(days=int(day_index))).strftime("%m-%d")
+
+
+def _day_from_mmdd(year: int, text: str) -> int:
+    try:
+        ts = pd.Timestamp(f"{year}-{text}")
+    except ValueError:
+        raise ValueError(f"switch date {text!r}: expected MM-DD") from None
+    return int(ts.day_of_year) - 1
+
+
+# -- schedule search --------------------------------------------------------------
+
+def _periods_from_switches(switches, n_days):
+    """Cyclic periods [s_i, s_{i+1}) from sorted switch days."""
+    s = list(switches)
+    return [(s[i], s[(i + 1) % len(s)]) for i in range(len(s))]
+
+
+def _period_days(a, b, n_days):
+    return np.arange(a, b) if b > a else np.r_[np.arange(a, n_days), np.arange(0, b)]
+
+
+def _schedule_daily(daily: np.ndarray, switches, tilt_idx, n_days) -> np.ndarray:
+    """Daily irradiation of a schedule (tilt column per period)."""
+    out = np.empty(n_days)
+    for (a, b), t in zip(_periods_from_switches(switches, n_days), tilt_idx, strict=True):
+        d = _period_days(a, b, n_days)
+        out[d] = daily[d, t]
+    return out
+
+
+def _best_tilts_separable(cum, switches, n_days, weights_cum=None):
+    """Best tilt per period and the total, for a separable (weighted-sum) objective."""
+    total = 0.0
+    tilts = []
+    for a, b in _periods_from_switches(switches, n_days):
+        seg = cum[b] - cum[a] if b > a else (cum[n_days] - cum[a]) + cum[b]
+        t = int(np.argmax(seg))
+        tilts.append(t)
+        total += float(seg[t])
+    return tilts, total
+
+
+def _two_period_exhaustive(cum, n_days, min_days):
+    """Exhaustive search of two switch days (s1 < s2) and their best tilts."""
+    best = (-np.inf, None, None)
+    total_all = cum[n_days]
+    s1 = np.arange(n_days)
+    for length in range(min_days, n_days - min_days + 1):
+        s2 = s1 + length
+        a = s1
+        # period A = [s1, s1 + length) cyclic; B = the rest
+        wrap = s2 > n_days
+        seg_a = np.where(wrap[:, None], (total_all - cum[a]) + cum[np.minimum(s2 - n_days,
+                                                                            n_days)],
+                         cum[np.minimum(s2, n_days)] - cum[a])
+        seg_b = total_all[None, :] - seg_a
+        va, vb = seg_a.max(axis=1), seg_b.max(axis=1)
+        tot = va + vb
+        i = int(np.argmax(tot))
+        if tot[i] > best[0]:
+            sw = sorted([int(s1[i]), int(s2[i] % n_days)])
+            best = (float(tot[i]), sw, None)
+    tilts, total = _best_tilts_separable(cum, best[1], n_days)
+    return best[1], tilts, total
+
+
+def _k_period_search(cum, n_days, k, min_days, lattice=14):
+    """K switch days: exhaustive on a lattice, then refined to the day."""
+    grid = np.arange(0, n_days, lattice)
+    best_total, best_sw = -np.inf, None
+    for combo in itertools.combinations(grid.tolist(), k):
+        gaps = np.diff(list(combo) + [combo[0] + n_days])
+        if gaps.min() < min_days:
+            continue
+        _, tot = _best_tilts_separable(cum, combo, n_days)
+        if tot > best_total:
+            best_total, best_sw = tot, list(combo)
+    improved = True
+    while improved:
+        improved = False
+        for i in range(k):
+            for delta in range(-lattice, lattice + 1):
+                if delta == 0:
+                    continue
+                trial = best_sw.copy()
+                trial[i] = (trial[i] + delta) % n_days
+                if len(set(trial)) < k:
+                    continue
+                srt = sorted(trial)
+                gaps = np.diff(srt + [srt[0] + n_days])
+                if gaps.min() < min_days:
+                    continue
+                _, tot = _best_tilts_separable(cum, srt, n_days)
+                if tot > best_total + 1e-12:
+                    best_total, best_sw, improved = tot, srt, True
+    tilts, total = _best_tilts_separable(cum, best_sw, n_days)
+    return best_sw, tilts, total
+
+
+def _improve_for_objective(daily, switches, tilts, month_of_day, opts, n_days, min_days,
+                           active=None):
+    """Local search on tilts and switch days for a non-separable objective."""
+    def score(sw, tl):
+        d = _schedule_daily(daily, sw, tl, n_days)
+        return float(_score_monthly(_monthly_from_daily(d[:, None], month_of_day), opts,
+                                    active)[0])
+
+    best = score(switches, tilts)
+    sw, tl = list(switches), list(tilts)
+    improved = True
+    n_t = daily.shape[1]
+    while improved:
+        improved = False
+        for p in range(len(tl)):
+            for t in range(n_t):
+                if t == tl[p]:
+                    continue
+                trial = tl.copy()
+                trial[p] = t
+                v = score(sw, trial)
+                if v > best + 1e-12:
+                    best, tl, improved = v, trial, True
+        for i in range(len(sw)):
+            for delta in (-7, -3, -1, 1, 3, 7):
+                trial = sw.copy()
+                trial[i] = (trial[i] + delta) % n_days
+                srt = sorted(trial)
+                if len(set(srt)) < len(srt):
+                    continue
+                if np.diff(srt + [srt[0] + n_days]).min() < min_days:
+                    continue
+                order = np.argsort(trial)
+                v = score(srt, [tl[j] for j in order])
+                if v > best + 1e-12:
+                    best, sw, tl, improved = v, srt, [tl[j] for j in order], True
+    return sw, tl
+
+
+# -- the study ----------------------------------------------------------------------
+
+def tilt_study(site: Site, opts: StudyOptions | None = None) -> TiltStudy:
+    """Compare tilt options for ``site`` under ``opts``.
+
+    Parameters
+    ----------
+    site : Site
+        The site, with its horizon and existing planes.
+    opts : StudyOptions, optional
+        Objective, constraints, sky basis.
+
+    Returns
+    -------
+    TiltStudy
+
+    References
+    ----------
+    Transposition as in :mod:`tiltyard.engine.manyplane` (Perez et al. 1990;
+    Hay & Davies 1980; Liu & Jordan 1963). The rule of thumb (tilt equal to the
+    latitude, facing the equator) is common practice, no source.
+    """
+    opts = opts or StudyOptions()
+    sky = sky_year(site, opts.irradiance)
+    terms = many_plane_terms(sky)
+    n_days = sky.n_days
+    mod = _month_of_day(sky)
+    year = opts.irradiance.year
+    warnings = []
+    whole_year = (Period("01-01", "12-31", 0.0, 0.0),)
+
+    def fixed(label, kind, tilt, az, note=""):
+        r = many_plane_daily(terms, [tilt], [az], site=site)
+        m = _monthly_from_daily(r.daily_kwh_m2, mod)[:, 0]
+        sched = (Period(whole_year[0].start, whole_year[0].end, round(float(tilt), 3),
+                        round(float(az) % 360.0, 3)),)
+        return StudyOption(label, kind, sched, m, float(m.sum()), note)
+
+    options = [fixed("Horizontal", "horizontal", 0.0, site.equator_azimuth_deg,
+                     "baseline for every gain")]
+    hmon = options[0].monthly_kwh_m2
+    active = hmon > 0.01 * hmon.max()
+    active_months = tuple(int(m) for m in np.flatnonzero(active) + 1)
+
+    def score_cols(monthly):
+        return _score_monthly(monthly, opts, active)
+    for pl in site.planes:
+        options.append(fixed(pl.label, "plane", pl.tilt_deg, pl.azimuth_deg,
+                             "existing plane as it is"))
+    rot_tilt = min(abs(site.latitude_deg), 90.0)
+    options.append(fixed(f"Rule of thumb: tilt = latitude ({rot_tilt:.0f} deg)", "rule-of-thumb",
+                         rot_tilt, site.equator_azimuth_deg,
+                         "rule of thumb, not an optimum: tilt equal to |latitude|, facing the "
+                         "equator"))
+
+    # the tilt x azimuth grid: sensitivity map and the open search for the azimuth
+    g_t, g_a = np.meshgrid(np.arange(0.0, 91.0, 1.0), np.arange(0.0, 360.0, 5.0), indexing="ij")
+    grid = many_plane_daily(terms, g_t, g_a, site=site)
+    g_month = _monthly_from_daily(grid.daily_kwh_m2, mod)
+    g_annual = g_month.sum(axis=0).reshape(g_t.shape)
+    gi = np.unravel_index(int(np.argmax(g_annual)), g_annual.shape)
+    grid_opt = (float(g_t[gi]), float(g_a[gi]), float(g_annual[gi]))
+    grid_pct = pd.DataFrame(100.0 * g_annual / g_annual.max(),
+                            index=pd.Index(g_t[:, 0], name="tilt_deg"),
+                            columns=pd.Index(g_a[0], name="azimuth_deg"))
+
+    # fixed optimum on the constrained tilt candidates
+    tilts = opts.candidate_tilts()
+    if opts.azimuth_deg is not None:
+        azimuths = np.array([float(opts.azimuth_deg) % 360.0])
+    else:
+        g_score = score_cols(g_month).reshape(g_t.shape)
+        a0 = float(g_a[np.unravel_index(int(np.argmax(g_score)), g_score.shape)])
+        azimuths = np.mod(a0 + np.arange(-5.0, 5.5, 1.0), 360.0)
+    c_t, c_a = np.meshgrid(tilts, azimuths, indexing="ij")
+    cand = many_plane_daily(terms, c_t, c_a, site=site)
+    c_month = _monthly_from_daily(cand.daily_kwh_m2, mod)
+    ci = int(np.argmax(score_cols(c_month)))
+    opt_tilt, opt_az = float(c_t.ravel()[ci]), float(c_a.ravel()[ci])
+    fixed_opt = fixed(f"Optimal fixed ({opt_tilt:g} deg, azimuth {opt_az:g} deg)",
+                      "fixed-optimal", opt_tilt, opt_az,
+                      f"optimum over tilts {tilts[0]:g}-{tilts[-1]:g} by {opts.tilt_step_deg:g} "
+                      "deg" + (", azimuth fixed" if opts.azimuth_deg is not None
+                               else ", azimuth free (1 deg)"))
+    options.append(fixed_opt)
+    if opts.irradiance.sky == "clear":
+        equator = site.equator_azimuth_deg
+        off = abs((opt_az - equator + 180.0) % 360.0 - 180.0)
+        if off > 5.0 and opts.azimuth_deg is None:
+            open_site = site.with_changes(horizon=type(site.horizon)(), obstacles=())
+            og = many_plane_daily(terms_open := many_plane_terms(
+                _open_sky(sky, open_site)), g_t, g_a, site=open_site)
+            del terms_open
+            og_ann = og.daily_kwh_m2.sum(axis=0).reshape(g_t.shape)
+            oa = float(g_a[np.unravel_index(int(np.argmax(og_ann)), og_ann.shape)])
+            if abs((oa - equator + 180.0) % 360.0 - 180.0) > 5.0:
+                warnings.append(
+                    f"The clear-sky optimum azimuth ({oa:g} deg) is more than 5 deg from the "
+                    f"equator direction ({equator:g} deg) even with the horizon removed: check "
+                    "the time zone and timestamps upstream.")
+            else:
+                warnings.append(f"The optimum azimuth ({opt_az:g} deg) is {off:.0f} deg off the "
+                                "equator direction because of the site horizon.")
+
+    # schedules at the optimum's azimuth, tilt candidates only
+    sched_az = opt_az
+    s_t = tilts
+    sd = many_plane_daily(terms, s_t, np.full_like(s_t, sched_az), site=site).daily_kwh_m2
+    weights = np.ones(n_days)
+    if opts.objective == "months":
+        # other days weigh almost nothing: they only break ties in unweighted periods
+        weights = np.where(np.isin(mod, [int(m) for m in opts.months]), 1.0, 1e-6)
+    cum = np.vstack([np.zeros(len(s_t)), np.cumsum(sd * weights[:, None], axis=0)])
+    min_days = int(opts.min_days_between)
+
+    def sched_option(label, kind, switches, tilt_idx, note):
+        dd = _schedule_daily(sd, switches, tilt_idx, n_days)
+        m = _monthly_from_daily(dd[:, None], mod)[:, 0]
+        periods = []
+        for (a, b), t in zip(_periods_from_switches(switches, n_days), tilt_idx, strict=True):
+            periods.append(Period(_mmdd(year, a), _mmdd(year, (b - 1) % n_days),
+                                  float(s_t[t]), round(sched_az, 3)))
+        periods.sort(key=lambda p: p.start)
+        return StudyOption(label, kind, tuple(periods), m, float(m.sum()), note)
+
+    separable = opts.objective != "worst-month"
+    if opts.switch_dates is not None:
+        sw2 = sorted(_day_from_mmdd(year, x) for x in opts.switch_dates)
+        t2, _ = _best_tilts_separable(cum, sw2, n_days)
+        note2 = "switch dates fixed by the user"
+    else:
+        sw2, t2, _ = _two_period_exhaustive(cum, n_days, min_days)
+        note2 = "switch dates optimised to the day (exhaustive)"
+    sw4, t4, _ = _k_period_search(cum, n_days, 4, min_days)
+    note4 = "switch dates optimised to the day (14-day lattice, refined)"
+    if not separable:
+        if opts.switch_dates is None:
+            sw2, t2 = _improve_for_objective(sd, sw2, t2, mod, opts, n_days, min_days,
+                                            active)
+        sw4, t4 = _improve_for_objective(sd, sw4, t4, mod, opts, n_days, min_days, active)
+        note2 += "; worst-month objective by local search from the annual optimum"
+        note4 += "; worst-month objective by local search from the annual optimum"
+    options.append(sched_option("Two-season schedule", "two-season", sw2, t2, note2))
+    options.append(sched_option("Four-season schedule", "four-season", sw4, t4, note4))
+    # monthly: best tilt for each calendar month
+    month_starts = [int(pd.Timestamp(year, m, 1).day_of_year) - 1 for m in range(1, 13)]
+    month_cols = _monthly_from_daily(sd, mod)
+    tm = [int(np.argmax(month_cols[m] if active[m] else month_cols.sum(axis=0)))
+          for m in range(12)]
+    options.append(sched_option("Monthly schedule", "monthly", month_starts, tm,
+                                "best tilt for each calendar month"))
+    options.append(_two_axis(sky, site, mod))
+
+    # the tilt curve at the chosen azimuth
+    curve_az = opt_az
+    curve = many_plane_daily(terms, np.arange(0.0, 91.0), np.full(91, curve_az), site=site)
+    tilt_curve = pd.DataFrame({"annual_kwh_m2": curve.daily_kwh_m2.sum(axis=0)},
+                              index=pd.Index(np.arange(0.0, 91.0), name="tilt_deg"))
+    if opts.irradiance.sky == "clear":
+        warnings.append("Clear-sky basis: every figure is an upper bound, not an expected "
+                        "yield; cloudier months favour flatter tilts.")
+    inactive = [MONTH_NAMES[m][:3] for m in range(12) if not active[m]]
+    if inactive:
+        warnings.append("No useful daylight in " + ", ".join(inactive) + " (polar night or "
+                        "near it): those months are left out of the worst-month objective.")
+    return TiltStudy(site, opts, tuple(options), tilt_curve, curve_az, grid_pct, grid_opt,
+                     tuple(warnings), sky.note, active_months)
+
+
+def _open_sky(sky: SkyYear, open_site: Site) -> SkyYear:
+    """The same sky with the sun never hidden (for the timestamp sanity check)."""
+    from dataclasses import replace
+
+    up = sky.sun_up_fraction > 0
+    return replace(sky, site=open_site, sun_visible=up.copy())
+
+
+def _two_axis(sky: SkyYear, site: Site, month_of_day: np.ndarray) -> StudyOption:
+    """Two-axis tracking: the plane faces the sun at every instant (the ceiling).
+
+    Beam is blocked behind the site horizon; sky diffuse uses the open-sky view
+    factor of the tracking plane, a slight overestimate that suits a ceiling.
+
+    References
+    ----------
+    pvlib transposition as in :func:`tiltyard.engine.plane.poa_components`.
+    """
+    pos = sky.position
+    up = sky.sun_up_fraction > 0
+    tilt = np.where(up, np.clip(pos["apparent_zenith"].to_numpy(), 0.0, 90.0), 0.0)
+    az = pos["azimuth"].to_numpy()
+    poa = poa_components(tilt, az, pos["apparent_zenith"].to_numpy(), az, sky.ghi, sky.dni,
+                         sky.dhi, sky.dni_extra, sky.albedo, sky.options.model,
+                         sun_visible=sky.sun_visible, shading=None)
+    e = np.where(up, poa["poa_global"].to_numpy(), 0.0) * sky.kwh_weight
+    daily = np.bincount(sky.day_index, weights=e, minlength=sky.n_days)
+    m = _monthly_from_daily(daily[:, None], month_of_day)[:, 0]
+    return StudyOption("Two-axis tracking (ceiling, not a recommendation)", "two-axis",
+                       (Period("01-01", "12-31", None, None),), m,
+                       float(m.sum()),
+                       "upper limit: the plane follows the sun; shown only to judge the others")
+
+
+__all__ = ["OPTION_KINDS", "Period", "StudyOption", "StudyOptions", "TiltStudy", "tilt_study"]
+

@@ -1,0 +1,392 @@
+"""Tests for the ``tiltyard`` command line (tiltyard.app.cli).
+
+The contract is DESIGN.md's: exit status 0 done, 2 bad input or usage with one line on
+stderr naming file, field and reason, 1 an internal fault; ``--json`` documents with the
+listed keys. Most runs are in-process through ``main``; a few go through a real
+``python -m tiltyard`` process to check the exit status the shell sees.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import json
+import math
+import subprocess
+import sys
+from importlib.metadata import version
+from zoneinfo import ZoneInfo
+
+import numpy as np
+import pytest
+
+from tiltyard.app.cli import main
+from tiltyard.engine.site import demo_site_names, load_demo
+
+DEMOS = demo_site_names()
+MIDSUMMER = "2023-06-21"
+MIDWINTER = "2023-12-21"
+#: Solar declination at the June solstice of 2023, deg (obliquity of the ecliptic about
+#: 23.44 deg; from memory). Within 0.01 deg all day on 21 June.
+DECL_JUNE_DEG = 23.44
+
+SUN_KEYS = {"date", "timezone", "sunrise", "sunset", "solar_noon", "day_length_h",
+            "max_elevation_deg", "polar", "path"}
+PATH_KEYS = {"time", "azimuth_deg", "elevation_deg", "visible"}
+IRRADIANCE_KEYS = {"site", "year", "model", "sky", "solar_constant_w_m2", "monthly", "annual"}
+MONTHLY_KEYS = {"extraterrestrial_horizontal_kwh_m2", "ghi_kwh_m2", "poa_kwh_m2",
+                "poa_beam_kwh_m2", "poa_sky_diffuse_kwh_m2", "poa_ground_kwh_m2",
+                "horizon_loss_kwh_m2"}
+
+
+def _run(capsys, *argv):
+    """Run the command line in-process; returns (exit status, stdout, stderr)."""
+    rc = main(list(argv))
+    out, err = capsys.readouterr()
+    return rc, out, err
+
+
+def _json(capsys, *argv) -> dict:
+    rc, out, err = _run(capsys, *argv)
+    assert rc == 0, err
+    assert err == ""
+    return json.loads(out)
+
+
+def _local_time(text, tz: str) -> dt.datetime | None:
+    """Parse an ISO 8601 time that must carry the zone's own offset (or be null)."""
+    if text is None:
+        return None
+    t = dt.datetime.fromisoformat(text)
+    assert t.utcoffset() is not None, text  # ISO 8601 with offset (DESIGN.md)
+    # the offset is the zone's at that instant (IANA tz database through zoneinfo)
+    assert t.astimezone(ZoneInfo(tz)).utcoffset() == t.utcoffset(), text
+    return t
+
+
+@pytest.fixture(scope="module")
+def sun_docs():
+    """``sun DEMO --date 2023-06-21 --json`` for every demo site, run once."""
+    import contextlib
+    import io
+
+    docs = {}
+    for name in DEMOS:
+        buf = io.StringIO()
+        with contextlib.redirect_stdout(buf):
+            rc = main(["sun", name, "--date", MIDSUMMER, "--json"])
+        assert rc == 0
+        docs[name] = json.loads(buf.getvalue())["sun"]
+    return docs
+
+
+# -- basics ---------------------------------------------------------------------------
+
+def test_version(capsys):
+    rc, out, _ = _run(capsys, "--version")
+    assert rc == 0
+    assert out.strip() == f"tiltyard {version('tiltyard')}"
+
+
+def test_help_returns_zero(capsys):
+    rc, out, _ = _run(capsys, "--help")
+    assert rc == 0
+    assert "sun" in out and "irradiance" in out
+
+
+def test_sites_lists_every_demo(capsys):
+    rc, out, err = _run(capsys, "sites")
+    assert rc == 0 and err == ""
+    for name in DEMOS:
+        assert name in out
+    assert "deg" in out and "elev m" in out  # units in the table header
+    doc = _json(capsys, "sites", "--json")
+    assert [r["name"] for r in doc["sites"]] == DEMOS
+    assert doc["sites"][0]["latitude_deg"] == load_demo(DEMOS[0]).latitude_deg
+
+
+# -- sun --------------------------------------------------------------------------------
+
+@pytest.mark.parametrize("name", DEMOS)
+def test_sun_json_has_the_design_keys(sun_docs, name):
+    doc = sun_docs[name]
+    site = load_demo(name)
+    assert SUN_KEYS <= set(doc)
+    assert doc["date"] == MIDSUMMER
+    assert doc["timezone"] == site.timezone
+    rise = _local_time(doc["sunrise"], site.timezone)
+    noon = _local_time(doc["solar_noon"], site.timezone)
+    sset = _local_time(doc["sunset"], site.timezone)
+    assert noon is not None and noon.date().isoformat() == MIDSUMMER
+    assert doc["polar"] in ("day", "night", None)
+    assert isinstance(doc["day_length_h"], float) and isinstance(doc["max_elevation_deg"], float)
+    if doc["polar"] is None:
+        assert rise < noon < sset
+        assert doc["day_length_h"] == pytest.approx((sset - rise).total_seconds() / 3600,
+                                                     abs=1e-3)
+    else:
+        assert rise is None and sset is None
+    assert isinstance(doc["path"], list) and doc["path"]
+    for p in doc["path"]:
+        assert set(p) == PATH_KEYS
+        _local_time(p["time"], site.timezone)
+        assert 0.0 <= p["azimuth_deg"] <= 360.0
+        assert -1.0 <= p["elevation_deg"] <= 90.0
+        assert isinstance(p["visible"], bool)
+
+
+@pytest.mark.parametrize("name", DEMOS)
+def test_sun_noon_elevation_on_the_solstice(sun_docs, name):
+    lat = load_demo(name).latitude_deg
+    # Duffie & Beckman (2013) eq. 1.6.5 at solar noon: elevation = 90 - |lat - decl|;
+    # tolerance 0.05 deg (refraction above 30 deg elevation is under 0.03 deg, Bennett 1982)
+    assert sun_docs[name]["max_elevation_deg"] == pytest.approx(
+        90.0 - abs(lat - DECL_JUNE_DEG), abs=0.05)
+
+
+@pytest.mark.parametrize("name", [n for n in DEMOS if n != "tarnvik-cabin"])
+def test_sun_day_length_on_the_solstice(sun_docs, name):
+    phi, dec = math.radians(load_demo(name).latitude_deg), math.radians(DECL_JUNE_DEG)
+    # sunrise equation with h0 = -0.8333 deg (refraction 34' plus the sun's semi-diameter
+    # 16'): cos H0 = (sin h0 - sin phi sin d) / (cos phi cos d), day = 2 H0 / 15 deg/h
+    # (Meeus, Astronomical Algorithms 2nd ed. 1998, eq. 15.1; from memory).
+    # Tolerance 0.01 h (36 s): the declination hardly changes on the solstice.
+    cos_h0 = ((math.sin(math.radians(-0.8333)) - math.sin(phi) * math.sin(dec))
+              / (math.cos(phi) * math.cos(dec)))
+    expected_h = 2.0 * math.degrees(math.acos(cos_h0)) / 15.0
+    assert sun_docs[name]["day_length_h"] == pytest.approx(expected_h, abs=0.01)
+
+
+def test_sun_offsets_of_half_and_quarter_hour_zones(sun_docs):
+    # Asia/Colombo is UTC+05:30 and Asia/Kathmandu UTC+05:45 (IANA tz database)
+    assert sun_docs["coral-lane-clinic"]["solar_noon"].endswith("+05:30")
+    assert sun_docs["gorkha-terrace"]["solar_noon"].endswith("+05:45")
+    # Europe/London keeps summer time in June: UTC+01:00 (IANA tz database)
+    assert sun_docs["larkmoor-dairy"]["sunrise"].endswith("+01:00")
+
+
+def test_polar_day_at_the_arctic_cabin(sun_docs):
+    doc = sun_docs["tarnvik-cabin"]
+    assert doc["polar"] == "day"
+    assert doc["sunrise"] is None and doc["sunset"] is None
+    assert doc["day_length_h"] == 24.0
+    lowest = min(p["elevation_deg"] for p in doc["path"])
+    # lowest sun at the lower transit: lat + decl - 90 = 3.09 deg (Duffie & Beckman 2013,
+    # eq. 1.6.5 with hour angle 180 deg) plus refraction about 0.23 deg at that height
+    # (Bennett 1982); tolerance 0.3 deg for refraction and the 10-min sampling
+    lat = load_demo("tarnvik-cabin").latitude_deg
+    assert lowest == pytest.approx(lat + DECL_JUNE_DEG - 90.0 + 0.23, abs=0.3)
+
+
+def test_polar_night_at_the_arctic_cabin(capsys):
+    doc = _json(capsys, "sun", "tarnvik-cabin", "--date", MIDWINTER, "--json")["sun"]
+    assert doc["polar"] == "night"
+    assert doc["sunrise"] is None and doc["sunset"] is None
+    assert doc["day_length_h"] == 0.0
+    assert doc["path"] == []
+    _local_time(doc["solar_noon"], "Europe/Oslo")
+    # noon elevation 90 - (lat + |decl|) = -3.09 deg with decl = -23.44 deg on 21 December
+    # (Duffie & Beckman 2013, eq. 1.6.5; no refraction below -0.83 deg in SPA); 0.05 deg
+    lat = load_demo("tarnvik-cabin").latitude_deg
+    assert doc["max_elevation_deg"] == pytest.approx(90.0 - (lat + DECL_JUNE_DEG), abs=0.05)
+    rc, out, _ = _run(capsys, "sun", "tarnvik-cabin", "--date", MIDWINTER)
+    assert rc == 0 and "Polar night" in out
+
+
+def test_sun_human_readable_has_units(capsys):
+    rc, out, err = _run(capsys, "sun", "larkmoor-dairy", "--date", MIDSUMMER)
+    assert rc == 0 and err == ""
+    assert "sunrise" in out and "sunset" in out
+    assert " h" in out and "deg" in out and " m)" in out
+    assert "Europe/London" in out
+
+
+def test_sun_accepts_a_site_file(tmp_path, capsys):
+    from tiltyard.engine.site import save_site
+
+    path = tmp_path / "cabin.json"
+    save_site(load_demo("tarnvik-cabin"), path)
+    doc = _json(capsys, "sun", str(path), "--date", MIDSUMMER, "--json")["sun"]
+    assert doc["polar"] == "day"
+
+
+# -- irradiance -------------------------------------------------------------------------
+
+def test_irradiance_json(capsys):
+    doc = _json(capsys, "irradiance", "larkmoor-dairy", "--tilt", "30", "--azimuth", "180",
+                "--json")["irradiance"]
+    assert IRRADIANCE_KEYS <= set(doc)
+    assert doc["site"] == load_demo("larkmoor-dairy").name
+    assert (doc["model"], doc["sky"]) == ("perez", "clear")
+    assert isinstance(doc["year"], int)
+    assert doc["solar_constant_w_m2"] == pytest.approx(1361.0)  # Kopp & Lean (2011), GRL 38
+    monthly = doc["monthly"]
+    assert [m["month"] for m in monthly] == list(range(1, 13))
+    for m in monthly:
+        assert MONTHLY_KEYS <= set(m)
+        # the atmosphere only takes away: clear-sky GHI below the extraterrestrial value
+        # (physical bound, common practice)
+        assert 0.0 < m["ghi_kwh_m2"] < m["extraterrestrial_horizontal_kwh_m2"]
+        # components add up to the plane total (rounded to 1e-4 each)
+        assert m["poa_kwh_m2"] == pytest.approx(
+            m["poa_beam_kwh_m2"] + m["poa_sky_diffuse_kwh_m2"] + m["poa_ground_kwh_m2"],
+            abs=5e-4)
+        assert m["horizon_loss_kwh_m2"] >= 0.0  # this site's horizon is above 0 deg
+    assert MONTHLY_KEYS <= set(doc["annual"])
+    for key in MONTHLY_KEYS:
+        assert doc["annual"][key] == pytest.approx(sum(m[key] for m in monthly), abs=1e-3)
+
+    # annual extraterrestrial irradiation on a horizontal surface at the site's latitude:
+    # daily closed form of Duffie & Beckman (2013) eq. 1.10.3 with Spencer (1971)
+    # declination and distance factor (D&B eq. 1.6.1b, 1.4.1b; coefficients from memory),
+    # summed over 365 days.
+    # Tolerance 0.5 %: the hourly interval midpoints overstate a day's cosine integral by
+    # up to 1 - sinc(7.5 deg) = 0.29 %.
+    phi = math.radians(load_demo("larkmoor-dairy").latitude_deg)
+    b = 2.0 * np.pi * (np.arange(1, 366) - 1) / 365.0
+    dec = (0.006918 - 0.399912 * np.cos(b) + 0.070257 * np.sin(b) - 0.006758 * np.cos(2 * b)
+           + 0.000907 * np.sin(2 * b) - 0.002697 * np.cos(3 * b) + 0.00148 * np.sin(3 * b))
+    ecc = (1.000110 + 0.034221 * np.cos(b) + 0.001280 * np.sin(b) + 0.000719 * np.cos(2 * b)
+           + 0.000077 * np.sin(2 * b))
+    ws = np.arccos(np.clip(-np.tan(phi) * np.tan(dec), -1.0, 1.0))
+    h0_j_m2 = (24 * 3600 * doc["solar_constant_w_m2"] / np.pi * ecc
+               * (np.cos(phi) * np.cos(dec) * np.sin(ws) + ws * np.sin(phi) * np.sin(dec)))
+    assert doc["annual"]["extraterrestrial_horizontal_kwh_m2"] == pytest.approx(
+        h0_j_m2.sum() / 3.6e6, rel=5e-3)
+
+
+def test_irradiance_human_readable_has_units(capsys):
+    rc, out, err = _run(capsys, "irradiance", "kelpie-creek-shed", "--tilt", "20",
+                        "--azimuth", "0", "--model", "isotropic")
+    assert rc == 0 and err == ""
+    assert "kWh/m2" in out and "W/m2" in out and "deg" in out
+    assert "Jan" in out and "Dec" in out and "year" in out
+    assert "not a design" in out  # the caution line
+
+
+# -- bad input: exit 2, one line ------------------------------------------------------
+
+def _bad_lat_file(tmp_path):
+    d = {"format": "tiltyard-site", "format_version": 1, "name": "bad",
+         "latitude_deg": 91, "longitude_deg": 0}
+    path = tmp_path / "bad-lat.json"
+    path.write_text(json.dumps(d), encoding="utf-8")
+    return path
+
+
+def _bad_json_file(tmp_path):
+    path = tmp_path / "broken.json"
+    path.write_text('{"format": "tiltyard-site",\n "format_version": 1,,\n}', encoding="utf-8")
+    return path
+
+
+@pytest.mark.parametrize(("argv", "expect"), [
+    (lambda p: ["sun", str(p / "nowhere.json"), "--date", MIDSUMMER],
+     lambda p: [str(p / "nowhere.json"), "does not exist"]),
+    (lambda p: ["sun", str(_bad_json_file(p)), "--date", MIDSUMMER],
+     lambda p: [str(p / "broken.json"), "line 2, column", "not valid JSON"]),
+    (lambda p: ["sun", str(_bad_lat_file(p)), "--date", MIDSUMMER],
+     lambda p: [str(p / "bad-lat.json"), "latitude_deg", "91", "between -90 and 90"]),
+    (lambda p: ["irradiance", "larkmoor-dairy", "--tilt", "95", "--azimuth", "180"],
+     lambda p: ["--tilt", "95", "between 0 and 90"]),
+    (lambda p: ["irradiance", "larkmoor-dairy", "--tilt", "30", "--azimuth", "400"],
+     lambda p: ["--azimuth", "400", "between 0 and 360"]),
+    (lambda p: ["sun", "larkmoor-dairy", "--date", "2023-02-30"],
+     lambda p: ["--date", "2023-02-30", "day is out of range"]),
+    (lambda p: ["sun", "larkmoor-dairy", "--date", "21/06/2023"],
+     lambda p: ["--date", "YYYY-MM-DD"]),
+    (lambda p: ["sun", "no-such-demo", "--date", MIDSUMMER],
+     lambda p: ["no-such-demo", "demo site", "larkmoor-dairy"]),
+    (lambda p: ["frobnicate"], lambda p: ["frobnicate", "invalid choice"]),
+    (lambda p: ["sun", "larkmoor-dairy"], lambda p: ["--date", "required"]),
+    (lambda p: ["irradiance", "larkmoor-dairy", "--tilt", "30", "--azimuth", "180",
+                "--solar-constant", "2000"],
+     lambda p: ["solar_constant_w_m2", "2000", "between 1000 and 1500"]),
+], ids=["missing-file", "bad-json", "bad-latitude", "tilt-95", "azimuth-400", "feb-30",
+        "date-format", "unknown-demo", "unknown-subcommand", "missing-date", "solar-constant"])
+def test_bad_input_exits_2_with_one_line(tmp_path, capsys, argv, expect):
+    rc, out, err = _run(capsys, *argv(tmp_path))
+    assert rc == 2
+    assert out == ""
+    assert "Traceback" not in err
+    lines = err.strip().splitlines()
+    assert len(lines) == 1, err
+    for text in expect(tmp_path):
+        assert text in lines[0]
+
+
+# -- internal fault: exit 1 --------------------------------------------------------------
+
+def _boom(*args, **kwargs):
+    raise RuntimeError("simulated engine fault")
+
+
+def test_internal_fault_exits_1_with_one_line(capsys, monkeypatch):
+    monkeypatch.setattr("tiltyard.engine.jobs.sun_day", _boom)
+    rc, out, err = _run(capsys, "sun", "larkmoor-dairy", "--date", MIDSUMMER)
+    assert rc == 1
+    assert out == ""
+    lines = err.strip().splitlines()
+    assert len(lines) == 1
+    assert "internal fault" in lines[0] and "RuntimeError" in lines[0]
+    assert "simulated engine fault" in lines[0] and "--verbose" in lines[0]
+    assert "Traceback" not in err
+
+
+def test_internal_fault_with_verbose_shows_the_traceback(capsys, monkeypatch):
+    monkeypatch.setattr("tiltyard.engine.jobs.irradiance_year", _boom)
+    rc, _, err = _run(capsys, "--verbose", "irradiance", "larkmoor-dairy", "--tilt", "30",
+                      "--azimuth", "180")
+    assert rc == 1
+    assert "Traceback (most recent call last)" in err
+    assert "RuntimeError: simulated engine fault" in err
+    assert err.strip().splitlines()[-1].startswith("tiltyard: internal fault")
+
+
+# -- a real process ---------------------------------------------------------------------------
+
+def test_exit_status_seen_by_the_shell(tmp_path):
+    bad = _bad_lat_file(tmp_path)
+    runs = {
+        "version": ["--version"],
+        "bad-file": ["sun", str(bad), "--date", MIDSUMMER],
+        "usage": ["frobnicate"],
+    }
+    procs = {k: subprocess.Popen([sys.executable, "-m", "tiltyard", *a], stdout=subprocess.PIPE,
+                                 stderr=subprocess.PIPE, text=True, encoding="utf-8")
+             for k, a in runs.items()}  # started together, to keep the test quick
+    res = {k: (p.wait(timeout=60), *p.communicate()) for k, p in procs.items()}
+
+    rc, out, err = res["version"]
+    assert rc == 0 and out.strip() == f"tiltyard {version('tiltyard')}"
+    for key in ("bad-file", "usage"):
+        rc, out, err = res[key]
+        assert rc == 2 and out == ""
+        assert len(err.strip().splitlines()) == 1 and "Traceback" not in err
+    assert str(bad) in res["bad-file"][2] and "latitude_deg" in res["bad-file"][2]
+
+
+def test_study_json_and_table(capsys):
+    from tiltyard.app.cli import main as cli_main
+
+    assert cli_main(["study", "kelpie-creek-shed", "--json", "--tilt-range", "10:60",
+                     "--tilt-step", "5"]) == 0
+    doc = json.loads(capsys.readouterr().out)["study"]
+    for key in ("site", "year", "sky", "objective", "options"):
+        assert key in doc
+    kinds = {o["kind"] for o in doc["options"]}
+    assert kinds == {"horizontal", "plane", "rule-of-thumb", "fixed-optimal", "two-season",
+                     "four-season", "monthly", "two-axis"}
+    fixed = next(o for o in doc["options"] if o["kind"] == "fixed-optimal")
+    assert fixed["schedule"][0]["tilt_deg"] % 5 == 0
+    assert cli_main(["study", "kelpie-creek-shed", "--objective", "worst-month",
+                     "--azimuth", "0"]) == 0
+    out = capsys.readouterr().out
+    assert "kWh/m2" in out and "Recommended:" in out and "not a design" in out
+
+
+def test_study_bad_objective_is_one_line(capsys):
+    from tiltyard.app.cli import main as cli_main
+
+    assert cli_main(["study", "larkmoor-dairy", "--objective", "months=13"]) == 2
+    err = capsys.readouterr().err
+    assert err.count("\n") == 1 and "months" in err and "Traceback" not in err
