@@ -75,8 +75,9 @@ def build_parser() -> argparse.ArgumentParser:
                    help="plane azimuth clockwise from north, 0-360 (south = 180)")
     s.add_argument("--model", choices=TRANSPOSITION_MODELS, default="perez",
                    help="sky diffuse model (default perez)")
-    s.add_argument("--sky", default="clear", metavar="clear",
-                   help="sky basis: clear (clear-sky, an upper bound)")
+    s.add_argument("--sky", default="clear", metavar="clear|monthly|FILE",
+                   help="sky basis: clear (clear-sky, an upper bound), monthly (the site's 12 "
+                        "monthly mean daily GHI values) or a weather file (TMY3, TMY2, EPW)")
     s.add_argument("--clearsky", choices=CLEARSKY_MODELS, default="ineichen",
                    help="clear-sky model (default ineichen)")
     s.add_argument("--solar-constant", type=float, default=SOLAR_CONSTANT_W_M2, metavar="W_M2",
@@ -93,8 +94,9 @@ def build_parser() -> argparse.ArgumentParser:
                                    "optimal fixed plane, optimal two- and four-season and monthly "
                                    "schedules, and two-axis tracking as a ceiling.")
     s.add_argument("site", metavar="SITE")
-    s.add_argument("--sky", default="clear", metavar="clear",
-                   help="sky basis: clear (clear-sky, an upper bound)")
+    s.add_argument("--sky", default="clear", metavar="clear|monthly|FILE",
+                   help="sky basis: clear (clear-sky, an upper bound), monthly (the site's 12 "
+                        "monthly mean daily GHI values) or a weather file (TMY3, TMY2, EPW)")
     s.add_argument("--model", choices=TRANSPOSITION_MODELS, default="perez",
                    help="sky diffuse model (default perez)")
     s.add_argument("--objective", default="annual", metavar="OBJ",
@@ -115,12 +117,29 @@ def build_parser() -> argparse.ArgumentParser:
     return p
 
 
-def _study_options(args):
+def _irradiance_options(args, site, **kw):
+    """IrradianceOptions from --sky (clear, monthly or a weather file) and friends."""
     from tiltyard.engine.skyyear import IrradianceOptions
+    from tiltyard.engine.weather import WeatherImportError
+
+    sky, weather = args.sky, None
+    if sky not in ("clear", "monthly"):
+        from tiltyard.engine.allsky import load_weather_for_site
+        try:
+            weather = load_weather_for_site(sky, site)
+        except (WeatherImportError, OSError) as err:
+            raise UserError(f"--sky {sky}: {err}") from None
+        sky = "file"
+    try:
+        return IrradianceOptions(sky=sky, weather=weather, **kw)
+    except ValueError as err:
+        raise UserError(str(err)) from None
+
+
+def _study_options(args, site):
     from tiltyard.engine.tilt import StudyOptions
 
-    if args.sky != "clear":
-        raise UserError(f"--sky = {args.sky!r}: this version supports only 'clear'")
+    irr = _irradiance_options(args, site, model=args.model, year=args.year)
     obj, months = args.objective, ()
     if obj.startswith("months="):
         try:
@@ -146,7 +165,7 @@ def _study_options(args):
         switch = tuple(x.strip() for x in args.switch_dates.split(","))
     try:
         return StudyOptions(
-            irradiance=IrradianceOptions(model=args.model, sky=args.sky, year=args.year),
+            irradiance=irr,
             objective=obj, months=months, tilt_min_deg=lo, tilt_max_deg=hi,
             tilt_step_deg=args.tilt_step, azimuth_deg=azimuth, min_days_between=args.min_days,
             switch_dates=switch)
@@ -167,8 +186,8 @@ def cmd_study(args) -> int:
     from tiltyard.engine.jobs import CAUTION
     from tiltyard.engine.tilt import tilt_study
 
-    opts = _study_options(args)
     site = _load_site(args.site)
+    opts = _study_options(args, site)
     try:
         st = tilt_study(site, opts)
     except ValueError as err:
@@ -273,30 +292,31 @@ def cmd_sun(args) -> int:
 
 
 def cmd_irradiance(args) -> int:
-    from tiltyard.engine.jobs import CAUTION, IrradianceOptions, irradiance_year
+    from tiltyard.engine.jobs import CAUTION, irradiance_year
 
-    if args.sky != "clear":
-        raise UserError(f"--sky = {args.sky!r}: this version supports only 'clear'")
-    try:
-        opts = IrradianceOptions(model=args.model, sky=args.sky, clearsky_model=args.clearsky,
-                                 solar_constant_w_m2=args.solar_constant, year=args.year,
-                                 step_min=args.step)
-    except ValueError as err:
-        raise UserError(str(err)) from None
     if not 0 <= args.tilt <= 90:
         raise UserError(f"--tilt = {args.tilt:g}: must be between 0 and 90 deg")
     if not 0 <= args.azimuth <= 360:
         raise UserError(f"--azimuth = {args.azimuth:g}: must be between 0 and 360 deg "
                         "(clockwise from north)")
     site = _load_site(args.site)
-    res = irradiance_year(site, args.tilt, args.azimuth, opts)
+    opts = _irradiance_options(args, site, model=args.model, clearsky_model=args.clearsky,
+                               solar_constant_w_m2=args.solar_constant, year=args.year,
+                               step_min=args.step)
+    try:
+        res = irradiance_year(site, args.tilt, args.azimuth, opts)
+    except ValueError as err:
+        raise UserError(str(err)) from None
     if args.json:
         print(json.dumps({"irradiance": res.to_json_dict()}, indent=2, ensure_ascii=False))
         return EXIT_OK
     print(f"Irradiation on a plane at {site.name}")
     print(f"  tilt {res.surface_tilt:g} deg, azimuth {res.surface_azimuth:g} deg "
           "(clockwise from north)")
-    print(f"  sky: clear ({opts.clearsky_model}), transposition: {opts.model}, "
+    sky_text = f"clear ({opts.clearsky_model})" if opts.sky == "clear" else opts.sky
+    if opts.sky == "file":
+        sky_text = f"weather file {args.sky}"
+    print(f"  sky: {sky_text}, transposition: {opts.model}, "
           f"solar constant {opts.solar_constant_w_m2:g} W/m2, year {opts.year}, "
           f"{opts.step_min}-min intervals")
     print(f"  Linke turbidity: {res.turbidity_source}")

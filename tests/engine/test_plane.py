@@ -194,8 +194,9 @@ def test_tall_south_horizon_blocks_winter_noon_beam_only():
     s = _south_wall_year().series
     dec, jun = _noon_row(s, "2023-12-21"), _noon_row(s, "2023-06-21")
     # At 50 N on 21 December the noon sun stands 90 - 50 - 23.4 = 16.6 deg
-    # high (Duffie & Beckman 2013, eq. 1.6.5 at solar noon), under a 30 deg
-    # horizon: no beam. In June it stands 63 deg high, far above it.
+    # high (at solar noon the zenith is latitude - declination, Duffie &
+    # Beckman 2013, sec. 1.6), under a 30 deg horizon: no beam. In June it
+    # stands 63 deg high, far above it.
     assert dec["poa_direct_open"] > 100.0
     assert dec["poa_direct"] == 0.0
     assert dec["poa_circumsolar"] == 0.0

@@ -39,7 +39,7 @@ from tiltyard.engine.sun import daily_declination_eot, earth_sun_distance_au, so
 
 J_PER_KWH = 3.6e6
 YEAR = 2023  # the reference year of tiltyard.engine.timegrid
-AU_MILLION_KM = 149.5978707  # IAU 2012 Resolution B2: 1 au = 149 597 870 700 m
+AU_MILLION_KM = 149.5978707  # IAU 2012 Resolution B2: 1 au = 149 597 870 700 m # from memory
 
 
 def _fixed_position(times, apparent_zenith, zenith=None) -> pd.DataFrame:
@@ -74,8 +74,8 @@ PVLIB_INEICHEN_Z0_AM1 = {
 def test_ineichen_matches_pvlib_test_arrays_at_zenith_0(lt):
     # Our path computes the airmass itself: at apparent zenith 0 and sea level
     # Kasten & Young (1989) give 0.99971, not the published input's 1.0. The
-    # sensitivities dGHI/dAM ~ -100 W/m2 and dDNI/dAM ~ -170 W/m2 make that
-    # 0.03 and 0.05 W/m2, so the tolerance is 0.1 W/m2.
+    # sensitivities dGHI/dAM ~ -120 W/m2 and dDNI/dAM ~ -170 W/m2 (at Linke
+    # turbidity 3) make that 0.035 and 0.05 W/m2, so the tolerance is 0.1 W/m2.
     site = Site("pvlib ineichen case", 0.0, 0.0, elevation_m=0.0, linke_turbidity=(lt,) * 12)
     t = _one_instant()
     cs = clear_sky(t, _fixed_position(t, [0.0]), site, "ineichen", dni_extra=[1364.0])
@@ -338,7 +338,7 @@ def test_ineichen_is_capped_where_its_altitude_terms_overshoot():
     am = pvlib.atmosphere.get_absolute_airmass(
         pvlib.atmosphere.get_relative_airmass(pos["apparent_zenith"].to_numpy()),
         pvlib.atmosphere.alt2pres(site.elevation_m))
-    with np.errstate(invalid="ignore"):
+    with np.errstate(divide="ignore", invalid="ignore"):
         raw = pvlib.clearsky.ineichen(pos["apparent_zenith"].to_numpy(), am, lt,
                                       altitude=site.elevation_m, dni_extra=e0)
     bound = extraterrestrial_on_plane(e0, pos["apparent_zenith"], pos["apparent_zenith"])
@@ -355,18 +355,26 @@ def test_ineichen_is_capped_where_its_altitude_terms_overshoot():
     assert "capped" not in clear_sky(t, solar_position(t, low), low, "ineichen").note
 
 
-@pytest.mark.parametrize("site", INVARIANT_SITES[:3], ids=lambda s: s.name)
-def test_year_job_ghi_stays_below_extraterrestrial_horizontal(site):
+@pytest.mark.parametrize(
+    "site, hourly_tol_w_m2",
+    [(INVARIANT_SITES[0], 1e-9), (INVARIANT_SITES[1], 1e-9), (INVARIANT_SITES[2], 1e-9),
+     # capped Ineichen instants equal G_on cos(apparent zenith); the SPA
+     # refraction correction (Reda & Andreas 2008) makes that exceed
+     # G_on cos(geometric zenith) by up to 0.3 W/m2 here (measured 0.28)
+     (INVARIANT_SITES[3], 0.3)],
+    ids=lambda v: v.name if isinstance(v, Site) else str(v),
+)
+def test_year_job_ghi_stays_below_extraterrestrial_horizontal(site, hourly_tol_w_m2):
     for model in CLEARSKY_MODELS:
         res = irradiance_year(site, 0.0, 180.0, IrradianceOptions(clearsky_model=model,
                                                                   model="isotropic"))
         s = res.series
         full = s["sun_up_fraction"].to_numpy() == 1.0
-        # energy conservation (Duffie & Beckman 2013, eq. 1.10.1) for intervals
-        # with the sun up throughout, where the refracted and geometric sun
-        # are both above the horizon; tolerance 1e-9 W/m2
+        # energy conservation (Duffie & Beckman 2013, eq. 1.10.1) against the
+        # reported (geometric) extraterrestrial horizontal, for intervals with
+        # the sun up throughout; tolerance 1e-9 W/m2 (0.3 W/m2 where capped)
         assert np.all(s["ghi"].to_numpy()[full]
-                      <= s["extraterrestrial_horizontal"].to_numpy()[full] + 1e-9)
+                      <= s["extraterrestrial_horizontal"].to_numpy()[full] + hourly_tol_w_m2)
         # and every monthly total; tolerance 1e-9 kWh/m2
         m = res.monthly
         assert np.all(m["ghi_kwh_m2"] <= m["extraterrestrial_horizontal_kwh_m2"] + 1e-9)
@@ -382,8 +390,8 @@ def test_higher_site_gets_more_clear_sky_dni(model):
     dni = [clear_sky(t, pos, base.with_changes(elevation_m=h), model, e0).data["dni"].to_numpy()
            for h in (0.0, 1000.0, 2000.0, 3000.0)]
     for lower, higher in zip(dni, dni[1:], strict=False):
-        # less air above a higher site: more direct beam (Ineichen & Perez
-        # 2002; Ineichen 2008, pressure term) # common practice, no source
+        # less air above a higher site lets more direct beam through
+        # common practice, no source
         assert np.all(higher[up] > lower[up])
 
 
