@@ -135,6 +135,31 @@ def daily_h0_horizontal_closed_form_j_m2(
     )
 
 
+def incidence_coefficients(phi, delta, beta, gamma):
+    """Coefficients of ``cos(theta) = a + b cos(w) + c sin(w)`` over the hour angle ``w``.
+
+    Parameters
+    ----------
+    phi, delta, beta, gamma : array_like
+        Latitude, declination, surface slope and surface azimuth (from south,
+        west positive), all in radians. ``beta = gamma = 0`` gives the solar
+        zenith angle.
+
+    Returns
+    -------
+    (a, b, c) : tuple of numpy.ndarray
+
+    References
+    ----------
+    Duffie & Beckman (2013), eq. 1.6.2, grouped by powers of the hour angle
+    (the grouping Klein 1977 integrates).
+    """
+    a = np.sin(delta) * (np.sin(phi) * np.cos(beta) - np.cos(phi) * np.sin(beta) * np.cos(gamma))
+    b = np.cos(delta) * (np.cos(phi) * np.cos(beta) + np.sin(phi) * np.sin(beta) * np.cos(gamma))
+    c = np.cos(delta) * np.sin(beta) * np.sin(gamma)
+    return a, b, c
+
+
 def azimuth_north_to_south_based(azimuth_deg):
     """Convert azimuth clockwise from north to the textbook's surface azimuth.
 

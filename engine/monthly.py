@@ -34,6 +34,7 @@ from tiltyard.engine.geometry import (
     daily_h0_horizontal_closed_form_j_m2,
     declination_cooper_deg,
     eccentricity_factor_db,
+    incidence_coefficients,
     sunset_hour_angle_deg,
 )
 
@@ -207,11 +208,11 @@ def klein_monthly_beam_ratio(latitude_deg, declination_deg, surface_tilt, surfac
     gamma = np.radians(azimuth_north_to_south_based(azimuth))
     ws = np.radians(sunset_hour_angle_deg(lat, dec))
 
-    tilted = _daily_positive_cos_integral(*_incidence_coefficients(phi, delta, beta, gamma), ws)
+    tilted = _daily_positive_cos_integral(*incidence_coefficients(phi, delta, beta, gamma), ws)
     # The horizontal integral goes through the same arithmetic (tilt 0), so a
     # horizontal surface gets R_b == 1 to the last bit.
     zero = np.zeros_like(beta)
-    horizontal = _daily_positive_cos_integral(*_incidence_coefficients(phi, delta, zero, zero), ws)
+    horizontal = _daily_positive_cos_integral(*incidence_coefficients(phi, delta, zero, zero), ws)
     with np.errstate(divide="ignore", invalid="ignore"):
         ratio = tilted / horizontal
     return np.where(horizontal > 0.0, ratio, 0.0)
@@ -453,20 +454,6 @@ def klein_monthly_tilted(
 # ---------------------------------------------------------------------------
 # Internals
 # ---------------------------------------------------------------------------
-
-
-def _incidence_coefficients(phi, delta, beta, gamma):
-    """Coefficients of ``cos theta = a + b cos w + c sin w`` (all angles in radians).
-
-    References
-    ----------
-    Duffie & Beckman (2013), eq. 1.6.2, grouped by powers of the hour angle
-    (the grouping Klein 1977 integrates).
-    """
-    a = np.sin(delta) * (np.sin(phi) * np.cos(beta) - np.cos(phi) * np.sin(beta) * np.cos(gamma))
-    b = np.cos(delta) * (np.cos(phi) * np.cos(beta) + np.sin(phi) * np.sin(beta) * np.cos(gamma))
-    c = np.cos(delta) * np.sin(beta) * np.sin(gamma)
-    return a, b, c
 
 
 def _daily_positive_cos_integral(a, b, c, ws):

@@ -16,6 +16,7 @@ import numpy as np
 import pandas as pd
 import pvlib
 
+from .geometry import azimuth_north_to_south_based, incidence_coefficients
 from .site import Site
 from .sun import daily_declination_eot, earth_sun_distance_au, site_pressure_pa
 from .timegrid import REFERENCE_YEAR
@@ -140,14 +141,11 @@ def daily_extraterrestrial_kwh_m2(site: Site, year: int = REFERENCE_YEAR,
     delta = np.radians(de["declination_deg"].to_numpy())[:, None]
     w = np.radians(-180.0 + (np.arange(n_hour_angle) + 0.5) * 360.0 / n_hour_angle)[None, :]
     beta = np.radians(surface_tilt)
-    # azimuth of the plane measured from south, west positive (D&B gamma)
-    gamma = np.radians(((surface_azimuth - 180.0) + 180.0) % 360.0 - 180.0)
-    cos_z = np.sin(phi) * np.sin(delta) + np.cos(phi) * np.cos(delta) * np.cos(w)
-    cos_t = (np.sin(delta) * np.sin(phi) * np.cos(beta)
-             - np.sin(delta) * np.cos(phi) * np.sin(beta) * np.cos(gamma)
-             + np.cos(delta) * np.cos(phi) * np.cos(beta) * np.cos(w)
-             + np.cos(delta) * np.sin(phi) * np.sin(beta) * np.cos(gamma) * np.cos(w)
-             + np.cos(delta) * np.sin(beta) * np.sin(gamma) * np.sin(w))
+    gamma = np.radians(azimuth_north_to_south_based(surface_azimuth))
+    az, bz, _ = incidence_coefficients(phi, delta, 0.0, 0.0)
+    cos_z = az + bz * np.cos(w)
+    at, bt, ct = incidence_coefficients(phi, delta, beta, gamma)
+    cos_t = at + bt * np.cos(w) + ct * np.sin(w)
     integrand = np.where(cos_z > 0, np.maximum(cos_t, 0.0), 0.0)
     # dt = dw * 24 h / (2 pi)
     hours_per_sample = 24.0 / n_hour_angle
