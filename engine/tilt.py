@@ -307,7 +307,7 @@ def _schedule_daily(daily: np.ndarray, switches, tilt_idx, n_days) -> np.ndarray
     return out
 
 
-def _best_tilts_separable(cum, switches, n_days, weights_cum=None):
+def _best_tilts_separable(cum, switches, n_days):
     """Best tilt per period and the total, for a separable (weighted-sum) objective."""
     total = 0.0
     tilts = []
@@ -320,27 +320,26 @@ def _best_tilts_separable(cum, switches, n_days, weights_cum=None):
 
 
 def _two_period_exhaustive(cum, n_days, min_days):
-    """Exhaustive search of two switch days (s1 < s2) and their best tilts."""
-    best = (-np.inf, None, None)
+    """Exhaustive search of two switch days and their best tilts.
+
+    A two-period split is one period ``[s1, s1 + length)`` (cyclic) and the
+    rest; a length and its complement give the same splits, so lengths up to
+    half the year cover every split once.
+    """
     total_all = cum[n_days]
+    cum2 = np.vstack([cum, total_all[None, :] + cum[1:]])   # cumulative over two years
     s1 = np.arange(n_days)
-    for length in range(min_days, n_days - min_days + 1):
-        s2 = s1 + length
-        a = s1
-        # period A = [s1, s1 + length) cyclic; B = the rest
-        wrap = s2 > n_days
-        seg_a = np.where(wrap[:, None], (total_all - cum[a]) + cum[np.minimum(s2 - n_days,
-                                                                            n_days)],
-                         cum[np.minimum(s2, n_days)] - cum[a])
+    best_total, best_sw = -np.inf, None
+    for length in range(min_days, n_days // 2 + 1):
+        seg_a = cum2[s1 + length] - cum2[s1]
         seg_b = total_all[None, :] - seg_a
-        va, vb = seg_a.max(axis=1), seg_b.max(axis=1)
-        tot = va + vb
+        tot = seg_a.max(axis=1) + seg_b.max(axis=1)
         i = int(np.argmax(tot))
-        if tot[i] > best[0]:
-            sw = sorted([int(s1[i]), int(s2[i] % n_days)])
-            best = (float(tot[i]), sw, None)
-    tilts, total = _best_tilts_separable(cum, best[1], n_days)
-    return best[1], tilts, total
+        if tot[i] > best_total:
+            best_total = float(tot[i])
+            best_sw = sorted([int(s1[i]), int((s1[i] + length) % n_days)])
+    tilts, total = _best_tilts_separable(cum, best_sw, n_days)
+    return best_sw, tilts, total
 
 
 def _k_period_search(cum, n_days, k, min_days, lattice=14):
@@ -505,9 +504,8 @@ def tilt_study(site: Site, opts: StudyOptions | None = None) -> TiltStudy:
         off = abs((opt_az - equator + 180.0) % 360.0 - 180.0)
         if off > 5.0 and opts.azimuth_deg is None:
             open_site = site.with_changes(horizon=type(site.horizon)(), obstacles=())
-            og = many_plane_daily(terms_open := many_plane_terms(
-                _open_sky(sky, open_site)), g_t, g_a, site=open_site)
-            del terms_open
+            og = many_plane_daily(many_plane_terms(_open_sky(sky, open_site)), g_t, g_a,
+                                  site=open_site)
             og_ann = og.daily_kwh_m2.sum(axis=0).reshape(g_t.shape)
             oa = float(g_a[np.unravel_index(int(np.argmax(og_ann)), og_ann.shape)])
             if abs((oa - equator + 180.0) % 360.0 - 180.0) > 5.0:
@@ -520,9 +518,11 @@ def tilt_study(site: Site, opts: StudyOptions | None = None) -> TiltStudy:
                                 "equator direction because of the site horizon.")
 
     # schedules at the optimum's azimuth, tilt candidates only
+    # (the candidates' daily columns at that azimuth, already computed)
     sched_az = opt_az
     s_t = tilts
-    sd = many_plane_daily(terms, s_t, np.full_like(s_t, sched_az), site=site).daily_kwh_m2
+    ai = int(np.flatnonzero(azimuths == opt_az)[0])
+    sd = cand.daily_kwh_m2.reshape(n_days, len(tilts), len(azimuths))[:, :, ai]
     weights = np.ones(n_days)
     if opts.objective == "months":
         # other days weigh almost nothing: they only break ties in unweighted periods
