@@ -220,8 +220,7 @@ def irradiance_year(site: Site, surface_tilt: float, surface_azimuth: float,
     app_zen = pos["apparent_zenith"].to_numpy()
     zen = pos["zenith"].to_numpy()
     saz = pos["azimuth"].to_numpy()
-    up = frac > 0
-    vis = sky.sun_visible
+    vis = sky.sun_visible              # already false while the sun is down
     shading = plane_shading(site, float(surface_tilt), surface_azimuth)
     months = sky.month
     poa = poa_components(float(surface_tilt), surface_azimuth, app_zen, saz, ghi, dni, dhi,
@@ -231,7 +230,7 @@ def irradiance_year(site: Site, surface_tilt: float, surface_azimuth: float,
     series.index.name = "interval_start_utc"
     series["eval_time_utc"] = sky.times_utc
     series["sun_up_fraction"] = frac
-    series["sun_visible"] = vis & up
+    series["sun_visible"] = vis
     series["dni_extra"] = dni_extra
     series["extraterrestrial_horizontal"] = extraterrestrial_on_plane(dni_extra, zen, zen) * frac
     aoi = poa["aoi"].to_numpy()

@@ -253,11 +253,9 @@ def many_plane_daily(terms: ManyPlaneTerms, surface_tilt, surface_azimuth, site=
     if site is not None:
         def hz(a):
             return site_horizon_deg(site, a)
-        az_s = (np.arange(1440) + 0.5) * 0.25
-        h_vals = hz(az_s)
-        svf = sky_view_factor(tilt, azim, h_vals)
+        svf = sky_view_factor(tilt, azim, hz)
         iso_ratio = np.where(iso_factor > 0, svf / iso_factor, 1.0)
-        band = horizon_band_fraction(tilt, azim, h_vals)
+        band = horizon_band_fraction(tilt, azim, hz)
     else:
         svf = iso_factor.copy()
         iso_ratio = np.ones(n_planes)

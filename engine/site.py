@@ -22,7 +22,7 @@ from dataclasses import dataclass, field, replace
 from importlib import resources
 from pathlib import Path
 from typing import Any
-from zoneinfo import ZoneInfo, ZoneInfoNotFoundError, available_timezones
+from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 
 FORMAT_NAME = "tiltyard-site"
 FORMAT_VERSION = 1
@@ -520,8 +520,3 @@ def resolve_site(arg: str) -> Site:
     if p.suffix.lower() == ".json" or p.exists() or os.sep in arg:
         return load_site(p)
     return load_demo(arg)
-
-
-def known_timezones() -> set[str]:
-    """All IANA zone names known to this installation."""
-    return available_timezones()
