@@ -668,24 +668,22 @@ def _localize(labels_wall: pd.DatetimeIndex, tz: datetime.tzinfo, lines: np.ndar
     counts = pd.Series(labels_wall).groupby(labels_wall).transform("size").to_numpy()
     repeated = ambiguous & (counts >= 2)
     single = ambiguous & (counts == 1)
-    if repeated.any():
-        first = np.flatnonzero(repeated)
-        findings.append(Finding(
-            "dst_duplicate", "warning",
-            f"duplicate wall-clock timestamps at the daylight-saving fall-back of {tz.key} "
-            f"({labels_wall[first[0]]:%Y-%m-%d %H:%M}, {_lines_text(lines[first])}); "
-            "read as the repeated hour: first occurrence summer time, second standard time",
-            int(lines[first[0]]),
-        ))
-    if single.any():
-        first = np.flatnonzero(single)
-        findings.append(Finding(
-            "dst_duplicate", "warning",
-            f"ambiguous timestamps at the daylight-saving fall-back of {tz.key} appear only "
-            f"once ({labels_wall[first[0]]:%Y-%m-%d %H:%M}, {_lines_text(lines[first])}); "
-            "taken as summer time, so the standard-time hour is missing",
-            int(lines[first[0]]),
-        ))
+    for mask, what in (
+        (repeated, "duplicate wall-clock timestamps at the daylight-saving fall-back of {zone} "
+                   "({when}, {lines}); read as the repeated hour: first occurrence summer "
+                   "time, second standard time"),
+        (single, "ambiguous timestamps at the daylight-saving fall-back of {zone} appear only "
+                 "once ({when}, {lines}); taken as summer time, so the standard-time hour is "
+                 "missing"),
+    ):
+        if mask.any():
+            first = np.flatnonzero(mask)
+            findings.append(Finding(
+                "dst_duplicate", "warning",
+                what.format(zone=tz.key, when=f"{labels_wall[first[0]]:%Y-%m-%d %H:%M}",
+                            lines=_lines_text(lines[first])),
+                int(lines[first[0]]),
+            ))
     return localized
 
 
