@@ -14,12 +14,11 @@ Run: python tests/benchmarks/bench_manyplane.py
 from __future__ import annotations
 
 import resource
-import statistics
-import time
 import tracemalloc
 
 import numpy as np
 import pvlib
+from timing import median_time
 
 from tiltyard.engine.manyplane import many_plane_daily, many_plane_terms
 from tiltyard.engine.site import load_demo
@@ -27,16 +26,6 @@ from tiltyard.engine.skyyear import IrradianceOptions, sky_year
 
 REPEAT = 7
 N_LOOP_PLANES = 300
-
-
-def _median_time(fn, repeat=REPEAT):
-    fn()  # warm up
-    times = []
-    for _ in range(repeat):
-        t0 = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t0)
-    return statistics.median(times), min(times), max(times)
 
 
 def _pvlib_loop(sky, tilts, azimuths):
@@ -67,20 +56,20 @@ def main():
           f"{len(terms.rows)} with the sun up), Perez, {n_planes} planes (91 tilts x 73 "
           f"azimuths), site horizon on, {REPEAT} runs each")
 
-    med_terms, lo, hi = _median_time(lambda: many_plane_terms(sky))
+    med_terms, lo, hi = median_time(lambda: many_plane_terms(sky))
     print(f"  many_plane_terms alone                       median {med_terms * 1000:7.1f} ms"
           f"  (min {lo * 1000:.1f}, max {hi * 1000:.1f})")
-    med_grid, lo, hi = _median_time(lambda: many_plane_daily(terms, tilt, azim, site=site))
+    med_grid, lo, hi = median_time(lambda: many_plane_daily(terms, tilt, azim, site=site))
     print(f"  many_plane_daily, terms precomputed          median {med_grid * 1000:7.1f} ms"
           f"  (min {lo * 1000:.1f}, max {hi * 1000:.1f})")
-    med_a, lo, hi = _median_time(
+    med_a, lo, hi = median_time(
         lambda: many_plane_daily(many_plane_terms(sky), tilt, azim, site=site))
     print(f"  (a) terms + many_plane_daily                 median {med_a * 1000:7.1f} ms"
           f"  (min {lo * 1000:.1f}, max {hi * 1000:.1f})")
 
     rng = np.random.default_rng(0)
     pick = rng.choice(n_planes, size=N_LOOP_PLANES, replace=False)
-    med_loop, lo, hi = _median_time(lambda: _pvlib_loop(sky, tilt[pick], azim[pick]))
+    med_loop, lo, hi = median_time(lambda: _pvlib_loop(sky, tilt[pick], azim[pick]))
     med_b = med_loop * n_planes / N_LOOP_PLANES
     print(f"  (b) pvlib get_total_irradiance loop, {N_LOOP_PLANES} planes  median "
           f"{med_loop * 1000:7.1f} ms  (min {lo * 1000:.1f}, max {hi * 1000:.1f})")

@@ -8,24 +8,13 @@ Run: python tests/benchmarks/bench_year.py
 
 from __future__ import annotations
 
-import statistics
-import time
+from timing import median_time
 
 from tiltyard.engine.jobs import IrradianceOptions, irradiance_year
 from tiltyard.engine.site import load_demo
 from tiltyard.engine.sky import clear_sky
 from tiltyard.engine.sun import evaluation_points
 from tiltyard.engine.timegrid import year_grid
-
-
-def _median_time(fn, repeat=7):
-    fn()  # warm up (imports, pvlib's turbidity file)
-    times = []
-    for _ in range(repeat):
-        t0 = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t0)
-    return statistics.median(times), min(times), max(times)
 
 
 def main():
@@ -42,7 +31,7 @@ def main():
     }
     print(f"site {site.name!r}, hourly year ({len(grid)} intervals)")
     for label, fn in parts.items():
-        med, lo, hi = _median_time(fn)
+        med, lo, hi = median_time(fn)
         print(f"  {label:55s} median {med * 1000:7.1f} ms  (min {lo * 1000:.1f}, "
               f"max {hi * 1000:.1f})")
     print("  target: whole year under 300 ms median")
