@@ -37,7 +37,8 @@ EX_2_19_1_H_MJ = np.array(
     [6.44, 9.89, 12.86, 16.05, 21.36, 23.04, 22.58, 20.33, 14.59, 10.48, 6.37, 5.74]
 )
 EX_2_19_1_HT_MJ = np.array([13.7, 17.2, 15.8, 14.7, 16.6, 16.5, 16.8, 17.5, 15.6, 15.2, 11.4, 12.7])
-# Ground reflectance per month of the same example, from the same transcription
+# Duffie & Beckman (2013), Example 2.19.1: ground reflectance per month, read from
+# the same copy of the book's table as above
 # (0.7 with snow in Jan-Feb, 0.4 for the part-snow months Mar and Dec, 0.2
 # otherwise). Consistency check: with 0.7 instead of 0.4 in Mar and Dec our H_T
 # would miss the published value by ~1.0 and ~0.5 MJ/m2 there.

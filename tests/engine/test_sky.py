@@ -200,8 +200,8 @@ def test_duffie_beckman_example_1_10_1_numerical_integral():
     # 0.67 MJ/m2 per degree, i.e. +0.30 MJ/m2. The SPA Earth-Sun distance
     # gives (r0/r)^2 = 0.99358 against the textbook 0.99226 (+0.045 MJ/m2).
     # With the 0.05 MJ/m2 rounding of the published figure: 0.40 MJ/m2.
-    # Duffie & Beckman (2013), Example 1.10.1, H0 = 33.8 MJ/m2 (SOILWAT2
-    # transcription as above); tolerance 0.40 MJ/m2
+    # Duffie & Beckman (2013), Example 1.10.1, H0 = 33.8 MJ/m2 (as printed in
+    # the copy of the book's value cited above); tolerance 0.40 MJ/m2
     assert h_mj == pytest.approx(33.8, abs=0.40)
 
 
@@ -286,7 +286,7 @@ def test_perihelion_aphelion_and_the_annual_swing():
     # appears in DrylandEcology/SOILWAT2 tests/gtests/test_SW_Flow_Lib_PET.cc,
     # citing the Astronomical Almanac 2010)
     assert peri.month == 1 and 2 <= peri.day <= 5
-    # aphelion on 3-6 July # common practice, no source (same SOILWAT2 test)
+    # aphelion on 3-6 July # common practice, no source (same window as above)
     assert aph.month == 7 and 3 <= aph.day <= 6
     # Earth-Sun distance about 147.1 million km at perihelion, within 0.1
     # million km # common practice, no source
