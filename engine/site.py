@@ -16,6 +16,7 @@ import json
 import math
 import numbers
 import os
+import re
 import stat
 import tempfile
 from dataclasses import dataclass, field, replace
@@ -520,3 +521,91 @@ def resolve_site(arg: str) -> Site:
     if p.suffix.lower() == ".json" or p.exists() or os.sep in arg:
         return load_site(p)
     return load_demo(arg)
+
+
+# -- typed coordinates --------------------------------------------------------
+_DMS_RE = re.compile(
+    r"""^\s*(?P<h1>[NSEW])?\s*
+        (?P<deg>[+-]?\d+(?:[.,]\d+)?)\s*(?:°|deg|d|\s)?\s*
+        (?:(?P<min>\d+(?:[.,]\d+)?)\s*(?:'|′|m|min|\s)?\s*)?
+        (?:(?P<sec>\d+(?:[.,]\d+)?)\s*(?:"|″|''|s|sec)?\s*)?
+        (?P<h2>[NSEW])?\s*$""",
+    re.IGNORECASE | re.VERBOSE,
+)
+
+#: Ground albedo presets shown by the app, from pvlib's table of surface
+#: albedos (pvlib.albedo.SURFACE_ALBEDOS, which cites Marion (2021) and
+#: Myers (2013)); the value is always shown next to the name.
+ALBEDO_PRESETS = {
+    "grass": 0.20,
+    "fresh grass": 0.26,
+    "concrete": 0.30,
+    "asphalt": 0.12,
+    "soil": 0.17,
+    "sand": 0.40,
+    "snow": 0.65,
+    "fresh snow": 0.75,
+}
+
+
+def parse_coordinate(text: str, axis: str) -> float:
+    """Parse a typed latitude or longitude into signed decimal degrees.
+
+    Accepts decimal degrees (``53.71``, ``-2.48``, ``53,71``) and degrees,
+    minutes and seconds with a hemisphere letter before or after
+    (``53°42'36"N``, ``N 53 42 36``, ``2 28.8 W``, ``2d28m48sW``).
+
+    Parameters
+    ----------
+    text : str
+        What the user typed.
+    axis : {"latitude", "longitude"}
+        Which coordinate; decides the allowed letters (N/S or E/W) and range
+        (±90 or ±180 degrees).
+
+    Returns
+    -------
+    float
+        Degrees, north and east positive.
+
+    Raises
+    ------
+    SiteError
+        Naming ``latitude_deg`` or ``longitude_deg``, the text and the
+        accepted forms or range.
+
+    Notes
+    -----
+    Sexagesimal notation: 1° = 60′ = 3600″ (common practice, no source).
+    """
+    if axis not in ("latitude", "longitude"):
+        raise ValueError(f"axis must be 'latitude' or 'longitude', not {axis!r}")
+    field_name = f"{axis}_deg"
+    letters, limit = ("NS", 90.0) if axis == "latitude" else ("EW", 180.0)
+    m = _DMS_RE.match(text or "")
+    if not m or (m.group("h1") and m.group("h2")):
+        raise SiteError(field_name, text, "is not a coordinate; type decimal degrees "
+                        f"(e.g. {'53.71' if axis == 'latitude' else '-2.48'}) or degrees "
+                        f"minutes seconds with {letters[0]}/{letters[1]}")
+    hemi = (m.group("h1") or m.group("h2") or "").upper()
+    if hemi and hemi not in letters:
+        raise SiteError(field_name, text, f"uses '{hemi}'; a {axis} takes {letters[0]} or "
+                        f"{letters[1]}")
+    deg = float(m.group("deg").replace(",", "."))
+    minutes = float((m.group("min") or "0").replace(",", "."))
+    seconds = float((m.group("sec") or "0").replace(",", "."))
+    if minutes >= 60 or seconds >= 60:
+        raise SiteError(field_name, text, "minutes and seconds must be below 60")
+    if (m.group("min") or m.group("sec")) and m.group("deg").strip().lstrip("+-") != \
+            m.group("deg").strip().lstrip("+-").split(".")[0]:
+        raise SiteError(field_name, text, "decimal degrees cannot be followed by minutes")
+    sign = -1.0 if deg < 0 or m.group("deg").startswith("-") else 1.0
+    value = abs(deg) + minutes / 60.0 + seconds / 3600.0
+    if hemi:
+        if sign < 0:
+            raise SiteError(field_name, text, "use either a minus sign or a hemisphere letter")
+        sign = -1.0 if hemi in "SW" else 1.0
+    value *= sign
+    if not -limit <= value <= limit:
+        raise SiteError(field_name, text, f"must be between -{limit:g} and {limit:g} deg")
+    return value

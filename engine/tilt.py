@@ -17,6 +17,7 @@ the annual total, the worst month, or a chosen set of months.
 from __future__ import annotations
 
 import itertools
+from collections.abc import Callable
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -416,7 +417,8 @@ def _improve_for_objective(daily, switches, tilts, month_of_day, opts, n_days, m
 
 # -- the study ----------------------------------------------------------------------
 
-def tilt_study(site: Site, opts: StudyOptions | None = None) -> TiltStudy:
+def tilt_study(site: Site, opts: StudyOptions | None = None,
+               progress: Callable[[float, str], None] | None = None) -> TiltStudy:
     """Compare tilt options for ``site`` under ``opts``.
 
     Parameters
@@ -425,6 +427,9 @@ def tilt_study(site: Site, opts: StudyOptions | None = None) -> TiltStudy:
         The site, with its horizon and existing planes.
     opts : StudyOptions, optional
         Objective, constraints, sky basis.
+    progress : callable, optional
+        Called as ``progress(fraction, stage)`` between stages; a caller that
+        wants to cancel raises from it and the exception propagates.
 
     Returns
     -------
@@ -437,7 +442,10 @@ def tilt_study(site: Site, opts: StudyOptions | None = None) -> TiltStudy:
     latitude, facing the equator) is common practice, no source.
     """
     opts = opts or StudyOptions()
+    report = progress or (lambda fraction, stage: None)
+    report(0.0, "sun and sky for the year")
     sky = sky_year(site, opts.irradiance)
+    report(0.25, "transposition terms")
     terms = many_plane_terms(sky)
     n_days = sky.n_days
     mod = _month_of_day(sky)
@@ -471,6 +479,7 @@ def tilt_study(site: Site, opts: StudyOptions | None = None) -> TiltStudy:
 
     # the tilt x azimuth grid: sensitivity map and the open search for the azimuth
     g_t, g_a = np.meshgrid(np.arange(0.0, 91.0, 1.0), np.arange(0.0, 360.0, 5.0), indexing="ij")
+    report(0.35, "tilt and azimuth grid")
     grid = many_plane_daily(terms, g_t, g_a, site=site)
     g_month = _monthly_from_daily(grid.daily_kwh_m2, mod)
     g_annual = g_month.sum(axis=0).reshape(g_t.shape)
@@ -540,6 +549,7 @@ def tilt_study(site: Site, opts: StudyOptions | None = None) -> TiltStudy:
         periods.sort(key=lambda p: p.start)
         return StudyOption(label, kind, tuple(periods), m, float(m.sum()), note)
 
+    report(0.6, "seasonal schedules")
     separable = opts.objective != "worst-month"
     if opts.switch_dates is not None:
         sw2 = sorted(_day_from_mmdd(year, x) for x in opts.switch_dates)
@@ -566,6 +576,7 @@ def tilt_study(site: Site, opts: StudyOptions | None = None) -> TiltStudy:
           for m in range(12)]
     options.append(sched_option("Monthly schedule", "monthly", month_starts, tm,
                                 "best tilt for each calendar month"))
+    report(0.85, "two-axis ceiling")
     options.append(_two_axis(sky, site, mod))
 
     # the tilt curve at the chosen azimuth

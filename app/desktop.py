@@ -1,0 +1,35 @@
+"""Start the desktop app: ``tiltyard [SITE]``."""
+
+from __future__ import annotations
+
+import sys
+
+from tiltyard.engine.site import DEFAULT_DEMO, demo_site_names, load_demo, load_site
+
+
+def create_window(site_arg: str | None = None):
+    """Build the main window on SITE (a file or a demo name), or the default demo.
+
+    Raises SiteError for a bad site, before any window exists.
+    """
+    from .main_window import MainWindow
+    if site_arg is None:
+        return MainWindow(load_demo(DEFAULT_DEMO), demo_name=DEFAULT_DEMO)
+    if site_arg in demo_site_names():
+        return MainWindow(load_demo(site_arg), demo_name=site_arg)
+    return MainWindow(load_site(site_arg), site_path=site_arg)
+
+
+def run(site_arg: str | None = None, argv: list[str] | None = None) -> int:
+    """Open the app and run its event loop; returns the exit status."""
+    from PySide6.QtWidgets import QApplication
+
+    from . import settings, theme
+    app = QApplication.instance() or QApplication(argv or sys.argv[:1])
+    app.setOrganizationName(settings.ORGANISATION)
+    app.setApplicationName(settings.APPLICATION)
+    theme.apply(app)
+    window = create_window(site_arg)
+    window.show()
+    window.offer_recovery()
+    return app.exec()

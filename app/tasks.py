@@ -1,0 +1,221 @@
+"""Engine work off the GUI thread: debounced, cancellable, one live task per channel.
+
+A view asks for a result by channel name ("sun path", "study", ...). The
+request waits out a short debounce (edits arrive in bursts); when it starts,
+any older task on the same channel is cancelled and its result, should it
+still arrive, is dropped. Engine functions that take a ``progress`` callable
+get one that reports to the status bar and raises :class:`Cancelled` once the
+task has been cancelled, so long work stops at its next stage.
+
+Errors in a worker are caught and delivered as a message with the traceback
+kept for reporting; nothing is raised into Qt's event loop.
+"""
+
+from __future__ import annotations
+
+import itertools
+import threading
+import traceback
+from collections.abc import Callable
+from dataclasses import dataclass, field
+
+from PySide6.QtCore import QObject, QRunnable, QThreadPool, QTimer, Signal
+
+from tiltyard.engine.site import SiteError
+
+#: Debounce between the last edit and the start of the computation, ms.
+DEBOUNCE_MS = 150
+
+
+class Cancelled(Exception):
+    """Raised inside a worker when its task has been cancelled."""
+
+
+@dataclass
+class _Task:
+    channel: str
+    generation: int
+    fn: Callable
+    on_result: Callable | None
+    label: str
+    cancel_event: threading.Event = field(default_factory=threading.Event)
+
+    def progress(self, fraction: float, stage: str = "") -> None:
+        if self.cancel_event.is_set():
+            raise Cancelled()
+
+
+class _Bridge(QObject):
+    """Lives in the GUI thread; worker threads emit through it (queued)."""
+
+    done = Signal(object, object)          # task, result
+    failed = Signal(object, str, str)      # task, message, traceback
+    progressed = Signal(object, float, str)
+    cancelled = Signal(object)
+
+
+class _Runnable(QRunnable):
+    def __init__(self, task: _Task, bridge: _Bridge):
+        super().__init__()
+        self.setAutoDelete(True)
+        self._task = task
+        self._bridge = bridge
+
+    def run(self):  # worker thread
+        task = self._task
+
+        def progress(fraction: float, stage: str = ""):
+            task.progress(fraction, stage)
+            self._bridge.progressed.emit(task, float(fraction), stage)
+
+        try:
+            if task.cancel_event.is_set():
+                raise Cancelled()
+            result = task.fn(progress)
+        except Cancelled:
+            self._bridge.cancelled.emit(task)
+        except (SiteError, ValueError) as exc:
+            self._bridge.failed.emit(task, str(exc), traceback.format_exc())
+        except Exception as exc:  # noqa: BLE001 - every worker fault becomes a visible message
+            self._bridge.failed.emit(task, f"internal fault: {type(exc).__name__}: {exc}",
+                                     traceback.format_exc())
+        else:
+            self._bridge.done.emit(task, result)
+
+
+class TaskRunner(QObject):
+    """Runs engine jobs in a thread pool, one live task per channel.
+
+    Signals
+    -------
+    busy(bool)
+        True while any task is queued or running.
+    progress(str, float, str)
+        Channel label, fraction 0..1 and stage text.
+    error(str, str, str)
+        Channel, one-line message and traceback of a failed task.
+    """
+
+    busy = Signal(bool)
+    progress = Signal(str, float, str)
+    error = Signal(str, str, str)
+    finished = Signal(str)
+
+    def __init__(self, parent=None, max_threads: int = 2):
+        super().__init__(parent)
+        self._pool = QThreadPool(self)
+        self._pool.setMaxThreadCount(max_threads)
+        self._bridge = _Bridge(self)
+        self._bridge.done.connect(self._on_done)
+        self._bridge.failed.connect(self._on_failed)
+        self._bridge.progressed.connect(self._on_progress)
+        self._bridge.cancelled.connect(self._on_cancelled)
+        self._gen = itertools.count(1)
+        self._live: dict[str, _Task] = {}
+        self._running: set[int] = set()
+        self._pending: dict[str, tuple] = {}
+        self._timers: dict[str, QTimer] = {}
+        self._closed = False
+
+    # -- requests -------------------------------------------------------------
+    def submit(self, channel: str, fn: Callable, on_result: Callable | None = None,
+               label: str | None = None, debounce_ms: int = DEBOUNCE_MS) -> None:
+        """Ask for ``fn(progress)`` to run on ``channel`` after the debounce.
+
+        A later submit on the same channel replaces this one (if it has not
+        started) or cancels it (if it has).
+        """
+        if self._closed:
+            return
+        self._pending[channel] = (fn, on_result, label or channel)
+        timer = self._timers.get(channel)
+        if timer is None:
+            timer = QTimer(self)
+            timer.setSingleShot(True)
+            timer.timeout.connect(lambda ch=channel: self._start(ch))
+            self._timers[channel] = timer
+        timer.start(max(0, int(debounce_ms)))
+        self._emit_busy()
+
+    def cancel(self, channel: str | None = None) -> None:
+        """Cancel the pending and running task of a channel (all channels if None)."""
+        channels = list(self._live) + list(self._pending) if channel is None else [channel]
+        for ch in channels:
+            self._pending.pop(ch, None)
+            timer = self._timers.get(ch)
+            if timer is not None:
+                timer.stop()
+            task = self._live.get(ch)
+            if task is not None:
+                task.cancel_event.set()
+        self._emit_busy()
+
+    def is_busy(self) -> bool:
+        return bool(self._pending) or bool(self._running)
+
+    def shutdown(self, timeout_ms: int = 30000) -> bool:
+        """Cancel everything and wait for the worker threads to finish."""
+        self._closed = True
+        self.cancel(None)
+        for timer in self._timers.values():
+            timer.stop()
+        return self._pool.waitForDone(timeout_ms)
+
+    def active_thread_count(self) -> int:
+        return self._pool.activeThreadCount()
+
+    # -- internals ------------------------------------------------------------
+    def _start(self, channel: str) -> None:
+        item = self._pending.pop(channel, None)
+        if item is None or self._closed:
+            self._emit_busy()
+            return
+        fn, on_result, label = item
+        old = self._live.get(channel)
+        if old is not None:
+            old.cancel_event.set()
+        task = _Task(channel, next(self._gen), fn, on_result, label)
+        self._live[channel] = task
+        self._running.add(task.generation)
+        self.progress.emit(label, 0.0, "started")
+        self._pool.start(_Runnable(task, self._bridge))
+        self._emit_busy()
+
+    def _current(self, task: _Task) -> bool:
+        return self._live.get(task.channel) is task and not task.cancel_event.is_set()
+
+    def _retire(self, task: _Task) -> None:
+        self._running.discard(task.generation)
+        if self._live.get(task.channel) is task:
+            del self._live[task.channel]
+        self._emit_busy()
+
+    def _on_done(self, task: _Task, result) -> None:
+        current = self._current(task)
+        self._retire(task)
+        if current and not self._closed:
+            if task.on_result is not None:
+                try:
+                    task.on_result(result)
+                except Exception as exc:  # noqa: BLE001 - a view fault must not kill the app
+                    self.error.emit(task.label, f"could not show the result: {exc}",
+                                    traceback.format_exc())
+            self.progress.emit(task.label, 1.0, "done")
+            self.finished.emit(task.channel)
+
+    def _on_failed(self, task: _Task, message: str, tb: str) -> None:
+        current = self._current(task)
+        self._retire(task)
+        if current and not self._closed:
+            self.error.emit(task.label, message, tb)
+            self.finished.emit(task.channel)
+
+    def _on_progress(self, task: _Task, fraction: float, stage: str) -> None:
+        if self._current(task):
+            self.progress.emit(task.label, fraction, stage)
+
+    def _on_cancelled(self, task: _Task) -> None:
+        self._retire(task)
+
+    def _emit_busy(self) -> None:
+        self.busy.emit(self.is_busy())

@@ -1,0 +1,124 @@
+"""Tiltyard's look: a calm light theme, one accent colour, colour-vision-safe series.
+
+- Categorical series use the Okabe-Ito palette (M. Okabe and K. Ito, "Color
+  Universal Design (CUD): how to make figures and presentations that are
+  friendly to colorblind people", 2008), which stays distinguishable for the
+  common colour-vision deficiencies; lines also differ in dash pattern so they
+  read in greyscale.
+- Months use a perceptual sequential ramp (viridis, van der Walt and Smith,
+  matplotlib 2015), trimmed before its palest yellow so every month reads on
+  white.
+"""
+
+from __future__ import annotations
+
+import pyqtgraph as pg
+from PySide6.QtCore import Qt
+from PySide6.QtGui import QColor, QFont, QPalette
+from PySide6.QtWidgets import QApplication
+
+ACCENT = "#2f6d8c"          # slate blue: selection, bold day path, recommended option
+ACCENT_SOFT = "#dfeaf1"
+TEXT = "#1f2328"
+MUTED = "#5b6570"
+SURFACE = "#fbfbf9"
+PANEL = "#f1f2ef"
+GRID = "#d5d8d3"
+ERROR = "#b3261e"
+WARNING = "#8a5a00"
+HORIZON_FILL = (90, 96, 88, 150)   # the ground and obstacles below the horizon line
+HORIZON_LINE = "#4a4f47"
+
+#: Okabe-Ito (2008) in their published order, black first.
+CATEGORICAL = ("#000000", "#E69F00", "#56B4E9", "#009E73", "#F0E442", "#0072B2",
+               "#D55E00", "#CC79A7")
+#: Order used for series on white (the yellow is too pale for thin lines; it goes last).
+SERIES = ("#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9", "#000000",
+          "#F0E442")
+DASHES = (Qt.PenStyle.SolidLine, Qt.PenStyle.DashLine, Qt.PenStyle.DotLine,
+          Qt.PenStyle.DashDotLine, Qt.PenStyle.DashDotDotLine)
+
+
+def series_pen(i: int, width: float = 2.0, dashed: bool = True):
+    """Pen for the i-th categorical series (colour and, for i >= 1, a dash pattern)."""
+    pen = pg.mkPen(SERIES[i % len(SERIES)], width=width)
+    if dashed:
+        pen.setStyle(DASHES[(i // 1) % len(DASHES)] if i < len(DASHES) else DASHES[0])
+    return pen
+
+
+def series_color(i: int) -> QColor:
+    return QColor(SERIES[i % len(SERIES)])
+
+
+def month_color(month: int) -> QColor:
+    """Colour of month 1..12 on the trimmed viridis ramp."""
+    cmap = pg.colormap.get("viridis")
+    return cmap.map(0.05 + 0.80 * (month - 1) / 11.0, mode="qcolor")
+
+
+def percent_colormap():
+    """Sequential map for 'percent of the optimum' grids."""
+    return pg.colormap.get("cividis")
+
+
+STYLE_SHEET = f"""
+QMainWindow, QDialog {{ background: {SURFACE}; }}
+QWidget {{ color: {TEXT}; }}
+QListWidget#navigation {{ background: {PANEL}; border: none; font-size: 11pt; }}
+QListWidget#navigation::item {{ padding: 10px 14px; }}
+QListWidget#navigation::item:selected {{ background: {ACCENT}; color: white; }}
+QLabel.fieldError, QLabel[role="fieldError"] {{ color: {ERROR}; }}
+QLabel[role="muted"] {{ color: {MUTED}; }}
+QLabel[role="caution"] {{ color: {MUTED}; font-size: 9pt; }}
+QLabel[role="heading"] {{ font-size: 13pt; font-weight: 600; }}
+QLabel[role="figure"] {{ font-size: 12pt; font-weight: 600; color: {ACCENT}; }}
+QFrame#banner[level="error"] {{ background: #f9e3e1; border: 1px solid {ERROR}; }}
+QFrame#banner[level="warning"] {{ background: #fbf0d9; border: 1px solid {WARNING}; }}
+QFrame#banner[level="info"] {{ background: {ACCENT_SOFT}; border: 1px solid {ACCENT}; }}
+QGroupBox {{ font-weight: 600; margin-top: 14px; }}
+QGroupBox::title {{ subcontrol-origin: margin; left: 6px; padding: 0 3px; }}
+QTableView {{ gridline-color: {GRID}; selection-background-color: {ACCENT_SOFT};
+             selection-color: {TEXT}; }}
+QHeaderView::section {{ background: {PANEL}; padding: 4px; border: none;
+                       border-bottom: 1px solid {GRID}; font-weight: 600; }}
+QLineEdit[invalid="true"] {{ border: 1px solid {ERROR}; background: #fdf3f2; }}
+"""
+
+
+def apply(app: QApplication) -> None:
+    """Apply the theme to the application and to pyqtgraph's defaults."""
+    app.setStyle("Fusion")
+    pal = app.palette()
+    pal.setColor(QPalette.ColorRole.Window, QColor(SURFACE))
+    pal.setColor(QPalette.ColorRole.Base, QColor("#ffffff"))
+    pal.setColor(QPalette.ColorRole.AlternateBase, QColor(PANEL))
+    pal.setColor(QPalette.ColorRole.Text, QColor(TEXT))
+    pal.setColor(QPalette.ColorRole.WindowText, QColor(TEXT))
+    pal.setColor(QPalette.ColorRole.Highlight, QColor(ACCENT))
+    pal.setColor(QPalette.ColorRole.HighlightedText, QColor("#ffffff"))
+    app.setPalette(pal)
+    font = app.font()
+    if font.pointSizeF() < 9.5:
+        font.setPointSizeF(9.5)
+    app.setFont(font)
+    app.setStyleSheet(STYLE_SHEET)
+    pg.setConfigOptions(background="w", foreground=TEXT, antialias=True)
+
+
+def plot_font(size_pt: float = 9.0) -> QFont:
+    f = QFont()
+    f.setPointSizeF(size_pt)
+    return f
+
+
+def style_plot(plot: pg.PlotItem, left: str, bottom: str) -> None:
+    """Axis labels with units and a light grid, the same on every chart."""
+    plot.showGrid(x=True, y=True, alpha=0.25)
+    plot.setLabel("left", left)
+    plot.setLabel("bottom", bottom)
+    for name in ("left", "bottom"):
+        ax = plot.getAxis(name)
+        ax.setPen(pg.mkPen(MUTED))
+        ax.setTextPen(pg.mkPen(TEXT))
+        ax.setTickFont(plot_font(9))

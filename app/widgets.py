@@ -1,0 +1,237 @@
+"""Small widgets shared by the views: the message banner, the view base class,
+validated text fields and a copyable table."""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+
+from PySide6.QtCore import Qt, QTimer, Signal
+from PySide6.QtGui import QGuiApplication, QKeySequence, QShortcut
+from PySide6.QtWidgets import (
+    QFrame,
+    QHBoxLayout,
+    QLabel,
+    QLineEdit,
+    QTableView,
+    QToolButton,
+    QVBoxLayout,
+    QWidget,
+)
+
+from tiltyard.engine.jobs import CAUTION
+from tiltyard.engine.site import SiteError
+
+
+class MessageBanner(QFrame):
+    """A non-modal message strip above the views; closes on request."""
+
+    def __init__(self, parent=None):
+        super().__init__(parent)
+        self.setObjectName("banner")
+        lay = QHBoxLayout(self)
+        lay.setContentsMargins(10, 6, 6, 6)
+        self.label = QLabel()
+        self.label.setWordWrap(True)
+        self.label.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
+        close = QToolButton()
+        close.setText("×")
+        close.setToolTip("Dismiss this message")
+        close.clicked.connect(self.hide)
+        lay.addWidget(self.label, 1)
+        lay.addWidget(close, 0, Qt.AlignmentFlag.AlignTop)
+        self.details = ""
+        self.hide()
+
+    def show_message(self, level: str, text: str, details: str = "") -> None:
+        self.setProperty("level", level)
+        self.style().unpolish(self)
+        self.style().polish(self)
+        prefix = {"error": "Problem: ", "warning": "Note: ", "info": ""}.get(level, "")
+        self.label.setText(prefix + text)
+        self.details = details
+        self.setToolTip(details[-2000:] if details else "")
+        self.show()
+
+    @property
+    def level(self) -> str:
+        return str(self.property("level") or "")
+
+    @property
+    def text(self) -> str:
+        return self.label.text()
+
+
+class CautionLabel(QLabel):
+    """The standing caution shown under every figure that could be built on."""
+
+    def __init__(self, parent=None):
+        super().__init__(CAUTION, parent)
+        self.setProperty("role", "caution")
+        self.setWordWrap(True)
+
+
+class View(QWidget):
+    """Base of the six views. Subclasses compute through ``ctx.runner`` only.
+
+    A view is told about a new site through :meth:`site_changed`; it recomputes
+    at once when visible and marks itself stale otherwise, catching up in
+    :meth:`activated`.
+    """
+
+    title = "View"
+
+    def __init__(self, ctx, parent=None):
+        super().__init__(parent)
+        self.ctx = ctx
+        self._stale = True
+        ctx.document.site_changed.connect(self._on_site_changed)
+
+    def _on_site_changed(self, site) -> None:
+        self._stale = True
+        if self.isVisible():
+            self.refresh()
+
+    def mark_stale(self) -> None:
+        self._stale = True
+        if self.isVisible():
+            self.refresh()
+
+    def activated(self) -> None:
+        if self._stale:
+            self.refresh()
+
+    def refresh(self) -> None:
+        """Start the computations this view shows (results arrive asynchronously)."""
+        self._stale = False
+
+    def channel(self, name: str = "") -> str:
+        return f"{self.title}:{name}" if name else self.title
+
+
+class ValidatedField(QWidget):
+    """A line edit with its message beside it.
+
+    ``parse(text)`` returns a value or raises SiteError/ValueError. The message
+    shows as soon as the text is invalid; a valid value is emitted as
+    ``accepted(value)`` once typing pauses (``COMMIT_MS``) or the field loses
+    focus, so the half-typed "9" of "95" never reaches the site. An invalid
+    text emits nothing: the last good value stays everywhere.
+    """
+
+    accepted = Signal(object)
+    COMMIT_MS = 300
+
+    def __init__(self, parse: Callable[[str], object], placeholder: str = "",
+                 unit: str = "", parent=None):
+        super().__init__(parent)
+        self._parse = parse
+        lay = QVBoxLayout(self)
+        lay.setContentsMargins(0, 0, 0, 0)
+        lay.setSpacing(1)
+        row = QHBoxLayout()
+        row.setContentsMargins(0, 0, 0, 0)
+        self.edit = QLineEdit()
+        self.edit.setPlaceholderText(placeholder)
+        row.addWidget(self.edit, 1)
+        if unit:
+            u = QLabel(unit)
+            u.setProperty("role", "muted")
+            u.setMinimumWidth(28)
+            row.addWidget(u)
+        lay.addLayout(row)
+        self.error = QLabel()
+        self.error.setProperty("role", "fieldError")
+        self.error.setWordWrap(True)
+        self.error.hide()
+        lay.addWidget(self.error)
+        self._pending = False
+        self._timer = QTimer(self)
+        self._timer.setSingleShot(True)
+        self._timer.setInterval(self.COMMIT_MS)
+        self._timer.timeout.connect(self.commit)
+        self.edit.textEdited.connect(self._on_edit)
+        self.edit.editingFinished.connect(self.commit)
+
+    def _check(self, text: str):
+        try:
+            value = self._parse(text)
+        except (SiteError, ValueError) as exc:
+            self.set_error(_reason(exc))
+            return None, False
+        self.set_error("")
+        return value, True
+
+    def _on_edit(self, text: str) -> None:
+        _, ok = self._check(text)
+        self._pending = ok
+        if ok:
+            self._timer.start()
+        else:
+            self._timer.stop()
+
+    def commit(self) -> None:
+        """Emit the typed value now if it is valid (pending edits only)."""
+        if not self._pending:
+            return
+        self._pending = False
+        self._timer.stop()
+        value, ok = self._check(self.edit.text())
+        if ok:
+            self.accepted.emit(value)
+
+    def set_error(self, message: str) -> None:
+        self.error.setText(message)
+        self.error.setVisible(bool(message))
+        self.edit.setProperty("invalid", bool(message))
+        self.edit.style().unpolish(self.edit)
+        self.edit.style().polish(self.edit)
+
+    def set_text(self, text: str) -> None:
+        """Show a value coming from the site (no signal)."""
+        if self.edit.text() != text and not self.edit.hasFocus():
+            self.edit.setText(text)
+            self.set_error("")
+
+    @property
+    def message(self) -> str:
+        return self.error.text() if self.error.isVisible() or self.error.text() else ""
+
+
+def _reason(exc: Exception) -> str:
+    if isinstance(exc, SiteError):
+        return f"{exc.value!r}: {exc.reason}" if hasattr(exc, "reason") else str(exc)
+    return str(exc)
+
+
+class CopyableTable(QTableView):
+    """A table view whose selection (or everything) copies as tab-separated text."""
+
+    def __init__(self, parent=None):
+        super().__init__(parent)
+        self.setSortingEnabled(True)
+        self.setAlternatingRowColors(True)
+        self.setSelectionBehavior(QTableView.SelectionBehavior.SelectRows)
+        self.verticalHeader().setVisible(False)
+        sc = QShortcut(QKeySequence.StandardKey.Copy, self)
+        sc.activated.connect(self.copy_to_clipboard)
+
+    def as_tsv(self, selected_only: bool = False) -> str:
+        model = self.model()
+        if model is None:
+            return ""
+        rows = range(model.rowCount())
+        if selected_only and self.selectionModel() is not None:
+            picked = sorted({i.row() for i in self.selectionModel().selectedIndexes()})
+            if picked:
+                rows = picked
+        cols = [c for c in range(model.columnCount()) if not self.isColumnHidden(c)]
+        head = [str(model.headerData(c, Qt.Orientation.Horizontal)) for c in cols]
+        lines = ["\t".join(head)]
+        for r in rows:
+            lines.append("\t".join(str(model.index(r, c).data() or "") for c in cols))
+        return "\n".join(lines) + "\n"
+
+    def copy_to_clipboard(self) -> str:
+        text = self.as_tsv(selected_only=True)
+        QGuiApplication.clipboard().setText(text)
+        return text
