@@ -59,6 +59,19 @@ class StudyOptions:
     switch_dates : tuple of str or None
         Fixed switch dates ("MM-DD") for the two-period schedule instead of
         optimised ones (two dates).
+    row_tilt_deg : float or None
+        Tilt of the rows laid out for a flat roof or field (pitch and ground
+        coverage for the default design window); None uses the fixed optimum.
+    collector_length_m : float
+        Slant length of one row's collector, m (row pitch scales with it).
+    row_design_date : str or None
+        Design day ("MM-DD") for the row spacing; None uses the winter solstice
+        rule of :func:`tiltyard.engine.rows.default_design_date`.
+    row_half_width_h : float
+        Half-width of the design window around apparent solar noon, hours.
+    loss_fraction : float
+        System loss fraction for the indicative specific yield (default 0.14,
+        common practice, no source).
     """
 
     irradiance: IrradianceOptions = field(default_factory=IrradianceOptions)
@@ -70,6 +83,11 @@ class StudyOptions:
     azimuth_deg: float | None = None
     min_days_between: int = 30
     switch_dates: tuple | None = None
+    row_tilt_deg: float | None = None
+    collector_length_m: float = 1.0
+    row_design_date: str | None = None
+    row_half_width_h: float = 3.0
+    loss_fraction: float = 0.14
 
     def __post_init__(self):
         if self.objective not in ("annual", "worst-month", "months"):
@@ -91,6 +109,23 @@ class StudyOptions:
                              "and 120 days")
         if self.switch_dates is not None and len(self.switch_dates) != 2:
             raise ValueError(f"switch_dates = {self.switch_dates!r}: give two dates MM-DD")
+        if self.row_tilt_deg is not None and not 0.0 <= self.row_tilt_deg <= 90.0:
+            raise ValueError(f"row_tilt_deg = {self.row_tilt_deg!r}: must be between 0 and 90 "
+                             "deg")
+        if not 0.05 <= self.collector_length_m <= 20.0:
+            raise ValueError(f"collector_length_m = {self.collector_length_m!r}: must be between "
+                             "0.05 and 20 m")
+        if self.row_design_date is not None:
+            try:
+                pd.Timestamp(f"2023-{self.row_design_date}")
+            except ValueError:
+                raise ValueError(f"row_design_date = {self.row_design_date!r}: must be a date "
+                                 "MM-DD") from None
+        if not 0.0 < self.row_half_width_h <= 6.0:
+            raise ValueError(f"row_half_width_h = {self.row_half_width_h!r}: must be more than 0 "
+                             "and at most 6 h")
+        if not 0.0 <= self.loss_fraction <= 0.9:
+            raise ValueError(f"loss_fraction = {self.loss_fraction!r}: must be between 0 and 0.9")
 
     def candidate_tilts(self) -> np.ndarray:
         """The tilts the optimiser may choose, degrees."""
@@ -158,6 +193,11 @@ class TiltStudy:
     sky_note: str
     active_months: tuple = tuple(range(1, 13))
     worth_pct: float = 3.0
+    monthly_method: tuple | None = None
+    rows: tuple = ()
+    row_layout: object | None = None
+    row_note: str = ""
+    yields: tuple = ()
 
     def option(self, kind: str) -> StudyOption:
         return next(o for o in self.options if o.kind == kind)
@@ -239,6 +279,15 @@ class TiltStudy:
                              "annual_kwh_m2": round(self.grid_optimum[2], 3)},
             "warnings": list(self.warnings),
             "sky_note": self.sky_note,
+            "rows": _rows_json(self),
+            "specific_yield": _yields_json(self),
+            "monthly_method": None if self.monthly_method is None else {
+                "method": KLEIN_METHOD,
+                "options": [{"label": c.label, "kind": c.kind,
+                             "annual_kwh_m2": round(c.annual_kwh_m2, 3),
+                             "monthly_kwh_m2": [round(float(v), 3) for v in c.monthly_kwh_m2],
+                             "difference_vs_hourly_pct": _r(c.difference_pct)}
+                            for c in self.monthly_method]},
         }
 
 
@@ -591,8 +640,279 @@ def tilt_study(site: Site, opts: StudyOptions | None = None,
     if inactive:
         warnings.append("No useful daylight in " + ", ".join(inactive) + " (polar night or "
                         "near it): those months are left out of the worst-month objective.")
+    report(0.9, "rows and indicative yield")
+    rows = tuple(_option_rows(site, o, opts) for o in options)
+    row_tilt = opts.row_tilt_deg
+    fixed_opt = next(o for o in options if o.kind == "fixed-optimal").schedule[0]
+    if row_tilt is None:
+        row_tilt = fixed_opt.tilt_deg
+    from .rows import row_layout
+    try:
+        chosen_rows = row_layout(site, row_tilt, fixed_opt.azimuth_deg, **_row_kw(opts))
+        row_note = ""
+    except ValueError as exc:
+        chosen_rows, row_note = None, str(exc)
+    yields = tuple(_option_yield(sky, site, o, opts) for o in options)
+    monthly_method = None
+    if opts.irradiance.sky == "monthly":
+        monthly_method = monthly_method_comparison(site, options, year,
+                                                   opts.irradiance.solar_constant_w_m2)
     return TiltStudy(site, opts, tuple(options), tilt_curve, curve_az, grid_pct, grid_opt,
-                     tuple(warnings), sky.note, active_months)
+                     tuple(warnings), sky.note, active_months, monthly_method=monthly_method,
+                     rows=rows, row_layout=chosen_rows, row_note=row_note, yields=yields)
+
+
+KLEIN_METHOD = ("Klein (1977) monthly-mean method with the Erbs et al. (1982) monthly diffuse "
+                "fraction and an isotropic sky (Duffie & Beckman 2013, sec. 2.19); open "
+                "horizon, so the difference also contains the horizon loss")
+
+
+@dataclass(frozen=True)
+class MonthlyMethodOption:
+    """An option's schedule evaluated with Klein's monthly-mean method."""
+
+    label: str
+    kind: str
+    monthly_kwh_m2: np.ndarray
+    annual_kwh_m2: float
+    difference_pct: float | None     # hourly synthetic-year result vs this, %
+
+
+def _days_in_period_by_month(period: Period, year: int) -> np.ndarray:
+    """Number of days of each calendar month that fall in ``period`` (start..end inclusive)."""
+    days = pd.date_range(f"{year}-01-01", f"{year}-12-31", freq="D")
+    a, b = _day_from_mmdd(year, period.start), _day_from_mmdd(year, period.end)
+    idx = np.arange(len(days))
+    inside = (idx >= a) & (idx <= b) if a <= b else (idx >= a) | (idx <= b)
+    return np.bincount(days.month.to_numpy()[inside] - 1, minlength=12).astype(float)
+
+
+def monthly_method_comparison(site: Site, options, year: int,
+                              solar_constant_w_m2: float) -> tuple:
+    """Evaluate each option's schedule with Klein's monthly-mean method.
+
+    For every period of a schedule the monthly mean daily irradiation on the
+    period's plane comes from :func:`tiltyard.engine.monthly.klein_monthly_tilted`
+    (Klein 1977; Erbs, Klein & Duffie 1982; isotropic sky, Liu & Jordan 1963);
+    each month's total is the mean daily value times the days of that month in
+    the period. The site horizon is not part of the monthly method.
+
+    Parameters
+    ----------
+    site : Site
+        Must carry ``monthly_ghi_kwh_m2_day`` (12 values).
+    options : sequence of StudyOption
+        Options with tilts (the two-axis ceiling is skipped).
+    year : int
+        Year whose calendar splits the periods.
+    solar_constant_w_m2 : float
+        Solar constant for the extraterrestrial irradiation.
+
+    Returns
+    -------
+    tuple of MonthlyMethodOption
+    """
+    from .monthly import klein_monthly_tilted
+
+    ghi = np.asarray(site.monthly_ghi_kwh_m2_day, dtype=float)
+    albedo = np.asarray(site.albedo_by_month(), dtype=float)
+    cache = {}
+    out = []
+    for opt in options:
+        if opt.kind == "two-axis":
+            continue
+        monthly = np.zeros(12)
+        for period in opt.schedule:
+            key = (period.tilt_deg, period.azimuth_deg)
+            if key not in cache:
+                cache[key] = klein_monthly_tilted(site.latitude_deg, ghi, period.tilt_deg,
+                                                  period.azimuth_deg, albedo=albedo,
+                                                  solar_constant_w_m2=solar_constant_w_m2)
+            daily = np.asarray(cache[key].poa_global_kwh_m2_day, dtype=float)
+            monthly += daily * _days_in_period_by_month(period, year)
+        annual = float(monthly.sum())
+        diff = None if annual <= 0 else 100.0 * (opt.annual_kwh_m2 / annual - 1.0)
+        out.append(MonthlyMethodOption(opt.label, opt.kind, monthly, annual, diff))
+    return tuple(out)
+
+
+@dataclass(frozen=True)
+class OptionRows:
+    """Rows laid out for an option on flat ground: spaced for its steepest period."""
+
+    label: str
+    kind: str
+    layout: object | None             # rows.RowLayout, None when no design window exists
+    per_ground_kwh_m2: float | None   # annual irradiation per m² of ground
+    note: str = ""
+
+
+@dataclass(frozen=True)
+class OptionYield:
+    """An option's indicative specific yield (not a system design)."""
+
+    label: str
+    kind: str
+    result: object                    # specific_yield.SpecificYield
+
+
+def _period_mask(day_index: np.ndarray, period: Period, year: int) -> np.ndarray:
+    a, b = _day_from_mmdd(year, period.start), _day_from_mmdd(year, period.end)
+    return (day_index >= a) & (day_index <= b) if a <= b else (day_index >= a) | (day_index <= b)
+
+
+def schedule_poa(sky: SkyYear, site: Site, option: StudyOption) -> pd.DataFrame:
+    """Interval plane-of-array irradiance of an option's schedule, W/m².
+
+    Each period's plane gets its own horizon shading; the two-axis ceiling
+    follows the sun. Values are interval means (the instantaneous value at the
+    interval's evaluation point times its sun-up fraction), so
+    ``poa_global * step_h / 1000`` summed over the year is the option's annual
+    irradiation in kWh/m² (tested against the many-plane engine).
+
+    Parameters
+    ----------
+    sky : SkyYear
+        The study's sky.
+    site : Site
+        The site (horizon).
+    option : StudyOption
+        The option whose schedule is evaluated.
+
+    Returns
+    -------
+    pandas.DataFrame
+        Indexed by interval start in the site's time zone; columns
+        ``surface_tilt``, ``surface_azimuth``, ``poa_global``, ``poa_direct``,
+        ``poa_sky_diffuse``, ``poa_ground_diffuse``.
+
+    References
+    ----------
+    Transposition as :func:`tiltyard.engine.plane.poa_components` (pvlib;
+    Perez et al. 1990, Hay & Davies 1980, Liu & Jordan 1963).
+    """
+    from .horizon import plane_shading
+
+    pos = sky.position
+    frac = sky.sun_up_fraction
+    zen = pos["apparent_zenith"].to_numpy()
+    saz = pos["azimuth"].to_numpy()
+    n = len(frac)
+    cols = ("poa_global", "poa_direct", "poa_sky_diffuse", "poa_ground_diffuse")
+    out = {c: np.zeros(n) for c in cols}
+    tilt = np.zeros(n)
+    azim = np.zeros(n)
+    albedo = np.broadcast_to(np.asarray(sky.albedo, dtype=float), (n,))
+    if option.kind == "two-axis":
+        masks = [(np.ones(n, dtype=bool), None)]
+    else:
+        masks = [(_period_mask(sky.day_index, p, sky.options.year), p) for p in option.schedule]
+    for mask, period in masks:
+        m = mask & (frac > 0)
+        if not m.any():
+            continue
+        if period is None:
+            t = np.clip(zen[m], 0.0, 90.0)
+            a = saz[m]
+            shading = None
+        else:
+            t = float(period.tilt_deg)
+            a = float(period.azimuth_deg)
+            shading = plane_shading(site, t, a)
+        poa = poa_components(t, a, zen[m], saz[m], sky.ghi[m], sky.dni[m], sky.dhi[m],
+                             sky.dni_extra[m], albedo[m], sky.options.model,
+                             sun_visible=sky.sun_visible[m], shading=shading)
+        for c in cols:
+            out[c][m] = poa[c].to_numpy() * frac[m]
+        tilt[m] = t
+        azim[m] = a
+    index = sky.grid.start_utc.tz_convert(site.timezone)
+    df = pd.DataFrame({"surface_tilt": tilt, "surface_azimuth": azim, **out}, index=index)
+    df.index.name = "interval_start"
+    return df
+
+
+def _row_kw(opts: StudyOptions) -> dict:
+    kw = {"collector_length_m": opts.collector_length_m, "half_width_h": opts.row_half_width_h}
+    if opts.row_design_date is not None:
+        kw["design_date"] = pd.Timestamp(f"{opts.irradiance.year}-{opts.row_design_date}")
+    return kw
+
+
+def _option_rows(site: Site, opt: StudyOption, opts: StudyOptions) -> OptionRows:
+    from .rows import irradiation_per_ground_m2, row_layout
+
+    if opt.kind == "two-axis":
+        return OptionRows(opt.label, opt.kind, None, None,
+                          "trackers need their own spacing study; not laid out")
+    steep = max(opt.schedule, key=lambda p: p.tilt_deg)
+    try:
+        layout = row_layout(site, steep.tilt_deg, steep.azimuth_deg, **_row_kw(opts))
+    except ValueError as exc:
+        return OptionRows(opt.label, opt.kind, None, None, str(exc))
+    per_ground = float(irradiation_per_ground_m2(opt.annual_kwh_m2, layout.gcr))
+    note = ("spaced for the steepest period of the schedule"
+            if len(opt.schedule) > 1 else "")
+    return OptionRows(opt.label, opt.kind, layout, per_ground, note)
+
+
+def _option_yield(sky: SkyYear, site: Site, opt: StudyOption, opts: StudyOptions) -> OptionYield:
+    from .specific_yield import specific_yield
+
+    poa = schedule_poa(sky, site, opt)["poa_global"]
+    temp = wind = None
+    if sky.temp_air is not None:
+        temp = np.asarray(sky.temp_air, dtype=float)
+        if sky.wind_speed is not None:
+            wind = np.asarray(sky.wind_speed, dtype=float)
+    result = specific_yield(poa, sky.grid.step_h, temp_air=temp, wind_speed=wind,
+                            loss_fraction=opts.loss_fraction)
+    return OptionYield(opt.label, opt.kind, result)
+
+
+def _rows_json(study) -> dict | None:
+    from .rows import GCR_DEFINITIONS, LIMITATION
+
+    if not study.rows:
+        return None
+
+    def layout(lay):
+        if lay is None:
+            return None
+        return {"tilt_deg": lay.tilt_deg, "azimuth_deg": round(lay.azimuth_deg, 3),
+                "collector_length_m": lay.collector_length_m,
+                "pitch_m": round(lay.pitch_m, 3), "row_gap_m": round(lay.row_gap_m, 3),
+                "gcr": round(lay.gcr, 4), "ground_cover_fraction": round(lay.ground_cover_fraction, 4),
+                "design_date": lay.design_date.strftime("%m-%d"),
+                "window_start": lay.window_start.isoformat(),
+                "window_end": lay.window_end.isoformat(),
+                "limiting_elevation_deg": round(lay.limiting_elevation_deg, 2)}
+    return {
+        "definitions": GCR_DEFINITIONS if isinstance(GCR_DEFINITIONS, str)
+        else " ".join(GCR_DEFINITIONS),
+        "limitation": LIMITATION,
+        "chosen": layout(study.row_layout), "chosen_note": study.row_note,
+        "options": [{"label": r.label, "kind": r.kind, "layout": layout(r.layout),
+                     "per_ground_kwh_m2": _r(r.per_ground_kwh_m2), "note": r.note}
+                    for r in study.rows],
+    }
+
+
+def _yields_json(study) -> dict | None:
+    from .specific_yield import LABEL
+
+    if not study.yields:
+        return None
+    first = study.yields[0].result
+    return {
+        "label": LABEL, "loss_fraction": first.loss_fraction, "gamma_pdc": first.gamma_pdc,
+        "temperature_model": first.temperature_model, "notes": list(first.notes),
+        "options": [{"label": y.label, "kind": y.kind,
+                     "annual_kwh_kwp": round(y.result.annual_kwh_kwp, 2),
+                     "monthly_kwh_kwp": [round(float(v), 2) for v in y.result.monthly_kwh_kwp],
+                     "temperature_loss_pct": round(y.result.temperature_loss_pct, 2)}
+                    for y in study.yields],
+    }
 
 
 def _open_sky(sky: SkyYear, open_site: Site) -> SkyYear:
@@ -629,5 +949,7 @@ def _two_axis(sky: SkyYear, site: Site, month_of_day: np.ndarray) -> StudyOption
                        "upper limit: the plane follows the sun; shown only to judge the others")
 
 
-__all__ = ["OPTION_KINDS", "Period", "StudyOption", "StudyOptions", "TiltStudy", "tilt_study"]
+__all__ = ["KLEIN_METHOD", "OPTION_KINDS", "MonthlyMethodOption", "OptionRows", "OptionYield",
+           "Period", "StudyOption", "StudyOptions", "TiltStudy", "monthly_method_comparison",
+           "schedule_poa", "tilt_study"]
 
