@@ -73,11 +73,9 @@ def build_parser() -> argparse.ArgumentParser:
                    help="plane tilt from horizontal, 0-90")
     s.add_argument("--azimuth", type=float, required=True, metavar="DEG",
                    help="plane azimuth clockwise from north, 0-360 (south = 180)")
+    _add_sky_options(s)
     s.add_argument("--model", choices=TRANSPOSITION_MODELS, default="perez",
                    help="sky diffuse model (default perez)")
-    s.add_argument("--sky", default="clear", metavar="clear|monthly|FILE",
-                   help="sky basis: clear (clear-sky, an upper bound), monthly (the site's 12 "
-                        "monthly mean daily GHI values) or a weather file (TMY3, TMY2, EPW)")
     s.add_argument("--clearsky", choices=CLEARSKY_MODELS, default="ineichen",
                    help="clear-sky model (default ineichen)")
     s.add_argument("--solar-constant", type=float, default=SOLAR_CONSTANT_W_M2, metavar="W_M2",
@@ -94,9 +92,7 @@ def build_parser() -> argparse.ArgumentParser:
                                    "optimal fixed plane, optimal two- and four-season and monthly "
                                    "schedules, and two-axis tracking as a ceiling.")
     s.add_argument("site", metavar="SITE")
-    s.add_argument("--sky", default="clear", metavar="clear|monthly|FILE",
-                   help="sky basis: clear (clear-sky, an upper bound), monthly (the site's 12 "
-                        "monthly mean daily GHI values) or a weather file (TMY3, TMY2, EPW)")
+    _add_sky_options(s)
     s.add_argument("--model", choices=TRANSPOSITION_MODELS, default="perez",
                    help="sky diffuse model (default perez)")
     s.add_argument("--objective", default="annual", metavar="OBJ",
@@ -117,18 +113,74 @@ def build_parser() -> argparse.ArgumentParser:
     return p
 
 
+def _add_sky_options(s) -> None:
+    """--sky and the options for reading a weather CSV file (irradiance and study)."""
+    s.add_argument("--sky", default="clear", metavar="clear|monthly|FILE",
+                   help="sky basis: clear (clear-sky, an upper bound), monthly (the site's 12 "
+                        "monthly mean daily GHI values) or a weather file: TMY3, TMY2, EPW, "
+                        "or any CSV file with --columns and --time-label")
+    s.add_argument("--columns", default=None, metavar="KEY=NAME,...",
+                   help="for a CSV weather file: which header names hold which quantity, "
+                        "e.g. timestamp=Time,ghi=GHI,dni=DNI,dhi=DHI,temp_air=T2m,"
+                        "wind_speed=WS (keys: timestamp or date and time; ghi, dni, dhi in "
+                        "W/m2 or Wh/m2 or kJ/m2 per interval, decided from the values; "
+                        "temp_air in degC; wind_speed in m/s)")
+    s.add_argument("--time-label", default=None, choices=("start", "end", "centre"),
+                   help="for a CSV weather file: what each timestamp marks in its interval")
+    s.add_argument("--time-zone", default=None, metavar="ZONE",
+                   help="for a CSV weather file: zone of timestamps without a UTC offset, an "
+                        "IANA name (Europe/London) or a fixed offset (+01:00)")
+
+
+#: Command-line option for each keyword of load_weather_for_site.
+_WEATHER_FLAGS = {"columns": "--columns", "timestamp_label": "--time-label",
+                  "timezone": "--time-zone"}
+
+
+def _parse_columns(text: str) -> dict:
+    """'key=Name,key=Name' -> {key: Name}; syntax only (the engine checks the keys)."""
+    out = {}
+    for item in text.split(","):
+        key, sep, name = item.partition("=")
+        key, name = key.strip(), name.strip()
+        if not sep or not key or not name:
+            raise UserError(f"--columns {text}: {item.strip()!r} is not KEY=NAME; expected e.g. "
+                            "timestamp=Time,ghi=GHI")
+        if key in out:
+            raise UserError(f"--columns {text}: key {key!r} is given twice")
+        out[key] = name
+    return out
+
+
 def _irradiance_options(args, site, **kw):
     """IrradianceOptions from --sky (clear, monthly or a weather file) and friends."""
     from tiltyard.engine.skyyear import IrradianceOptions
     from tiltyard.engine.weather import WeatherImportError
 
     sky, weather = args.sky, None
-    if sky not in ("clear", "monthly"):
-        from tiltyard.engine.allsky import load_weather_for_site
+    csv_options = {"columns": args.columns, "timestamp_label": args.time_label,
+                   "timezone": args.time_zone}
+    if sky in ("clear", "monthly"):
+        for option, value in csv_options.items():
+            if value is not None:
+                raise UserError(f"{_WEATHER_FLAGS[option]} {value}: only for a weather file "
+                                f"(--sky FILE), not with --sky {sky}")
+    else:
+        from tiltyard.engine.allsky import WeatherOptionError, load_weather_for_site
+        if args.columns is not None:
+            csv_options["columns"] = _parse_columns(args.columns)
         try:
-            weather = load_weather_for_site(sky, site)
+            weather = load_weather_for_site(sky, site, **csv_options)
+        except WeatherOptionError as err:
+            value = args.columns if err.option == "columns" else err.value
+            shown = "" if value is None else f" {value}"
+            raise UserError(f"--sky {sky}: {_WEATHER_FLAGS[err.option]}{shown}: "
+                            f"{err.reason}") from None
         except (WeatherImportError, OSError) as err:
-            raise UserError(f"--sky {sky}: {err}") from None
+            hint = ""
+            if isinstance(err, WeatherImportError) and "column mapping" in err.reason:
+                hint = " (options --columns, --time-label, --time-zone)"
+            raise UserError(f"--sky {sky}: {err}{hint}") from None
         sky = "file"
     try:
         return IrradianceOptions(sky=sky, weather=weather, **kw)
@@ -173,6 +225,21 @@ def _study_options(args, site):
         raise UserError(str(err)) from None
 
 
+def _weather_report(weather, doc: dict, as_json: bool) -> None:
+    """Import findings of a weather file: into the JSON document, or one line each on stderr."""
+    if weather is None:
+        return
+    from tiltyard.engine.allsky import weather_json_dict
+
+    if as_json:
+        doc["weather"] = weather_json_dict(weather)
+        return
+    for f in weather.findings:
+        where = f", line {f.line}" if f.line is not None else ""
+        sys.stderr.write(f"tiltyard: {weather.source}{where}: {f.severity} ({f.kind}): "
+                         f"{_one_line(f.message)}\n")
+
+
 def _schedule_words(opt) -> str:
     if opt.kind == "two-axis":
         return "follows the sun"
@@ -192,10 +259,12 @@ def cmd_study(args) -> int:
         st = tilt_study(site, opts)
     except ValueError as err:
         raise UserError(str(err)) from None
+    doc = {"study": st.to_json_dict()}
+    _weather_report(opts.irradiance.weather, doc, args.json)
     if args.json:
-        print(json.dumps({"study": st.to_json_dict()}, indent=2, ensure_ascii=False))
+        print(json.dumps(doc, indent=2, ensure_ascii=False))
         return EXIT_OK
-    d = st.to_json_dict()
+    d = doc["study"]
     print(f"Tilt study for {site.name}  ({site.latitude_deg:.4f}, {site.longitude_deg:.4f})")
     print(f"  sky: {opts.irradiance.sky}, model: {opts.irradiance.model}, year "
           f"{opts.irradiance.year}; objective: {opts.objective_label}; tilts "
@@ -307,8 +376,10 @@ def cmd_irradiance(args) -> int:
         res = irradiance_year(site, args.tilt, args.azimuth, opts)
     except ValueError as err:
         raise UserError(str(err)) from None
+    doc = {"irradiance": res.to_json_dict()}
+    _weather_report(opts.weather, doc, args.json)
     if args.json:
-        print(json.dumps({"irradiance": res.to_json_dict()}, indent=2, ensure_ascii=False))
+        print(json.dumps(doc, indent=2, ensure_ascii=False))
         return EXIT_OK
     print(f"Irradiation on a plane at {site.name}")
     print(f"  tilt {res.surface_tilt:g} deg, azimuth {res.surface_azimuth:g} deg "

@@ -7,12 +7,16 @@ with an all-sky one:
     A synthetic year from the site's 12 monthly mean daily GHI values: the
     clear-sky GHI of the year is scaled, month by month, so that each month's
     mean daily irradiation equals the given value (GHI never above the
-    extraterrestrial horizontal), then split into beam and diffuse by the
-    Erbs et al. (1982) hourly correlation (:func:`monthly_sky`). It has the
-    right monthly totals but no day-to-day weather variability.
+    extraterrestrial horizontal), split into beam and diffuse by the Erbs et
+    al. (1982) hourly correlation, and the diffuse rescaled per month to the
+    Erbs et al. (1982) monthly-mean diffuse fraction (:func:`monthly_sky`).
+    It has the right monthly totals and monthly diffuse fractions but no
+    day-to-day weather variability.
 ``file``
     A measured or typical-year weather series
-    (:class:`tiltyard.engine.weather.WeatherData`) mapped onto the year's
+    (:class:`tiltyard.engine.weather.WeatherData`, read by
+    :func:`load_weather_for_site`: TMY3, TMY2, EPW, or any CSV file with a
+    column mapping, timestamp labelling and time zone) mapped onto the year's
     intervals (:func:`map_weather_to_grid`, :func:`weather_sky`). Weather
     values are interval means; the sky year holds instantaneous values at the
     evaluation instant that are later multiplied by the sun-up fraction, so
@@ -25,12 +29,16 @@ References
 ----------
 Erbs, D. G., Klein, S. A. & Duffie, J. A. (1982). Estimation of the diffuse
 radiation fraction for hourly, daily and monthly-average global radiation.
-Solar Energy 28(4), 293-302, eq. 1 (hourly correlation).
+Solar Energy 28(4), 293-302, eq. 1 (hourly correlation) and the
+monthly-average correlation (Duffie & Beckman, Solar Engineering of Thermal
+Processes, sec. 2.12).
 """
 
 from __future__ import annotations
 
 import calendar
+import dataclasses
+from collections.abc import Mapping
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -38,14 +46,23 @@ import numpy as np
 import pandas as pd
 import pvlib
 
+from .geometry import MEAN_DAY_OF_MONTH, declination_cooper_deg, sunset_hour_angle_deg
+from .monthly import ERBS_MONTHLY_KT_RANGE, erbs_monthly_diffuse_fraction
 from .site import Site, SiteError
 from .sky import extraterrestrial_on_plane
 from .timegrid import STEPS_MIN, TimeGrid, standard_offset
-from .weather import WeatherData, WeatherImportError, read_weather_file
+from .weather import (
+    ColumnMap,
+    WeatherData,
+    WeatherImportError,
+    read_weather_csv,
+    read_weather_file,
+)
 
 #: Note attached to results of the ``monthly`` basis.
 MONTHLY_NOTE = ("synthetic hourly year from monthly GHI: clear-sky shape scaled per month, "
-                "Erbs split; no day-to-day weather variability")
+                "Erbs hourly split with the diffuse rescaled per month to the Erbs "
+                "monthly-mean diffuse fraction; no day-to-day weather variability")
 
 #: What the Erbs split in this module does differently from pvlib.irradiance.erbs.
 ERBS_NOTE = ("Erbs et al. (1982) hourly correlation, clearness index from this project's "
@@ -210,29 +227,154 @@ def scale_to_monthly_ghi(ghi_shape, month, kwh_weight, monthly_ghi_kwh_m2_day, y
                 f"monthly_ghi_kwh_m2_day[{m - 1}] ({calendar.month_name[m]}) = "
                 f"{target[m - 1]:g} kWh/m2/day: the sun does not rise in this month here, "
                 "so it must be 0")
-        capped = np.zeros(sel.size, dtype=bool)
-        res = g
-        for _ in range(sel.size + 1):
-            free = (g * wm)[~capped].sum()
-            rest = want - (c * wm)[capped].sum()
-            s = rest / free if free > 0 else 0.0
-            res = np.where(capped, c, s * g)
-            new = ~capped & (res > c)
-            if not new.any():
-                break
-            capped |= new
-        out[sel] = res
+        out[sel] = _scale_with_cap(g, c, wm, want)
     return out
+
+
+def _scale_with_cap(shape, cap, weight, want) -> np.ndarray:
+    """``shape`` times one factor, held at ``cap``, so that ``sum(out * weight) == want``.
+
+    Values that the common factor would take above their cap are held at the
+    cap and the factor of the others is raised to make up the difference,
+    repeated until no new value reaches its cap; when every value is capped
+    the result is ``cap`` (and the total is short of ``want``). ``want`` must
+    be >= 0 and ``shape``, ``cap``, ``weight`` >= 0.
+
+    References
+    ----------
+    Common practice, no source (a capped proportional scaling).
+    """
+    capped = np.zeros(shape.size, dtype=bool)
+    res = shape
+    for _ in range(shape.size + 1):
+        free = (shape * weight)[~capped].sum()
+        rest = want - (cap * weight)[capped].sum()
+        s = rest / free if free > 0 else 0.0
+        res = np.where(capped, cap, s * shape)
+        new = ~capped & (res > cap)
+        if not new.any():
+            break
+        capped |= new
+    return res
+
+
+def rescale_monthly_diffuse(ghi, dhi, zenith, month, kwh_weight, diffuse_fraction,
+                            max_zenith: float = 87.0):
+    """Rescale DHI month by month to given monthly diffuse fractions, GHI unchanged.
+
+    In each local month the diffuse irradiance of the intervals with the sun
+    higher than ``90 - max_zenith`` degrees is multiplied by one factor (held
+    at ``DHI <= GHI`` where it would exceed it, the rest scaled further, as in
+    :func:`scale_to_monthly_ghi`) so that the month's diffuse fraction
+    ``sum(DHI w) / sum(GHI w)`` equals ``diffuse_fraction``; intervals with
+    the sun lower than that stay all diffuse (``DHI = GHI``, ``DNI = 0``), as
+    in :func:`erbs_split`. DNI follows from the closure
+    ``DNI = (GHI - DHI) / cos z``, so ``GHI = DHI + DNI cos z`` still holds,
+    ``DNI >= 0`` and, with ``GHI <= G_on cos z``, ``DNI <= G_on``.
+
+    A month cannot reach its fraction when the low-sun intervals alone carry
+    more diffuse than it allows (all other DHI is then 0, all DNI as large as
+    GHI permits), or when it asks for more diffuse than all its GHI (all DHI
+    is then GHI); ``reached`` is False for such a month.
+
+    Parameters
+    ----------
+    ghi, dhi : array_like
+        Instantaneous GHI and DHI (the starting shape of the diffuse), W/m².
+    zenith : array_like
+        True solar zenith, degrees.
+    month : array_like of int
+        Local month (1-12) of each interval.
+    kwh_weight : array_like
+        kWh/m² per W/m² of each interval.
+    diffuse_fraction : sequence of 12 float
+        Target monthly diffuse fraction, January first, within [0, 1].
+    max_zenith : float, default 87
+        Above this zenith the interval stays all diffuse (pvlib's Erbs default).
+
+    Returns
+    -------
+    dni, dhi : numpy.ndarray
+        W/m².
+    reached : numpy.ndarray of bool
+        Per month (January first): the month's diffuse fraction equals the
+        target (True also for months without GHI, which have none to split).
+
+    References
+    ----------
+    Closure ``GHI = DHI + DNI cos z``: Duffie & Beckman (2013), Solar
+    Engineering of Thermal Processes, 4th ed., sec. 2.8 (from memory). The
+    per-month rescaling is this module's construction (common practice, no
+    source).
+    """
+    ghi = np.asarray(ghi, dtype=float)
+    zenith = np.asarray(zenith, dtype=float)
+    month = np.asarray(month)
+    w = np.asarray(kwh_weight, dtype=float)
+    fd = np.asarray(diffuse_fraction, dtype=float)
+    if fd.shape != (12,) or not np.all((fd >= 0.0) & (fd <= 1.0)):
+        raise ValueError(f"diffuse_fraction = {diffuse_fraction!r}: must be 12 values "
+                         "(January first) within 0 to 1")
+    dhi = np.minimum(np.asarray(dhi, dtype=float), ghi)
+    low = (zenith > max_zenith) | (ghi <= 0.0)
+    dhi = np.where(low, np.maximum(ghi, 0.0), np.maximum(dhi, 0.0))
+    reached = np.ones(12, dtype=bool)
+    for m in range(1, 13):
+        sel = month == m
+        g_m = float((ghi * w)[sel].sum())
+        if g_m <= 0.0:
+            continue
+        free = np.flatnonzero(sel & ~low)
+        want = fd[m - 1] * g_m - float((dhi * w)[sel & low].sum())
+        if want <= 0.0:
+            dhi[free] = 0.0
+            reached[m - 1] = want == 0.0
+            continue
+        g, wf = ghi[free], w[free]
+        shape = np.where(dhi[free] > 0.0, dhi[free], g)  # g > 0 here
+        dhi[free] = _scale_with_cap(shape, g, wf, want)
+        reached[m - 1] = bool(np.isclose(float((dhi[free] * wf).sum()), want,
+                                         rtol=1e-9, atol=0.0))
+    cos_z = np.cos(np.radians(zenith))
+    with np.errstate(divide="ignore", invalid="ignore"):
+        dni = np.where(low, 0.0, (ghi - dhi) / np.where(low, 1.0, cos_z))
+    return np.maximum(dni, 0.0), dhi, reached
 
 
 def monthly_sky(site: Site, ghi_clear, zenith, dni_extra, month, kwh_weight,
                 year: int) -> AllSky:
     """Synthetic all-sky year from the site's monthly mean daily GHI.
 
-    The clear-sky GHI is scaled per local month to
-    ``site.monthly_ghi_kwh_m2_day`` (:func:`scale_to_monthly_ghi`, bounded by
-    the extraterrestrial horizontal irradiance) and split into DNI and DHI by
-    :func:`erbs_split`.
+    Steps:
+
+    1. the clear-sky GHI is scaled per local month to
+       ``site.monthly_ghi_kwh_m2_day`` (:func:`scale_to_monthly_ghi`, bounded
+       by the extraterrestrial horizontal irradiance);
+    2. each interval is split into DNI and DHI by the Erbs et al. (1982)
+       hourly correlation (:func:`erbs_split`);
+    3. the diffuse is rescaled per month (:func:`rescale_monthly_diffuse`) so
+       that the month's diffuse fraction ``sum(DHI) / sum(GHI)`` equals the
+       Erbs et al. (1982) *monthly-mean* correlation
+       (:func:`tiltyard.engine.monthly.erbs_monthly_diffuse_fraction`) at the
+       month's clearness index ``K_T = sum(GHI) / sum(G_on cos z)`` (the
+       year's own extraterrestrial irradiation over the month's intervals)
+       and the sunset hour angle of Klein's (1977) mean day of the month
+       (Cooper declination, :data:`tiltyard.engine.geometry.MEAN_DAY_OF_MONTH`).
+       GHI is unchanged and ``DNI = (GHI - DHI) / cos z``.
+
+    Step 3 is needed because every interval of a month has about the same
+    hourly clearness index (the clear-sky shape times one factor): applied to
+    that uniform index the hourly correlation gives a month far more diffuse
+    than a real month of the same mean, whose clear and overcast days the
+    monthly correlation averages (e.g. about 0.8 against 0.5 at ``K_T`` 0.43).
+    The hourly split is kept as the hour-by-hour shape of the diffuse.
+
+    The monthly correlation was fitted for ``0.3 <= K_T <= 0.8``; outside it
+    the index is held at the range end (as in
+    :func:`tiltyard.engine.monthly.klein_monthly_tilted`) and the months are
+    named in the note. A month whose diffuse fraction cannot be reached
+    within ``0 <= DHI <= GHI`` (see :func:`rescale_monthly_diffuse`; not seen
+    with the bundled demo sites) is named in the note too.
 
     Parameters
     ----------
@@ -262,20 +404,78 @@ def monthly_sky(site: Site, ghi_clear, zenith, dni_extra, month, kwh_weight,
 
     References
     ----------
-    Erbs, Klein & Duffie (1982), Solar Energy 28(4), 293-302, eq. 1 (hourly
-    diffuse fraction). Extraterrestrial bound: Duffie & Beckman (2013),
-    eq. 1.10.1.
+    Erbs, D. G., Klein, S. A. & Duffie, J. A. (1982). Estimation of the
+    diffuse radiation fraction for hourly, daily and monthly-average global
+    radiation. Solar Energy 28(4), 293-302: eq. 1 (hourly correlation) and
+    the monthly-average correlation, two cubics in ``K_T`` split at a sunset
+    hour angle of 81.4 deg, given as Duffie & Beckman, Solar Engineering of
+    Thermal Processes, sec. 2.12, eq. 2.12.1 (hourly: sec. 2.10, eq. 2.10.1;
+    numbering of the 5th ed., 2020, as quoted in a public implementation).
+    Klein, S. A. (1977). Calculation of monthly average insolation on tilted
+    surfaces. Solar Energy 19, 325-329 (mean day of the month).
+    Extraterrestrial bound: Duffie & Beckman (2013), eq. 1.10.1.
     """
     if site.monthly_ghi_kwh_m2_day is None:
         raise SiteError("monthly_ghi_kwh_m2_day", None,
                         "sky = 'monthly' needs 12 monthly mean daily GHI values in "
                         "kWh/m2/day (0 to 12), January first")
     zenith = np.asarray(zenith, dtype=float)
+    month = np.asarray(month)
+    w = np.asarray(kwh_weight, dtype=float)
     cap = extraterrestrial_on_plane(dni_extra, zenith, zenith)
-    ghi = scale_to_monthly_ghi(ghi_clear, month, kwh_weight, site.monthly_ghi_kwh_m2_day,
-                               year, cap)
-    dni, dhi, _ = erbs_split(ghi, zenith, dni_extra)
-    return AllSky(ghi, dni, dhi, MONTHLY_NOTE)
+    ghi = scale_to_monthly_ghi(ghi_clear, month, w, site.monthly_ghi_kwh_m2_day, year, cap)
+    _, dhi_hourly, _ = erbs_split(ghi, zenith, dni_extra)
+    kt = monthly_clearness_index(ghi, cap, month, w)
+    ws = sunset_hour_angle_deg(site.latitude_deg, declination_cooper_deg(MEAN_DAY_OF_MONTH))
+    fd = erbs_monthly_diffuse_fraction(kt, ws)
+    dni, dhi, reached = rescale_monthly_diffuse(ghi, dhi_hourly, zenith, month, w, fd)
+    notes = [MONTHLY_NOTE]
+    lo, hi = ERBS_MONTHLY_KT_RANGE
+    has_sun = np.bincount(month, weights=ghi * w, minlength=13)[1:] > 0
+    held = has_sun & ((kt < lo) | (kt > hi))
+    if held.any():
+        notes.append(f"monthly clearness index outside the {lo}-{hi} range of the Erbs monthly "
+                     f"correlation in {_month_list(held)}: diffuse fraction taken at the range end")
+    if not reached.all():
+        notes.append(f"monthly diffuse fraction not reached within 0 <= DHI <= GHI in "
+                     f"{_month_list(~reached)}")
+    return AllSky(ghi, dni, dhi, "; ".join(notes))
+
+
+def monthly_clearness_index(ghi, extraterrestrial_horizontal, month, kwh_weight) -> np.ndarray:
+    """Monthly clearness index ``K_T = sum(GHI w) / sum(G_0 w)`` of a year of intervals.
+
+    Parameters
+    ----------
+    ghi, extraterrestrial_horizontal : array_like
+        Instantaneous GHI and extraterrestrial horizontal irradiance, W/m².
+    month : array_like of int
+        Local month (1-12) of each interval.
+    kwh_weight : array_like
+        kWh/m² per W/m² of each interval.
+
+    Returns
+    -------
+    numpy.ndarray
+        Twelve values, January first, within [0, 1]; 0 for a month without
+        extraterrestrial irradiation.
+
+    References
+    ----------
+    Duffie & Beckman (2013), Solar Engineering of Thermal Processes, 4th ed.,
+    eq. 2.9.1 (``K_T = H / H_0``, from memory).
+    """
+    w = np.asarray(kwh_weight, dtype=float)
+    month = np.asarray(month)
+    g = np.bincount(month, weights=np.asarray(ghi, dtype=float) * w, minlength=13)[1:]
+    h0 = np.bincount(month, weights=np.asarray(extraterrestrial_horizontal, dtype=float) * w,
+                     minlength=13)[1:]
+    kt = np.divide(g, h0, out=np.zeros(12), where=h0 > 0)
+    return np.clip(kt, 0.0, 1.0)
+
+
+def _month_list(mask) -> str:
+    return ", ".join(calendar.month_abbr[i + 1] for i in np.flatnonzero(mask))
 
 
 # -- weather file basis -----------------------------------------------------------
@@ -474,11 +674,88 @@ def weather_sky(weather: WeatherData, grid: TimeGrid, sun_up_fraction, zenith,
     return AllSky(ghi, dni, dhi, "; ".join(notes), extra["temp_air"], extra["wind_speed"])
 
 
-def load_weather_for_site(path, site: Site) -> WeatherData:
-    """Read a typical-year weather file (TMY3, TMY2, EPW) for ``site``.
+class WeatherOptionError(ValueError):
+    """A bad option for reading a weather file, naming the option.
 
-    Calls :func:`tiltyard.engine.weather.read_weather_file` with the site's
-    coordinates (for the labelling check and the header comparison).
+    Parameters
+    ----------
+    option : {'columns', 'timestamp_label', 'timezone'}
+        The keyword argument of :func:`load_weather_for_site` at fault.
+    value : object
+        Its value.
+    reason : str
+        What is wrong and what is allowed.
+    """
+
+    def __init__(self, option: str, value, reason: str):
+        self.option = option
+        self.value = value
+        self.reason = reason
+        super().__init__(f"{option} = {value!r}: {reason}")
+
+
+#: Keys of a column mapping (the fields of ColumnMap): our names for the columns.
+COLUMN_KEYS = tuple(f.name for f in dataclasses.fields(ColumnMap))
+
+
+def column_map(mapping) -> ColumnMap:
+    """A :class:`~tiltyard.engine.weather.ColumnMap` from ``{our name: file column}``.
+
+    Parameters
+    ----------
+    mapping : ColumnMap or mapping of str to str
+        Keys among :data:`COLUMN_KEYS` (``timestamp``, or ``date`` and
+        ``time``; ``ghi``, ``dni``, ``dhi``, ``temp_air``, ``wind_speed``),
+        values the header names in the file.
+
+    Returns
+    -------
+    ColumnMap
+
+    Raises
+    ------
+    WeatherOptionError
+        ``option = 'columns'``: an unknown key (named, with the allowed keys),
+        an empty column name, or a mapping ColumnMap refuses (no time column,
+        no data column).
+    """
+    if isinstance(mapping, ColumnMap):
+        return mapping
+    if not isinstance(mapping, Mapping):
+        raise WeatherOptionError("columns", mapping, "must map our column names to the file's "
+                                 f"header names; keys: {', '.join(COLUMN_KEYS)}")
+    clean = {}
+    for key, name in mapping.items():
+        if key not in COLUMN_KEYS:
+            raise WeatherOptionError("columns", dict(mapping),
+                                     f"unknown key {key!r}; allowed keys: "
+                                     f"{', '.join(COLUMN_KEYS)}")
+        if not isinstance(name, str) or not name.strip():
+            raise WeatherOptionError("columns", dict(mapping),
+                                     f"key {key!r} needs a column name of the file (got "
+                                     f"{name!r})")
+        clean[key] = name.strip()
+    try:
+        return ColumnMap(**clean)
+    except ValueError as exc:
+        raise WeatherOptionError("columns", dict(mapping),
+                                 str(exc).removeprefix("ColumnMap: ")) from None
+
+
+def load_weather_for_site(path, site: Site, *, columns=None, timestamp_label=None,
+                          timezone=None) -> WeatherData:
+    """Read a weather file for ``site``: a typical-year format, or a CSV with a mapping.
+
+    A TMY3, TMY2 or EPW file (recognised by content,
+    :func:`tiltyard.engine.weather.read_weather_file`) defines its own
+    columns, timestamp labelling and time zone, so ``columns``,
+    ``timestamp_label`` and ``timezone`` must not be given for it. Any other
+    file is read as a CSV (:func:`tiltyard.engine.weather.read_weather_csv`,
+    units decided from the values, interval length from the timestamps) and
+    needs ``columns`` and ``timestamp_label``, and ``timezone`` unless the
+    timestamps carry their UTC offset. The site's coordinates serve for the
+    labelling check and the header comparison; what was noticed on the way is
+    in the result's ``findings``.
 
     Parameters
     ----------
@@ -486,6 +763,14 @@ def load_weather_for_site(path, site: Site) -> WeatherData:
         The file.
     site : Site
         The site.
+    columns : ColumnMap or mapping of str to str, optional
+        Our column names (:data:`COLUMN_KEYS`) to the file's header names,
+        e.g. ``{"timestamp": "Time", "ghi": "GHI"}``; see :func:`column_map`.
+    timestamp_label : {'start', 'end', 'centre'}, optional
+        What each timestamp of a CSV file marks in its interval.
+    timezone : str or float, optional
+        Zone of a CSV file's naive timestamps: IANA name
+        (``'Europe/London'``) or fixed UTC offset (``'+01:00'``, ``'UTC-5'``).
 
     Returns
     -------
@@ -493,11 +778,14 @@ def load_weather_for_site(path, site: Site) -> WeatherData:
 
     Raises
     ------
+    WeatherOptionError
+        A bad or missing option (``option`` names it): unknown column key,
+        bad label or zone, an option given for a typical-year format, a CSV
+        file without ``timestamp_label`` or, with naive timestamps, without
+        ``timezone``.
     WeatherImportError
-        Unreadable file; when the format is not recognised the message says
-        to read the file as a CSV with a column mapping
-        (:func:`tiltyard.engine.weather.read_weather_csv` and
-        :class:`~tiltyard.engine.weather.ColumnMap`).
+        Unreadable file; a file in no known format without ``columns`` (the
+        message asks for a column mapping).
 
     References
     ----------
@@ -505,19 +793,84 @@ def load_weather_for_site(path, site: Site) -> WeatherData:
     EnergyPlus Auxiliary Programs, EPW Data Dictionary.
     """
     p = Path(path)
+    cmap = None if columns is None else column_map(columns)
+    if timestamp_label is not None and timestamp_label not in ("start", "end", "centre",
+                                                               "center"):
+        raise WeatherOptionError("timestamp_label", timestamp_label,
+                                 "must be 'start', 'end' or 'centre' (what the file's "
+                                 "timestamps mark in each interval)")
+    given = {k: v for k, v in (("columns", columns), ("timestamp_label", timestamp_label),
+                               ("timezone", timezone)) if v is not None}
     try:
-        return read_weather_file(p, latitude_deg=site.latitude_deg,
-                                 longitude_deg=site.longitude_deg)
+        weather = read_weather_file(p, latitude_deg=site.latitude_deg,
+                                    longitude_deg=site.longitude_deg)
     except WeatherImportError as exc:
         if "format not recognised" not in exc.reason:
             raise
-        raise WeatherImportError(
-            exc.file, None,
-            "not a TMY3, TMY2 or EPW file; for any other file give a CSV column mapping "
-            "(which columns hold the timestamp, ghi, dni, dhi, temp_air, wind_speed, what the "
-            "timestamps label and their time zone) and read it with read_weather_csv") from exc
+        if cmap is None:
+            raise WeatherImportError(
+                exc.file, None,
+                "not a TMY3, TMY2 or EPW file; for any other file give a CSV column mapping "
+                "(which columns hold the timestamp, ghi, dni, dhi, temp_air, wind_speed), what "
+                "the timestamps label (interval start, end or centre) and their time zone"
+            ) from exc
+        return _read_csv_for_site(p, site, cmap, timestamp_label, timezone)
+    if given:
+        option, value = next(iter(given.items()))
+        raise WeatherOptionError(
+            option, value,
+            f"{weather.source} defines its own columns, timestamp labelling (interval "
+            f"{weather.timestamp_label}) and time zone ({weather.timezone}); a column "
+            "mapping, timestamp label and time zone are for other CSV files only")
+    return weather
 
 
-__all__ = ["AllSky", "ERBS_NOTE", "MONTHLY_NOTE", "check_weather_step", "erbs_split",
-           "load_weather_for_site", "map_weather_to_grid", "monthly_sky",
-           "scale_to_monthly_ghi", "weather_sky"]
+def _read_csv_for_site(path: Path, site: Site, cmap: ColumnMap, timestamp_label,
+                       timezone) -> WeatherData:
+    """read_weather_csv with the site's coordinates; option errors named."""
+    if timestamp_label is None:
+        raise WeatherOptionError(
+            "timestamp_label", None,
+            f"{path.name} is read as a CSV file: say what its timestamps mark in each "
+            "interval, 'start', 'end' or 'centre'")
+    try:
+        return read_weather_csv(path, cmap, timestamp_label=timestamp_label, timezone=timezone,
+                                latitude_deg=site.latitude_deg,
+                                longitude_deg=site.longitude_deg)
+    except WeatherImportError as exc:
+        if timezone is None and "has no UTC offset" in exc.reason:
+            raise WeatherOptionError(
+                "timezone", None,
+                f"{path.name}: the timestamps have no UTC offset (e.g. line {exc.line}); give "
+                "their time zone, an IANA name such as 'Europe/London' or a fixed offset such "
+                "as '+01:00'") from None
+        raise
+    except ValueError as exc:
+        text = str(exc)
+        if text.startswith(("timezone", "UTC offset")):
+            raise WeatherOptionError("timezone", timezone, text.removeprefix(
+                f"timezone {timezone!r} is ")) from None
+        raise
+
+
+def weather_json_dict(weather: WeatherData) -> dict:
+    """The ``weather`` document of the command line's ``--json`` output.
+
+    Source, interval, labelling, zone and every import finding (kind,
+    severity, message, 1-based line of the file or None).
+    """
+    return {
+        "source": weather.source,
+        "step_min": int(weather.step_min),
+        "timestamp_label": weather.timestamp_label,
+        "timezone": weather.timezone,
+        "findings": [{"kind": f.kind, "severity": f.severity, "message": f.message,
+                      "line": f.line} for f in weather.findings],
+    }
+
+
+__all__ = ["AllSky", "COLUMN_KEYS", "ERBS_NOTE", "MONTHLY_NOTE", "WeatherOptionError",
+           "check_weather_step", "column_map", "erbs_split", "load_weather_for_site",
+           "map_weather_to_grid", "monthly_clearness_index", "monthly_sky",
+           "rescale_monthly_diffuse", "scale_to_monthly_ghi", "weather_json_dict",
+           "weather_sky"]

@@ -1,0 +1,157 @@
+"""The main window: files, recovery, messages, About — driven on the real widgets."""
+
+from __future__ import annotations
+
+import json
+
+import pytest
+
+from tiltyard.app import settings
+from tiltyard.app.desktop import create_window
+from tiltyard.app.document import SiteDocument
+from tiltyard.engine.site import load_demo, load_site, save_site
+
+
+@pytest.fixture
+def window(qtbot):
+    made = []
+
+    def make(site_arg=None):
+        w = create_window(site_arg)
+        w.ask_unsaved = lambda: "discard"   # tests that check the prompt replace this
+        qtbot.addWidget(w)
+        w.show()
+        made.append(w)
+        return w
+
+    yield make
+    for w in made:
+        w.ask_unsaved = lambda: "discard"  # no modal prompt while tearing down
+        w.close()
+        assert w.runner.active_thread_count() == 0, "a worker thread was left running"
+
+
+def test_opens_on_the_demo_site_with_every_view(window):
+    w = window()
+    assert w.document.site.name == load_demo("larkmoor-dairy").name
+    titles = [w.nav.item(i).text() for i in range(w.nav.count())]
+    assert titles[0] == "Site" and titles[-1] == "Sheet"
+    for t in titles:
+        assert w.show_view(t) is w.current_view()
+
+
+def test_save_reopen_gives_the_same_site(window, tmp_path, qtbot):
+    w = window()
+    site_view = w.show_view("Site")
+    site_view.name.edit.clear()
+    qtbot.keyClicks(site_view.name.edit, "Reopened barn roof")
+    site_view.name.commit()
+    assert w.document.dirty and w.windowTitle().startswith("*")
+    target = tmp_path / "barn.json"
+    w.ask_save_path = lambda: str(target)
+    assert w.file_save()
+    assert not w.document.dirty and not w.windowTitle().startswith("*")
+    saved = load_site(target)
+    assert saved == w.document.site
+    w2 = window(str(target))
+    assert w2.document.site == saved
+    assert str(target.resolve()) in settings.recent_files()
+
+
+def test_a_bad_file_leaves_the_open_site_untouched(window, tmp_path):
+    w = window()
+    before = w.document.site
+    bad = tmp_path / "bad.json"
+    bad.write_text(json.dumps({"format": "tiltyard-site", "format_version": 1, "name": "x",
+                               "latitude_deg": 123, "longitude_deg": 0}))
+    assert not w.open_path(str(bad))
+    assert w.document.site is before
+    assert w.banner.isVisible() and "latitude_deg" in w.banner.text
+
+
+def test_unsaved_changes_prompt_can_cancel_and_discard(window, qtbot):
+    w = window()
+    w.document.propose(elevation_m=200.0)
+    asked = []
+    w.ask_unsaved = lambda: asked.append(1) or "cancel"
+    w.open_demo("kelpie-creek-shed")
+    assert asked and w.document.site.elevation_m == 200.0      # cancelled: nothing replaced
+    w.ask_unsaved = lambda: "discard"
+    w.open_demo("kelpie-creek-shed")
+    assert w.document.site.name == load_demo("kelpie-creek-shed").name
+
+
+def test_crash_recovery_round_trip(window, qtbot):
+    w = window()
+    w.document.propose(name="Unsaved greenhouse", elevation_m=321.0)
+    w.autosave()                              # what the timer does every 20 s
+    path = SiteDocument.autosave_path()
+    assert path.exists()
+    # the session "crashes": the window goes away without closing cleanly
+    w.autosave_timer.stop()
+    w.runner.shutdown()
+    edited = w.document.site
+    w2 = window()
+    w2.ask_recover = lambda site: site.name == "Unsaved greenhouse"
+    assert w2.offer_recovery()
+    assert w2.document.site == edited and w2.document.dirty
+    assert not path.exists()
+    assert "Recovered" in w2.banner.text
+
+
+def test_declined_recovery_is_not_offered_again(window, tmp_path):
+    save_site(load_demo("tarnvik-cabin"), SiteDocument.autosave_path())
+    w = window()
+    w.ask_recover = lambda site: False
+    assert not w.offer_recovery()
+    assert SiteDocument.pending_recovery() is None
+
+
+def test_a_worker_error_is_a_visible_non_modal_message(window, qtbot, idle):
+    w = window()
+
+    def boom(progress):
+        raise RuntimeError("deliberate test fault")
+
+    w.runner.submit("test", boom, lambda r: None, label="Test job", debounce_ms=0)
+    idle(w.runner)
+    assert w.banner.isVisible() and w.banner.level == "error"
+    assert "deliberate test fault" in w.banner.text
+    assert "Traceback" in w.banner.details
+    assert w.isEnabled()
+
+
+def test_a_newer_request_cancels_the_older(window, qtbot, idle):
+    w = window()
+    seen = []
+    import threading
+    started = threading.Event()
+
+    def slow(progress):
+        started.set()
+        for _ in range(200):
+            progress(0.1, "working")
+            threading.Event().wait(0.01)
+        return "old"
+
+    w.runner.submit("ch", slow, seen.append, debounce_ms=0)
+    qtbot.waitUntil(started.is_set)
+    w.runner.submit("ch", lambda progress: "new", seen.append, debounce_ms=0)
+    idle(w.runner)
+    assert seen == ["new"]
+
+
+def test_about_names_models_versions_and_cautions(window):
+    w = window()
+    text = w.about_text()
+    for needle in ("Reda", "Ineichen", "Perez", "pvlib", "PySide6", "licensed installers",
+                   "not a design"):
+        assert needle in text
+
+
+def test_preferences_round_trip(qtbot):
+    prefs = settings.Preferences(preparer="A. Surveyor", organisation="Fieldwork Ltd",
+                                 sky="monthly", model="haydavies", time_basis="solar",
+                                 paper="letter")
+    settings.save_preferences(prefs)
+    assert settings.load_preferences() == prefs
