@@ -107,9 +107,21 @@ def build_parser() -> argparse.ArgumentParser:
                    help="minimum days between adjustments (default 30)")
     s.add_argument("--switch-dates", default=None, metavar="MM-DD,MM-DD",
                    help="fix the two-season switch dates instead of optimising them")
+    s.add_argument("--row-tilt", type=float, default=None, metavar="DEG",
+                   help="tilt of rows on a flat roof or field for the spacing figures "
+                        "(default: the fixed optimum)")
+    s.add_argument("--row-length", type=float, default=1.0, metavar="M",
+                   help="slant length of one row's collector, m (default 1: figures per metre)")
+    s.add_argument("--row-date", default=None, metavar="MM-DD",
+                   help="design day for row spacing (default: winter solstice), noon +/- 3 h")
+    s.add_argument("--loss", type=float, default=0.14, metavar="FRACTION",
+                   help="system loss fraction for the indicative specific yield (default 0.14)")
     s.add_argument("--year", type=int, default=REFERENCE_YEAR,
                    help=f"year (default {REFERENCE_YEAR}, a non-leap reference year)")
     s.add_argument("--json", action="store_true", help="write one JSON document to stdout")
+    for sp in sub.choices.values():      # --verbose works after the subcommand too
+        sp.add_argument("--verbose", action="store_true", default=argparse.SUPPRESS,
+                        help="show the full traceback of an internal fault")
     return p
 
 
@@ -220,7 +232,8 @@ def _study_options(args, site):
             irradiance=irr,
             objective=obj, months=months, tilt_min_deg=lo, tilt_max_deg=hi,
             tilt_step_deg=args.tilt_step, azimuth_deg=azimuth, min_days_between=args.min_days,
-            switch_dates=switch)
+            switch_dates=switch, row_tilt_deg=args.row_tilt, collector_length_m=args.row_length,
+            row_design_date=args.row_date, loss_fraction=args.loss)
     except ValueError as err:
         raise UserError(str(err)) from None
 
@@ -292,10 +305,48 @@ def cmd_study(args) -> int:
     go = d["grid_optimum"]
     print(f"  Best plane on the tilt x azimuth grid: {go['tilt_deg']:g} deg, azimuth "
           f"{go['azimuth_deg']:g} deg, {go['annual_kwh_m2']:.1f} kWh/m2 a year")
+    _print_rows_and_yield(st, d)
     for w in st.warnings:
         print(f"  Note: {w}")
     print(f"  {CAUTION}")
     return EXIT_OK
+
+
+def _print_rows_and_yield(st, d) -> None:
+    rows, yld, mm = d["rows"], d["specific_yield"], d["monthly_method"]
+    print()
+    print("  Rows on flat ground (beam shading-free in the design window):")
+    ch = rows["chosen"]
+    if ch is None:
+        print(f"    not laid out: {rows['chosen_note']}")
+    else:
+        print(f"    {ch['tilt_deg']:g} deg rows facing {ch['azimuth_deg']:g} deg, "
+              f"{ch['collector_length_m']:g} m slant length, design day {ch['design_date']} "
+              f"{ch['window_start'][11:16]}-{ch['window_end'][11:16]}: pitch "
+              f"{ch['pitch_m']:.2f} m, gap {ch['row_gap_m']:.2f} m, GCR {ch['gcr']:.3f}, "
+              f"ground cover {ch['ground_cover_fraction']:.3f}")
+    print(f"    {'option':40} {'pitch m':>8} {'GCR':>6} {'per m2 ground':>14} "
+          f"{'yield kWh/kWp':>14}")
+    by_kind = {(y["label"], y["kind"]): y for y in yld["options"]}
+    for r in rows["options"]:
+        lay = r["layout"]
+        y = by_kind.get((r["label"], r["kind"]))
+        pitch = "-" if lay is None else f"{lay['pitch_m']:.2f}"
+        gcr = "-" if lay is None else f"{lay['gcr']:.3f}"
+        ground = "-" if r["per_ground_kwh_m2"] is None else f"{r['per_ground_kwh_m2']:.0f}"
+        yv = "-" if y is None else f"{y['annual_kwh_kwp']:.0f}"
+        print(f"    {r['label'][:40]:40} {pitch:>8} {gcr:>6} {ground:>14} {yv:>14}")
+    print(f"    GCR: {rows['definitions']}")
+    print(f"    {rows['limitation']}")
+    print(f"    Yield: {yld['label']}; loss {100 * yld['loss_fraction']:g} %, temperature "
+          f"model {yld['temperature_model']}; " + "; ".join(yld["notes"]))
+    if mm is not None:
+        print()
+        print(f"  Same monthly GHI values by the monthly-mean method: {mm['method']}")
+        for c in mm["options"]:
+            diff = c["difference_vs_hourly_pct"]
+            print(f"    {c['label'][:40]:40} {c['annual_kwh_m2']:8.1f} kWh/m2 "
+                  f"(hourly year {'-' if diff is None else f'{diff:+.1f}'} %)")
 
 
 def _load_site(arg: str):
@@ -428,6 +479,8 @@ def main(argv: list[str] | None = None) -> int:
     """Run the command line; returns the exit status (also for usage errors,
     ``--help`` and ``--version``, which argparse reports by raising SystemExit)."""
     argv = sys.argv[1:] if argv is None else argv
+    if not argv or (not argv[0].startswith("-") and argv[0] not in _command_names()):
+        return _open_app(argv[0] if argv else None)
     parser = build_parser()
     try:
         args = parser.parse_args(argv)
@@ -438,9 +491,7 @@ def main(argv: list[str] | None = None) -> int:
 
     try:
         if args.command is None:
-            sys.stderr.write("tiltyard: the desktop app is not part of this version yet; "
-                             "use a subcommand (see 'tiltyard --help')\n")
-            return EXIT_INPUT
+            return _open_app(None)
         return COMMANDS[args.command](args)
     except (UserError, SiteError) as err:
         sys.stderr.write(f"tiltyard: {_one_line(err)}\n")
@@ -453,6 +504,36 @@ def main(argv: list[str] | None = None) -> int:
         sys.stderr.write(f"tiltyard: internal fault: {type(err).__name__}: {_one_line(err)} "
                          "(run again with --verbose and report it)\n")
         return EXIT_FAULT
+
+
+def _command_names() -> set:
+    return set(COMMANDS)
+
+
+def _open_app(site_arg: str | None) -> int:
+    """``tiltyard [SITE]``: open the desktop app (on SITE if given)."""
+    import os
+
+    from tiltyard.engine.site import SiteError, resolve_site
+
+    if site_arg is not None:
+        try:
+            resolve_site(site_arg)           # a bad site is one line, before any window
+        except SiteError as err:
+            if not os.path.splitext(site_arg)[1] and os.sep not in site_arg:
+                sys.stderr.write(f"tiltyard: {site_arg!r} is neither a subcommand ("
+                                 f"{', '.join(sorted(COMMANDS))}) nor a site file or demo "
+                                 "site (see 'tiltyard --help')\n")
+            else:
+                sys.stderr.write(f"tiltyard: {_one_line(err)}\n")
+            return EXIT_INPUT
+    if (sys.platform.startswith("linux") and not os.environ.get("QT_QPA_PLATFORM")
+            and not os.environ.get("DISPLAY") and not os.environ.get("WAYLAND_DISPLAY")):
+        sys.stderr.write("tiltyard: no display to open the desktop app on; use a subcommand "
+                         "(see 'tiltyard --help')\n")
+        return EXIT_INPUT
+    from tiltyard.app.desktop import run
+    return run(site_arg)
 
 
 if __name__ == "__main__":

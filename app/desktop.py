@@ -2,9 +2,13 @@
 
 from __future__ import annotations
 
+import os
 import sys
 
 from tiltyard.engine.site import DEFAULT_DEMO, demo_site_names, load_demo, load_site
+
+#: Set to a delay in ms to open the window, report it ready and quit (smoke tests, benchmarks).
+SMOKE_ENV = "TILTYARD_SMOKE_QUIT_MS"
 
 
 def create_window(site_arg: str | None = None):
@@ -32,4 +36,14 @@ def run(site_arg: str | None = None, argv: list[str] | None = None) -> int:
     window = create_window(site_arg)
     window.show()
     window.offer_recovery()
+    if os.environ.get(SMOKE_ENV):
+        # smoke tests and the start-up benchmark: say when the window is usable, then quit
+        from PySide6.QtCore import QTimer
+
+        def ready():
+            print(f"tiltyard: window ready: {window.windowTitle()}", flush=True)
+            window.ask_unsaved = lambda: "discard"
+            window.close()
+            app.quit()
+        QTimer.singleShot(int(os.environ.get(SMOKE_ENV) or 0), ready)
     return app.exec()

@@ -299,7 +299,7 @@ def _bad_json_file(tmp_path):
      lambda p: ["--date", "YYYY-MM-DD"]),
     (lambda p: ["sun", "no-such-demo", "--date", MIDSUMMER],
      lambda p: ["no-such-demo", "demo site", "larkmoor-dairy"]),
-    (lambda p: ["frobnicate"], lambda p: ["frobnicate", "invalid choice"]),
+    (lambda p: ["frobnicate"], lambda p: ["frobnicate", "neither a subcommand", "study"]),
     (lambda p: ["sun", "larkmoor-dairy"], lambda p: ["--date", "required"]),
     (lambda p: ["irradiance", "larkmoor-dairy", "--tilt", "30", "--azimuth", "180",
                 "--solar-constant", "2000"],
@@ -544,3 +544,45 @@ def test_csv_options_bad_input_one_line(capsys, clear_csv, key, expect):
     assert len(lines) == 1, err
     for text in expect:
         assert text in lines[0]
+
+
+# -- the desktop app from the command line ------------------------------------------------------
+
+def test_site_argument_opens_the_app_window(tmp_path):
+    import os
+
+    env = dict(os.environ, QT_QPA_PLATFORM="offscreen", TILTYARD_SMOKE_QUIT_MS="0",
+               XDG_CONFIG_HOME=str(tmp_path), XDG_DATA_HOME=str(tmp_path), HOME=str(tmp_path))
+    proc = subprocess.run([sys.executable, "-m", "tiltyard", "kelpie-creek-shed"], env=env,
+                          capture_output=True, text=True, timeout=120)
+    assert proc.returncode == 0, proc.stderr
+    assert "window ready" in proc.stdout and "Kelpie Creek" in proc.stdout
+
+
+def test_bad_site_for_the_app_is_one_line_before_any_window(capsys):
+    rc, out, err = _run(capsys, "no-such-site.json")
+    assert rc == 2 and out == ""
+    assert len(err.strip().splitlines()) == 1 and "no-such-site.json" in err
+
+
+def test_no_display_is_one_line(capsys, monkeypatch):
+    for var in ("QT_QPA_PLATFORM", "DISPLAY", "WAYLAND_DISPLAY"):
+        monkeypatch.delenv(var, raising=False)
+    monkeypatch.setattr(sys, "platform", "linux")
+    rc, out, err = _run(capsys)
+    assert rc == 2 and "no display" in err and len(err.strip().splitlines()) == 1
+
+
+def test_verbose_works_after_the_subcommand(capsys):
+    rc, _, err = _run(capsys, "study", "larkmoor-dairy", "--tilt-range", "50:10", "--verbose")
+    assert rc == 2 and "tilt range" in err
+
+
+def test_study_table_shows_rows_yield_and_the_monthly_method(capsys):
+    rc, out, _ = _run(capsys, "study", "larkmoor-dairy", "--sky", "monthly", "--tilt-step", "5",
+                      "--row-tilt", "30", "--row-length", "2")
+    assert rc == 0
+    assert "30 deg rows" in out and "2 m slant length" in out and "pitch" in out
+    assert "GCR" in out and "ground cover" in out
+    assert "indicative specific yield" in out and "not a system design" in out
+    assert "monthly-mean method" in out and "Klein (1977)" in out
