@@ -18,6 +18,10 @@ from .site import HorizonProfile, Obstacle, Site
 #: Perez, R. et al. (1987), Solar Energy 39(3), 221-231: a 6.5° band (from memory).
 HORIZON_BAND_DEG = 6.5
 
+#: Planes whose tilts and sample-grid azimuths pair up into a product at most this
+#: many times larger than their number are evaluated on that product.
+_PRODUCT_RATIO = 4
+
 
 def profile_elevation_deg(profile: HorizonProfile, azimuth_deg) -> np.ndarray:
     """Horizon elevation of a measured profile, interpolated with wrap-around.
@@ -182,6 +186,106 @@ def _svf_on_grid(tilt_deg, shift_idx, h, n_az):
     return out
 
 
+def _count_below(sorted_values, x, inclusive=False) -> np.ndarray:
+    """How many of the ascending ``sorted_values`` lie below ``x`` (or at most ``x``).
+
+    ``inclusive`` (a bool or a boolean array broadcasting with ``x``) counts
+    the values equal to ``x`` too. Evenly spaced values are counted
+    arithmetically, others by binary search. A value equal to ``x`` within
+    rounding may fall either way; every caller counts thresholds where the
+    quantity being split is zero, so that is harmless.
+
+    References
+    ----------
+    Common practice, no source.
+    """
+    v = np.asarray(sorted_values, dtype=float)
+    x = np.asarray(x, dtype=float)
+    inclusive = np.asarray(inclusive, dtype=bool)
+    step = v[1] - v[0] if v.size > 1 else 0.0
+    if step > 0 and np.all(np.abs(np.diff(v) - step) <= 1e-12 * step):
+        q = (x - v[0]) / step
+        n = np.ceil(q)
+        if inclusive.any():
+            n += inclusive & (n == q)
+        np.clip(n, 0, v.size, out=n)
+        return n.astype(np.intp)
+    n = np.searchsorted(v, x, side="left")
+    if inclusive.any():
+        n = n + (np.searchsorted(v, x, side="right") - n) * inclusive
+    return n
+
+
+def _svf_product(tilt_deg, shift_idx, h, n_az):
+    """Sky-view factors ``(T, U)`` of every pairing of tilts with sample-grid azimuths.
+
+    ``tilt_deg`` holds ascending tilts in [0, 90] degrees, ``shift_idx`` the plane
+    azimuths as whole sample steps. The sum is the midpoint rule of
+    :func:`sky_view_factor` (closed-form elevation integral per azimuth sample),
+    rearranged: with ``m`` the sample's azimuth relative to the plane and
+    ``e_m`` the plane's own horizon there, each sample contributes
+    ``prim(pi/2) - prim(max(h, e_m))``; that is ``prim(pi/2) - prim(e_m)`` plus,
+    where ``h >= e_m``, ``prim(e_m) - a sin^2(h)/2 - b_m (h/2 + sin(2h)/4)``.
+    Whether ``h >= e_m`` holds changes at most once as the tilt grows, at
+    ``tan(tilt) = -tan(h)/cos(m)``, so the terms linear in the plane factors are
+    summed over tilts with one difference array and a running sum. Only the
+    ``prim(e_m)`` term of samples whose condition differs between the planes'
+    azimuths at one tilt needs per-plane work.
+
+    References
+    ----------
+    Liu & Jordan (1963) and Duffie & Beckman (2013, sec. 2.15) as in
+    :func:`sky_view_factor`; the rearrangement is exact algebra (common
+    practice, no source).
+    """
+    n_t, n_u = tilt_deg.size, shift_idx.size
+    rel = np.radians((np.arange(n_az) + 0.5) * (360.0 / n_az))   # relative azimuth samples
+    u = np.cos(rel)
+    beta = np.radians(tilt_deg)
+    cosb, sinb = np.cos(beta), np.sin(beta)
+    b = sinb[:, None] * u[None, :]                               # (T, n)
+    # at the plane's own horizon e_m, a sin(e) + b cos(e) = 0, so prim(e_m) = b e_m / 2;
+    # prim(pi/2) = a/2 + b pi/4
+    prim_e = b * (-np.arctan2(b, cosb[:, None])) / 2.0
+    total = (cosb / 2.0) * n_az + (b * (np.pi / 4.0) - prim_e).sum(axis=1)
+    k = (np.arange(n_az)[:, None] + shift_idx[None, :]) % n_az  # sample seen by cell (m, j)
+    hk = h[k]
+    front = u > 0.0
+    # tilt at which h = e_m: tan(tilt) = -tan(h) / cos(m); below it the condition holds
+    # on the back half (cos m < 0), above it on the front half
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        tilt_star = np.degrees(np.arctan(-np.tan(hk) / u[:, None]))
+    # front half: first tilt where the condition holds; back half: first where it fails
+    p = _count_below(tilt_deg, tilt_star, inclusive=~front[:, None])
+    # sums over the cells where h >= e_m of sin^2(h)/2 and cos(m) (h/2 + sin(2h)/4)
+    s1 = np.sin(h) ** 2 / 2.0
+    s2 = h / 2.0 + np.sin(2.0 * h) / 4.0
+    w1 = s1[k]
+    w2 = u[:, None] * s2[k]
+    sign = np.where(front, 1.0, -1.0)[:, None]
+    idx = (p * n_u + np.arange(n_u)[None, :]).ravel()
+    size = (n_t + 1) * n_u
+    lin = []
+    for w in (w1, w2):
+        acc = np.bincount(idx, weights=(w * sign).ravel(), minlength=size)[:n_t * n_u]
+        acc = acc.reshape(n_t, n_u)
+        acc[0] += w[~front].sum(axis=0)
+        lin.append(np.cumsum(acc, axis=0))
+    # the prim(e_m) term: columns where every plane agrees, then the mixed ones
+    pmin, pmax = p.min(axis=1), p.max(axis=1)
+    it = np.arange(n_t)[:, None]
+    agree = np.where(front[None, :], it >= pmax[None, :], it < pmin[None, :])
+    pe = np.broadcast_to(np.where(agree, prim_e, 0.0).sum(axis=1)[:, None], (n_t, n_u)).copy()
+    mixed = (it >= pmin[None, :]) & (it < pmax[None, :])
+    p_small = p.astype(np.int32)
+    for i in np.flatnonzero(mixed.any(axis=1)):
+        cols = np.flatnonzero(mixed[i])
+        holds = (p_small[cols] > i) != front[cols][:, None]
+        pe[i] += np.einsum("m,mj->j", prim_e[i, cols], holds)
+    g = total[:, None] + pe - cosb[:, None] * lin[0] - sinb[:, None] * lin[1]
+    return g * (2.0 / n_az)
+
+
 def sky_view_factor(surface_tilt, surface_azimuth, horizon_elevation_deg, n_az: int = 1440):
     """Isotropic sky-view factor of a plane with a horizon.
 
@@ -235,7 +339,14 @@ def sky_view_factor(surface_tilt, surface_azimuth, horizon_elevation_deg, n_az: 
     step = 360.0 / n_az
     shift = azim_deg / step
     if tilt_deg.size > 8 and np.allclose(shift, np.round(shift), atol=1e-9):
-        f = _svf_on_grid(tilt_deg, np.round(shift).astype(int) % n_az, h, n_az)
+        shift_idx = np.round(shift).astype(int) % n_az
+        tilt_u, tilt_inv = np.unique(tilt_deg, return_inverse=True)
+        shift_u, shift_inv = np.unique(shift_idx, return_inverse=True)
+        if (tilt_u[0] >= 0.0 and tilt_u[-1] <= 90.0
+                and tilt_u.size * shift_u.size <= _PRODUCT_RATIO * tilt_deg.size):
+            f = _svf_product(tilt_u, shift_u, h, n_az)[tilt_inv, shift_inv]
+        else:
+            f = _svf_on_grid(tilt_deg, shift_idx, h, n_az)
     else:
         beta = np.radians(tilt_deg).reshape(-1, 1)
         gamma = np.radians(azim_deg).reshape(-1, 1)

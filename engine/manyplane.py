@@ -3,15 +3,24 @@
 The time-only terms of a year (sun position, horizontal components, Perez F1
 and F2 or the Hay-Davies anisotropy index, sun visibility) are computed once by
 :func:`tiltyard.engine.skyyear.sky_year`; each plane contributes only its
-orientation. The cosine of the angle of incidence for every (interval, plane)
-pair is one matrix product
+orientation. The cosine of the angle of incidence for an (interval, plane) pair
+is
 
-``cos(aoi) = [cos z, sin z cos A, sin z sin A] @ [cos b, sin b cos g, sin b sin g]^T``
+``cos(aoi) = [cos z, sin z cos A, sin z sin A] . [cos b, sin b cos g, sin b sin g]``
 
-over the sun-up intervals only; beam and circumsolar light are then a weighted
-sum of ``max(cos aoi, 0)`` and the isotropic, horizon-band and ground terms
-are separable products of a time sum and a plane factor. Work is chunked over
-time so memory stays bounded, and daily sums come out of ``np.add.reduceat``.
+and beam plus circumsolar light is a weighted sum of ``max(cos aoi, 0)``; the
+isotropic, horizon-band and ground terms are separable products of a per-day
+time sum and a plane factor.
+
+Planes that pair a set of tilts in [0, 90] degrees with a set of azimuths (a
+tilt x azimuth grid) are summed without visiting every (interval, plane) pair:
+for one interval and one azimuth, ``cos z cos b + v sin b`` (``v`` the sun's
+horizontal component towards the azimuth) changes sign at most once as the
+tilt grows, at ``tan b = -cos z / v``. So each day's beam sum is the unclipped
+sum, a product of per-day sums and plane factors, minus the parts past each
+(interval, azimuth) pair's sign change, gathered with one difference array over
+the tilts and a running sum. Other sets of planes take a chunked pass over all
+pairs, with daily sums from segment sums over each day's intervals.
 
 The arithmetic is that of pvlib's ``get_total_irradiance`` (isotropic,
 ``haydavies``, ``perez``) and of :func:`tiltyard.engine.plane.poa_components`
@@ -25,23 +34,35 @@ from dataclasses import dataclass
 import numpy as np
 import pvlib
 
-from .horizon import horizon_band_fraction, site_horizon_deg, sky_view_factor
+from .horizon import _count_below, horizon_band_fraction, site_horizon_deg, sky_view_factor
 from .skyyear import SkyYear
 
-#: Upper bound on the float64 working set of one time chunk, bytes.
+#: Upper bound on the float64 working set of one chunk (of intervals, or of days
+#: on a tilt x azimuth grid), bytes.
 CHUNK_BYTES = 48 * 2**20
+
+#: A tilt x azimuth product at most this many times larger than the number of
+#: planes asked for is evaluated as a grid (then the wanted planes are picked).
+PRODUCT_RATIO = 8
+
+#: Working set of one chunk of days on a tilt x azimuth grid, bytes (cache-sized).
+_GRID_CHUNK_BYTES = 4 * 2**20
+
+#: Products of at most this many multiply-adds stay on one BLAS thread (OpenBLAS).
+_SMALL_BLAS = 2**18
 
 
 @dataclass(frozen=True)
 class ManyPlaneTerms:
     """Time-only transposition terms for the sun-up intervals of a :class:`SkyYear`.
 
-    All arrays have one value per sun-up interval. ``beam_w`` multiplies
+    All arrays have one value per sun-up interval. ``sun_w`` multiplies
     ``max(cos aoi, 0)`` for beam plus circumsolar light (open horizon; multiply
     by ``visible`` for the site horizon); ``iso_w`` multiplies the plane's isotropic factor
     ``(1 + cos b) / 2``; ``hor_w`` multiplies ``sin b``; ``ground_w`` multiplies
     ``(1 - cos b) / 2``. All weights are already in kWh/m² (interval length and
-    sun-up fraction included).
+    sun-up fraction included). ``clip_rows`` marks the rows where pvlib's clip of
+    the Perez sky diffuse at 0 can act on some tilt in [0, 90] degrees.
     """
 
     model: str
@@ -156,12 +177,13 @@ def many_plane_terms(sky: SkyYear, model: str | None = None) -> ManyPlaneTerms:
     else:
         raise ValueError(f"model = {model!r}: must be isotropic, haydavies or perez")
     # where can pvlib's clip of the total Perez diffuse at 0 act? Only where
-    # (1 - F1)(1 + cos b)/2 + F2 sin b can be negative for some tilt b.
+    # phi(b) = (1 - F1)(1 + cos b)/2 + F2 sin b can be negative for some tilt b in
+    # [0, 90] deg (the circumsolar term is never negative). A stationary point of phi
+    # has phi'' = -(1 - F1) / (2 cos b), a minimum only when 1 - F1 < 0 = phi(0) is
+    # already negative, so the least value is at an end: 1 - F1 or (1 - F1)/2 + F2.
     if model == "perez":
-        tilts = np.radians(np.linspace(0.0, 90.0, 181))
-        lower = (one_minus[:, None] * (1 + np.cos(tilts))[None, :] / 2.0
-                 + f2[:, None] * np.sin(tilts)[None, :])
-        clip_rows = (lower.min(axis=1) < 1e-12) & (dhi > 0)
+        lower = np.minimum(one_minus, one_minus / 2.0 + f2)
+        clip_rows = (lower < 1e-12) & (dhi > 0)
     else:
         clip_rows = np.zeros(len(k), dtype=bool)
     return ManyPlaneTerms(
@@ -181,7 +203,9 @@ class ManyPlaneResult:
     surface_tilt, surface_azimuth : numpy.ndarray
         Plane orientations (flattened), degrees.
     daily_kwh_m2 : numpy.ndarray
-        ``(n_days, n_planes)`` daily plane-of-array irradiation, kWh/m².
+        ``(n_days, n_planes)`` daily plane-of-array irradiation, kWh/m². It may
+        be stored plane by plane (Fortran order), so that each plane's column
+        is contiguous.
     daily_open_kwh_m2 : numpy.ndarray or None
         The same for an open horizon, when asked for.
     sky_view_factor : numpy.ndarray
@@ -234,6 +258,14 @@ def many_plane_daily(terms: ManyPlaneTerms, surface_tilt, surface_azimuth, site=
     -------
     ManyPlaneResult
 
+    Notes
+    -----
+    When the tilts (all within [0, 90] degrees) and azimuths pair up into a
+    product at most :data:`PRODUCT_RATIO` times larger than the number of
+    planes, the product is evaluated as a grid (see the module docstring) and
+    the wanted planes are picked from it; otherwise every (interval, plane)
+    pair is visited. Both give the same sums to rounding.
+
     References
     ----------
     Same arithmetic as pvlib.irradiance.get_total_irradiance (Holmgren et al.
@@ -244,7 +276,74 @@ def many_plane_daily(terms: ManyPlaneTerms, surface_tilt, surface_azimuth, site=
     tilt, azim = np.broadcast_arrays(np.asarray(surface_tilt, dtype=float),
                                      np.asarray(surface_azimuth, dtype=float))
     tilt, azim = tilt.ravel(), azim.ravel()
-    n_planes = tilt.size
+    layout = _product_layout(tilt, azim)
+    if layout is None:
+        planes_t, planes_a = tilt, azim
+    else:
+        tilt_u, azim_u, cell = layout
+        planes_t, planes_a = np.repeat(tilt_u, azim_u.size), np.tile(azim_u, tilt_u.size)
+    fac = _plane_factors(planes_t, planes_a, site)
+    n_days = terms.n_days
+    day = terms.day_index
+    # separable terms: per-day time sums times plane factors
+    sums = [np.bincount(day, weights=w, minlength=n_days)
+            for w in (terms.iso_w, terms.hor_w, terms.ground_w)]
+    diffuse = [fac.iso_factor * fac.iso_ratio, fac.sinb * fac.band, fac.ground_factor]
+    diffuse_open = [fac.iso_factor, fac.sinb, fac.ground_factor]
+    w_vis = terms.sun_w * terms.visible
+    if layout is None:
+        daily = _small_matmul(np.column_stack(sums), np.stack(diffuse),
+                              np.empty((n_days, planes_t.size)))
+        daily_open = (_small_matmul(np.column_stack(sums), np.stack(diffuse_open),
+                                    np.empty((n_days, planes_t.size))) if with_open else None)
+        _beam_all_pairs(terms, fac.pv, w_vis, daily, daily_open)
+    else:
+        by_plane, by_plane_open = _beam_grid(terms, tilt_u, azim_u, fac, sums, diffuse,
+                                             diffuse_open, w_vis, with_open)
+        daily = by_plane.T
+        daily_open = by_plane_open.T if with_open else None
+    clip = terms.clip_rows
+    if terms.model == "perez" and planes_t.size and planes_t.max() > 90.0:
+        # clip_rows covers tilts up to 90 deg; check the steeper ones asked for too
+        tb = np.radians(np.unique(planes_t[planes_t > 90.0]))
+        lower = (terms.one_minus_f1[:, None] * (1.0 + np.cos(tb))[None, :] / 2.0
+                 + terms.f2[:, None] * np.sin(tb)[None, :]).min(axis=1)
+        clip = clip | ((lower < 1e-12) & (terms.dhi_w > 0))
+    if clip.any():
+        _correct_clipped(terms, np.flatnonzero(clip), fac, daily, daily_open)
+    svf = fac.svf
+    if layout is not None and not (cell.size == planes_t.size
+                                   and np.array_equal(cell, np.arange(cell.size))):
+        # pick the planes asked for (rows of the plane-major arrays)
+        daily = by_plane[cell].T
+        daily_open = by_plane_open[cell].T if with_open else None
+        svf = svf[cell]
+    return ManyPlaneResult(tilt, azim, daily, daily_open if with_open else None, svf)
+
+
+@dataclass(frozen=True)
+class _PlaneFactors:
+    """Orientation factors of the planes being evaluated (one value per plane)."""
+
+    pv: np.ndarray             # (3, P) from plane_vectors
+    cosb: np.ndarray
+    sinb: np.ndarray
+    iso_factor: np.ndarray     # (1 + cos b) / 2
+    ground_factor: np.ndarray  # (1 - cos b) / 2
+    svf: np.ndarray            # isotropic sky-view factor with the horizon
+    iso_ratio: np.ndarray      # svf / iso_factor
+    band: np.ndarray           # visible share of the horizon band
+
+
+def _plane_factors(tilt, azim, site) -> _PlaneFactors:
+    """Plane factors for ``tilt``/``azim`` (flat arrays) under ``site``'s horizon.
+
+    References
+    ----------
+    Liu & Jordan (1963) for ``(1 +/- cos b) / 2``; the horizon factors of
+    :func:`tiltyard.engine.horizon.sky_view_factor` and
+    :func:`tiltyard.engine.horizon.horizon_band_fraction`.
+    """
     pv = plane_vectors(tilt, azim)
     cosb = np.cos(np.radians(tilt))
     sinb = np.sin(np.radians(tilt))
@@ -258,72 +357,199 @@ def many_plane_daily(terms: ManyPlaneTerms, surface_tilt, surface_azimuth, site=
         band = horizon_band_fraction(tilt, azim, hz)
     else:
         svf = iso_factor.copy()
-        iso_ratio = np.ones(n_planes)
-        band = np.ones(n_planes)
-    n_days = terms.n_days
-    # separable terms: per-day time sums times plane factors
+        iso_ratio = np.ones(tilt.size)
+        band = np.ones(tilt.size)
+    return _PlaneFactors(pv, cosb, sinb, iso_factor, ground_factor, svf, iso_ratio, band)
+
+
+def _product_layout(tilt, azim):
+    """``(tilts, azimuths, cell)`` when the planes are best evaluated as a grid.
+
+    ``tilts`` and ``azimuths`` are the sorted distinct values; plane ``k`` is
+    grid cell ``cell[k]`` of the tilt-major ``tilts x azimuths`` product. None
+    when a tilt lies outside [0, 90] degrees or the product would be more than
+    :data:`PRODUCT_RATIO` times larger than the number of planes.
+
+    References
+    ----------
+    Common practice, no source.
+    """
+    if tilt.size == 0 or not (np.all(tilt >= 0.0) and np.all(tilt <= 90.0)):
+        return None
+    if not np.all(np.isfinite(azim)):
+        return None
+    tilt_u, tilt_inv = np.unique(tilt, return_inverse=True)
+    azim_u, azim_inv = np.unique(azim, return_inverse=True)
+    if tilt_u.size * azim_u.size > PRODUCT_RATIO * tilt.size:
+        return None
+    return tilt_u, azim_u, tilt_inv.ravel() * azim_u.size + azim_inv.ravel()
+
+
+def _beam_grid(terms, tilt_u, azim_u, fac, sums, diffuse, diffuse_open, w_vis, with_open):
+    """Daily totals on the tilt-major ``tilt_u x azim_u`` grid (tilts ascending in [0, 90]).
+
+    Returns ``(P, n_days)`` arrays (plane-major), for the site and, when asked
+    for, the open horizon.
+
+    For an interval with weight ``w`` and an azimuth ``g``, the beam weight is
+    ``w max(cos z cos b + v sin b, 0)`` with ``v = sin z cos(A - g)``. With the
+    sun above the horizontal (cos z > 0) it is positive at b = 0 and, when
+    ``v < 0``, turns negative beyond ``tan b* = cos z / -v``; with the sun below
+    it (a sun-up interval whose evaluation instant is just past sunset) it is
+    positive only beyond ``tan b* = -cos z / v`` when ``v > 0``. The first part
+    is summed without the clip as per-day sums times plane factors, together
+    with the separable diffuse terms (one matrix product); the parts past b* are
+    placed in a difference array over the tilts, ``(tilt, azimuth, day)``, whose
+    running sum over the tilts is combined with ``cos b`` and ``sin b``. Days
+    are taken in chunks small enough to stay in cache.
+
+    References
+    ----------
+    pvlib.irradiance.beam_component and aoi_projection (Holmgren et al. 2018):
+    the beam is ``dni max(cos aoi, 0)``; the sign analysis is plane
+    trigonometry (common practice, no source).
+    """
+    n_days, n_t, n_u = terms.n_days, tilt_u.size, azim_u.size
+    cosb_u, sinb_u = np.cos(np.radians(tilt_u)), np.sin(np.radians(tilt_u))
+    g = np.radians(azim_u)
+    cg, sg = np.cos(g), np.sin(g)
+    sun = terms.sun_vec
     day = terms.day_index
-    daily_iso = np.bincount(day, weights=terms.iso_w, minlength=n_days)
-    daily_hor = np.bincount(day, weights=terms.hor_w, minlength=n_days)
-    daily_ground = np.bincount(day, weights=terms.ground_w, minlength=n_days)
-    base_open = (daily_iso[:, None] * iso_factor[None, :] + daily_hor[:, None] * sinb[None, :]
-                 + daily_ground[:, None] * ground_factor[None, :])
-    base = (daily_iso[:, None] * (iso_factor * iso_ratio)[None, :]
-            + daily_hor[:, None] * (sinb * band)[None, :]
-            + daily_ground[:, None] * ground_factor[None, :])
-    # beam + circumsolar: a weighted sum of max(cos aoi, 0), chunked over time
-    w_open = terms.sun_w
-    w_vis = terms.sun_w * terms.visible
-    daily = base.copy()
-    daily_open = base_open.copy() if with_open else None
+    up = sun[:, 0] > 0.0
+    weights = [w_vis, terms.sun_w] if with_open else [w_vis]
+    beam_f = [fac.cosb, fac.sinb * np.tile(cg, n_t), fac.sinb * np.tile(sg, n_t)]
+    outs = []
+    for w, diff in zip(weights, [diffuse, diffuse_open], strict=False):
+        wu, du = w[up], day[up]
+        x = np.column_stack(sums + [np.bincount(du, weights=wu * sun[up, c], minlength=n_days)
+                                    for c in range(3)])
+        out = np.empty((n_t * n_u, n_days))
+        _small_matmul(np.stack(diff + beam_f).T, x.T, out)
+        outs.append(out)
+    # (interval, azimuth) pairs whose beam weight changes sign within the tilt range,
+    # a chunk of days at a time: vs = -v with the sun above the horizontal, v with it
+    # below, is positive where it does
+    rows_all = np.flatnonzero((terms.sun_w if with_open else w_vis) != 0.0)
+    n_c = 2 * len(weights)
+    per_day = (n_t + 1) * n_c * n_u
+    # cache-sized chunks of days, but not so many that the per-chunk overhead shows
+    nd = max(int(_GRID_CHUNK_BYTES // (8 * per_day)), -(-n_days // 32))
+    nd = max(1, min(n_days, nd, int(CHUNK_BYTES // (8 * per_day))))
+    bounds = np.searchsorted(day[rows_all], np.arange(0, n_days + nd, nd))
+    views = [out.reshape(n_t, n_u, n_days) for out in outs]
+    comp = np.arange(n_c)
+    for c0, d0 in enumerate(range(0, n_days, nd)):
+        rows = rows_all[bounds[c0]:bounds[c0 + 1]]
+        if rows.size == 0:
+            continue
+        m = min(nd, n_days - d0)
+        cz = sun[rows, 0]
+        sgn = np.where(cz > 0.0, -1.0, 1.0)
+        vs = (sun[rows, 1] * sgn)[:, None] * cg[None, :]
+        vs += (sun[rows, 2] * sgn)[:, None] * sg[None, :]
+        keep = np.flatnonzero(vs > 0.0)
+        if keep.size == 0:
+            continue
+        r = keep // n_u
+        den = vs.ravel()[keep]
+        acz = np.abs(cz)[r]
+        # sun above: positive below b* (first tilt not below it); sun below: above b*.
+        # p = n_t (no sign change within the tilts) goes to a spare row
+        p = _count_below(tilt_u, np.degrees(np.arctan(acz / den)), inclusive=cz[r] <= 0.0)
+        base = (p * (n_c * n_u) + (keep - r * n_u)) * m + (day[rows][r] - d0)
+        # the part past b*, to be taken off (sun above) or added (sun below):
+        # -w |cos z| for the cos b factor and w |v| for the sin b factor
+        vals = np.empty((keep.size, n_c))
+        for k, w in enumerate(weights):
+            wr = w[rows][r]
+            np.multiply(wr, acz, out=vals[:, 2 * k])
+            vals[:, 2 * k] *= -1.0
+            np.multiply(wr, den, out=vals[:, 2 * k + 1])
+        idx = base[:, None] + comp[None, :] * (n_u * m)
+        acc = np.bincount(idx.ravel(), weights=vals.ravel(), minlength=per_day * m)
+        flat = acc.reshape(n_t + 1, n_c * n_u * m)
+        for i in range(1, n_t):
+            flat[i] += flat[i - 1]
+        acc = acc.reshape(n_t + 1, n_c, n_u, m)
+        for k, view in enumerate(views):
+            part, part_sin = acc[:n_t, 2 * k], acc[:n_t, 2 * k + 1]
+            part *= cosb_u[:, None, None]
+            part_sin *= sinb_u[:, None, None]
+            part += part_sin
+            view[:, :, d0:d0 + m] += part
+    return outs[0], (outs[1] if with_open else None)
+
+
+def _small_matmul(a, b, out):
+    """``out = a @ b`` in row blocks small enough for BLAS to run on the calling thread.
+
+    These products have an inner dimension of a few and are memory-bound; a
+    multithreaded BLAS gains nothing on them, and its spinning worker threads
+    slow the numpy work that follows. Common practice, no source.
+    """
+    rows = max(1, _SMALL_BLAS // max(1, a.shape[1] * b.shape[1]))
+    for s in range(0, a.shape[0], rows):
+        np.matmul(a[s:s + rows], b, out=out[s:s + rows])
+    return out
+
+
+def _beam_all_pairs(terms, pv, w_vis, daily, daily_open):
+    """Add beam plus circumsolar to ``daily`` visiting every (interval, plane) pair.
+
+    ``max(cos aoi, 0)`` for a chunk of intervals is one matrix product; the
+    rows are sorted in time, so each day's weighted rows are summed with one
+    segment sum (``np.add.reduceat``).
+
+    References
+    ----------
+    pvlib.irradiance.beam_component (Holmgren et al. 2018).
+    """
+    n_planes = pv.shape[1]
+    day = terms.day_index
     n = len(terms.rows)
-    chunk = max(64, int(CHUNK_BYTES // (8 * max(n_planes, 1))))
+    chunk = max(64, int(CHUNK_BYTES // (8 * 2 * max(n_planes, 1))))
+    pairs = [(w_vis, daily)] + ([(terms.sun_w, daily_open)] if daily_open is not None else [])
     for s in range(0, n, chunk):
         e = min(n, s + chunk)
-        cosaoi = terms.sun_vec[s:e] @ pv
+        cosaoi = _small_matmul(terms.sun_vec[s:e], pv, np.empty((e - s, n_planes)))
         np.maximum(cosaoi, 0.0, out=cosaoi)
-        # rows are sorted in time, so a chunk covers a run of days: one matrix
-        # product with the day-by-row weight matrix sums each day
         d = day[s:e]
-        d0 = int(d[0])
-        n_d = int(d[-1]) - d0 + 1
-        cols = np.arange(e - s)
-        weights = np.zeros((2 * n_d if with_open else n_d, e - s))
-        weights[d - d0, cols] = w_vis[s:e]
-        if with_open:
-            weights[n_d + d - d0, cols] = w_open[s:e]
-        sums = weights @ cosaoi
-        daily[d0:d0 + n_d] += sums[:n_d]
-        if with_open:
-            daily_open[d0:d0 + n_d] += sums[n_d:]
-        clip = terms.clip_rows[s:e]
-        if clip.any():
-            _correct_clipped(terms, s, e, clip, cosaoi, cosb, sinb, iso_factor, iso_ratio, band,
-                             daily, daily_open)
-    return ManyPlaneResult(tilt, azim, daily, daily_open if with_open else None, svf)
+        starts = np.flatnonzero(np.diff(d, prepend=-1))
+        weighted = np.empty_like(cosaoi)
+        for w, out in pairs:
+            np.multiply(cosaoi, w[s:e, None], out=weighted)
+            out[d[starts]] += np.add.reduceat(weighted, starts, axis=0)
 
 
-def _correct_clipped(terms, s, e, clip, cosaoi, cosb, sinb, iso_factor, iso_ratio, band,
-                     daily, daily_open):
-    """Apply pvlib's ``max(total diffuse, 0)`` on the few rows where it can act."""
-    idx = np.flatnonzero(clip)
-    ca = cosaoi[idx]                                          # (r, P)
-    dhi_w = terms.dhi_w[s:e][idx][:, None]
-    om = terms.one_minus_f1[s:e][idx][:, None]
-    f1b = terms.f1_over_b[s:e][idx][:, None]
-    f2 = terms.f2[s:e][idx][:, None]
-    vis = terms.visible[s:e][idx][:, None]
-    t1 = om * iso_factor[None, :]
-    t2 = f1b * ca
-    t3 = f2 * sinb[None, :]
-    total_open = dhi_w * (t1 + t2 + t3)
-    dead = total_open <= 0                                     # pvlib sets all parts to 0
-    if not dead.any():
-        return
-    # what the linear pass added for these rows, to be removed where dead
-    added = dhi_w * (t1 * iso_ratio[None, :] + t2 * vis + t3 * band[None, :])
-    added_open = dhi_w * (t1 + t2 + t3)
-    d = terms.day_index[s:e][idx]
-    np.add.at(daily, d, -np.where(dead, added, 0.0))
-    if daily_open is not None:
-        np.add.at(daily_open, d, -np.where(dead, added_open, 0.0))
+def _correct_clipped(terms, rows, fac, daily, daily_open):
+    """Apply pvlib's ``max(total sky diffuse, 0)`` on the rows where it can act.
+
+    References
+    ----------
+    pvlib.irradiance.perez (Holmgren et al. 2018): ``sky_diffuse = max(dhi
+    (term1 + term2 + term3), 0)``, all parts set to 0 where it clips.
+    """
+    n_planes = fac.pv.shape[1]
+    chunk = max(1, int(CHUNK_BYTES // (8 * 4 * max(n_planes, 1))))
+    iso = fac.iso_factor[None, :]
+    iso_vis = (fac.iso_factor * fac.iso_ratio)[None, :]
+    sinb = fac.sinb[None, :]
+    band = fac.band[None, :]
+    for s in range(0, rows.size, chunk):
+        idx = rows[s:s + chunk]
+        ca = np.maximum(terms.sun_vec[idx] @ fac.pv, 0.0)             # (r, P)
+        dhi_w = terms.dhi_w[idx][:, None]
+        t1 = terms.one_minus_f1[idx][:, None] * iso
+        t2 = terms.f1_over_b[idx][:, None] * ca
+        t3 = terms.f2[idx][:, None] * sinb
+        open_total = t1 + t2 + t3
+        dead = open_total <= 0                                     # pvlib sets all parts to 0
+        if not dead.any():
+            continue
+        d = terms.day_index[idx]
+        # what the linear pass added for these rows, removed where dead
+        added = dhi_w * (terms.one_minus_f1[idx][:, None] * iso_vis
+                         + t2 * terms.visible[idx][:, None] + t3 * band)
+        np.add.at(daily, d, -np.where(dead, added, 0.0))
+        if daily_open is not None:
+            np.add.at(daily_open, d, -np.where(dead, dhi_w * open_total, 0.0))

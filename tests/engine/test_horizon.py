@@ -282,6 +282,44 @@ def test_many_planes_on_the_azimuth_grid_match_one_at_a_time():
     np.testing.assert_allclose(together, one_by_one, rtol=0, atol=1e-12)
 
 
+@pytest.mark.parametrize("tilts", [np.arange(0.0, 91.0, 7.5), np.array([3.0, 41.0, 89.5])])
+def test_tilt_azimuth_grid_matches_one_at_a_time(tilts):
+    # a tilt x azimuth grid on the sample grid (evenly spaced tilts take arithmetic
+    # threshold counts, others a binary search); the horizon dips below the horizontal,
+    # rises steeply and stands above some of the tilts. Same numbers as the direct
+    # integral one plane at a time (1e-12)
+    prof = HorizonProfile((0, 40, 95, 150, 200, 250, 310), (-25.0, 60.0, 5.0, 0.0, 33.0, -8.0, 12.0))
+
+    def h_fn(a):
+        return profile_elevation_deg(prof, a)
+
+    tilt, azim = np.meshgrid(tilts, np.arange(0.0, 360.0, 22.5), indexing="ij")
+    together = sky_view_factor(tilt, azim, h_fn)
+    one_by_one = np.array([float(sky_view_factor(t, a, h_fn))
+                           for t, a in zip(tilt.ravel(), azim.ravel(), strict=True)])
+    np.testing.assert_allclose(together.ravel(), one_by_one, rtol=0, atol=1e-12)
+
+
+@pytest.mark.parametrize("values", [np.arange(0.0, 91.0, 1.0), np.array([0.0, 10.0, 35.0, 62.5]),
+                                    np.array([45.0])])
+def test_threshold_counts_match_binary_search(values):
+    from tiltyard.engine.horizon import _count_below
+
+    x = np.concatenate([np.linspace(-5.0, 100.0, 211), values])
+    # definition of the count of values below x (or at most x): numpy.searchsorted; exact
+    # away from the values themselves, which may fall either way (they split at zero)
+    off = ~np.isin(x, values)
+    np.testing.assert_array_equal(_count_below(values, x)[off],
+                                  np.searchsorted(values, x, side="left")[off])
+    np.testing.assert_array_equal(_count_below(values, x, inclusive=True)[off],
+                                  np.searchsorted(values, x, side="right")[off])
+    inclusive = np.arange(x.size) % 2 == 0
+    np.testing.assert_array_equal(
+        _count_below(values, x, inclusive=inclusive)[off],
+        np.where(inclusive, np.searchsorted(values, x, side="right"),
+                 np.searchsorted(values, x, side="left"))[off])
+
+
 def test_sky_view_factor_accepts_sample_values():
     n_az = 360
     az = (np.arange(n_az) + 0.5) * 360.0 / n_az

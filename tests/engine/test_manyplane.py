@@ -162,14 +162,16 @@ def test_site_horizon_full_grid_sample():
 
 # -- Perez clipping -----------------------------------------------------------------
 
-def _clipping_sky(site):
+def _clipping_sky(site, brightness=1.0):
     """A real sky whose low-sun intervals are replaced by a strongly negative-F2 sky.
 
     Below 5 deg apparent elevation the diffuse is set so that Perez's brightness
-    parameter is 1.0 and the clearness falls in bin 7 (4.5-6.2), where
-    F2 = 0.264 - 1.127 delta + 0.131 z is below -(1 - F1) / 2 and pvlib's
-    max(sky diffuse, 0) acts on steep planes facing away from the sun. These
-    are stress inputs (far brighter than any real sky that low), not data.
+    parameter is ``brightness`` and the clearness falls in bin 7 (4.5-6.2), where
+    F2 = 0.264 - 1.127 delta + 0.131 z. With delta = 1.0 it is below
+    -(1 - F1) / 2 and pvlib's max(sky diffuse, 0) acts on steep planes facing
+    away from the sun; with delta = 0.67 (F2 near -0.3, F1 clipped to 0) it acts
+    only on planes tilted beyond vertical. These are stress inputs (far brighter
+    than any real sky that low), not data.
     """
     sky = sky_year(site, IrradianceOptions(model="perez"))
     zen = sky.position["apparent_zenith"].to_numpy()
@@ -177,7 +179,7 @@ def _clipping_sky(site):
     am = np.nan_to_num(np.asarray(pvlib.atmosphere.get_relative_airmass(zen), dtype=float))
     dhi = sky.dhi.copy()
     dni = sky.dni.copy()
-    dhi[low] = 1.0 * sky.dni_extra[low] / am[low]
+    dhi[low] = brightness * sky.dni_extra[low] / am[low]
     kz3 = 1.041 * np.radians(zen[low]) ** 3
     eps_target = 5.0
     dni[low] = dhi[low] * (eps_target * (1 + kz3) - kz3 - 1.0)
@@ -265,8 +267,128 @@ def test_chunk_bytes_bounds_working_set(monkeypatch, budget):
         _, peak = tracemalloc.get_traced_memory()
     finally:
         tracemalloc.stop()
-    # the outputs and their separable bases are four (n_days, n_planes) arrays; the
-    # chunked beam pass adds about two CHUNK_BYTES (cos aoi and the clipped-row
-    # correction). Bound of the design, common practice, no source; without chunking
-    # the full grid peaks near 375 MiB, above this bound.
+    # the two outputs are (n_days, n_planes) arrays; the grid pass works on chunks of
+    # days of at most CHUNK_BYTES plus per-interval arrays of a chunk, the horizon
+    # factors need a few MiB. Bound of the design, common practice, no source; without
+    # chunking the full grid peaks near 375 MiB, above this bound.
     assert peak < 5 * n_out + 3 * budget, (peak, n_out, budget)
+
+
+# -- evaluation paths ---------------------------------------------------------------
+
+def _all_pairs(monkeypatch, terms, tilt, azim, **kw):
+    """The same call with the grid evaluation switched off (every pair visited)."""
+    with monkeypatch.context() as m:
+        m.setattr(manyplane, "PRODUCT_RATIO", -1)
+        return many_plane_daily(terms, tilt, azim, **kw)
+
+
+def test_grid_and_all_pairs_agree(monkeypatch):
+    site = load_demo("larkmoor-dairy")
+    sky, _ = _clipping_sky(site)
+    terms = many_plane_terms(sky)
+    tilt, azim = np.meshgrid(np.arange(0.0, 91.0, 7.5), np.arange(0.0, 360.0, 20.0),
+                             indexing="ij")
+    grid = many_plane_daily(terms, tilt, azim, site=site, with_open=True)
+    pairs = _all_pairs(monkeypatch, terms, tilt, azim, site=site, with_open=True)
+    # regression: the same sums in two evaluation orders (the grid's sign-change
+    # difference array against max(cos aoi, 0) on every pair), 1e-12 relative
+    np.testing.assert_allclose(grid.daily_kwh_m2, pairs.daily_kwh_m2, rtol=1e-12, atol=1e-15)
+    np.testing.assert_allclose(grid.daily_open_kwh_m2, pairs.daily_open_kwh_m2, rtol=1e-12,
+                               atol=1e-15)
+    np.testing.assert_allclose(grid.sky_view_factor, pairs.sky_view_factor, rtol=1e-12)
+
+
+def test_planes_in_any_order_with_repeats(open_case):
+    sky, terms, result = open_case
+    # azimuth-major order, a repeated plane, azimuths given as 360 and -5 (= 0 and 355)
+    tilt = np.array([10.0, 20.0, 10.0, 20.0, 35.0, 35.0, 90.0, 90.0])
+    azim = np.array([180.0, 180.0, 360.0, 360.0, -5.0, 180.0, 270.0, 270.0])
+    picked = many_plane_daily(terms, tilt, azim)
+    for k, (t, a) in enumerate(zip(tilt, azim, strict=True)):
+        j = _plane_column(result, t, a % 360.0)
+        # regression: the same plane from the full grid, 1e-12 relative
+        np.testing.assert_allclose(picked.daily_kwh_m2[:, k], result.daily_kwh_m2[:, j],
+                                   rtol=1e-12, atol=1e-15)
+    ref = _pvlib_daily(sky, 35.0, -5.0, terms.model)
+    # pvlib get_total_irradiance (Holmgren et al. 2018), 1e-9 relative
+    np.testing.assert_allclose(picked.daily_kwh_m2[:, 4], ref, rtol=1e-9, atol=1e-12)
+
+
+def test_scattered_planes_match_pvlib(open_case):
+    sky, terms, _ = open_case
+    rng = np.random.default_rng(7)
+    tilt = rng.uniform(0.0, 90.0, 40)
+    azim = rng.uniform(0.0, 360.0, 40)
+    assert manyplane._product_layout(tilt, azim) is None    # every pair is visited
+    result = many_plane_daily(terms, tilt, azim)
+    for j in (0, 13, 27, 39):
+        ref = _pvlib_daily(sky, tilt[j], azim[j], terms.model)
+        # pvlib get_total_irradiance (Holmgren et al. 2018), 1e-9 relative
+        np.testing.assert_allclose(result.daily_kwh_m2[:, j], ref, rtol=1e-9, atol=1e-12)
+
+
+def test_sun_just_below_the_horizontal_matches_pvlib():
+    """Sun-up intervals whose evaluation instant has the sun below the horizontal.
+
+    The zenith of the low-sun intervals is pushed past 90 deg (stress input, not
+    data): there the beam reaches only planes tilted towards the sun beyond the
+    sun's depression angle, the other branch of the grid's sign analysis.
+    """
+    sky = sky_year(OPEN_SITE, IrradianceOptions(model="isotropic"))
+    pos = sky.position.copy()
+    zen = pos["apparent_zenith"].to_numpy().copy()
+    low = (sky.sun_up_fraction > 0) & (zen > 80.0)
+    zen[low] += 14.0
+    pos["apparent_zenith"] = zen
+    sky = dataclasses.replace(sky, position=pos)
+    terms = many_plane_terms(sky)
+    assert (terms.sun_vec[:, 0] < 0).sum() > 100
+    tilt, azim = np.meshgrid(np.arange(0.0, 91.0, 10.0), np.arange(0.0, 360.0, 30.0),
+                             indexing="ij")
+    result = many_plane_daily(terms, tilt, azim)
+    for t, a in ((90.0, 90.0), (90.0, 270.0), (60.0, 60.0), (10.0, 300.0), (0.0, 0.0)):
+        ref = _pvlib_daily(sky, t, a, "isotropic")
+        j = _plane_column(result, t, a)
+        # pvlib get_total_irradiance (Holmgren et al. 2018) with beam max(dni cos aoi, 0);
+        # 1e-9 relative
+        np.testing.assert_allclose(result.daily_kwh_m2[:, j], ref, rtol=1e-9, atol=1e-12)
+
+
+@pytest.mark.parametrize("brightness", [1.0, 0.67])
+def test_planes_beyond_vertical_match_pvlib(brightness):
+    sky, low = _clipping_sky(OPEN_SITE, brightness)
+    terms = many_plane_terms(sky)
+    if brightness < 1.0:
+        # the clip acts only beyond vertical here, outside what clip_rows covers
+        assert not np.isin(np.flatnonzero(low), terms.rows[terms.clip_rows]).any()
+    planes = ((100.0, 0.0), (120.0, 180.0), (150.0, 90.0), (45.0, 200.0))
+    result = many_plane_daily(terms, [p[0] for p in planes], [p[1] for p in planes])
+    up = sky.sun_up_fraction > 0
+    pos = sky.position
+    diffuse = pvlib.irradiance.get_sky_diffuse(
+        150.0, 90.0, pos["apparent_zenith"].to_numpy()[up], pos["azimuth"].to_numpy()[up],
+        sky.dni[up], sky.ghi[up], sky.dhi[up], dni_extra=sky.dni_extra[up], model="perez")
+    assert (np.asarray(diffuse) == 0).sum() > 100       # the clip acts in the reference
+    for j, (t, a) in enumerate(planes):
+        ref = _pvlib_daily(sky, t, a, "perez")
+        # pvlib get_total_irradiance (Holmgren et al. 2018) including its clip of the
+        # Perez sky diffuse at 0; 1e-9 relative
+        np.testing.assert_allclose(result.daily_kwh_m2[:, j], ref, rtol=1e-9, atol=1e-12)
+
+
+def test_polar_site_narrow_azimuth_fan_matches_pvlib(monkeypatch):
+    # near the polar night the sun stays near the south, so on some days no plane of a
+    # narrow fan around south ever turns away from it; one-day chunks meet such days
+    site = Site("polar", 69.65, 18.96, 10.0, "Europe/Oslo")
+    sky = sky_year(site, IrradianceOptions(model="perez"))
+    terms = many_plane_terms(sky)
+    tilt, azim = np.meshgrid(np.arange(0.0, 91.0, 15.0), [175.0, 180.0, 185.0], indexing="ij")
+    monkeypatch.setattr(manyplane, "CHUNK_BYTES", 1)
+    result = many_plane_daily(terms, tilt, azim)
+    assert (result.daily_kwh_m2[:, 0] == 0).sum() > 20          # polar night
+    for t, a in ((90.0, 180.0), (45.0, 175.0), (0.0, 185.0)):
+        ref = _pvlib_daily(sky, t, a, "perez")
+        j = _plane_column(result, t, a)
+        # pvlib get_total_irradiance (Holmgren et al. 2018), 1e-9 relative
+        np.testing.assert_allclose(result.daily_kwh_m2[:, j], ref, rtol=1e-9, atol=1e-12)
