@@ -2,7 +2,8 @@
 
 from .sheet_view import SheetView
 from .site_view import SiteView
+from .sunpath_view import SunPathView
 
-VIEW_CLASSES = [SiteView, SheetView]
+VIEW_CLASSES = [SiteView, SunPathView, SheetView]
 
 __all__ = ["VIEW_CLASSES"]

@@ -1,0 +1,707 @@
+"""Sun path view: where the sun goes over the site through the year, and what blocks it.
+
+Two charts of the same sky:
+
+- **elevation against azimuth**, centred on the direction of the equator as
+  seen from the site: facing south at a northern site (east on the left),
+  facing north at a southern site (east on the right);
+- **seen from above**, like a map: north up, east to the right, the zenith at
+  the centre and rings at 0°, 30° and 60° elevation.
+
+Both show the day paths of the solstices, the equinoxes and the 21st of every
+month (month colours), the hour lines in the chosen time basis, the site
+horizon with its obstacles filled below the line, and the chosen date in bold.
+All numbers come from :func:`tiltyard.engine.sunchart.sun_chart`, run through
+the task runner; this module only maps them to the screen.
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+import math
+import zoneinfo
+
+import numpy as np
+import pyqtgraph as pg
+from PySide6.QtCore import QDate, QPointF, Qt
+from PySide6.QtGui import QColor, QStandardItem, QStandardItemModel
+from PySide6.QtWidgets import (
+    QComboBox,
+    QDateEdit,
+    QHBoxLayout,
+    QHeaderView,
+    QLabel,
+    QSizePolicy,
+    QVBoxLayout,
+    QWidget,
+)
+
+from tiltyard.engine.sunchart import sun_chart
+
+from .. import theme
+from ..widgets import CopyableTable, View
+
+#: Time bases offered, with the words used in the Preferences dialog.
+BASES = (("clock", "local clock time (with daylight saving)"),
+         ("standard", "local standard time"),
+         ("solar", "apparent solar time"))
+BASIS_SHORT = {"clock": "clock time", "standard": "standard time", "solar": "solar time"}
+
+COMPASS = ("N", "NNE", "NE", "ENE", "E", "ESE", "SE", "SSE",
+           "S", "SSW", "SW", "WSW", "W", "WNW", "NW", "NNW")
+MONTHS = ("Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec")
+
+HOUR_LINE_COLOR = "#8b9198"
+HOUR_TEXT_COLOR = "#4b525a"
+LABEL_FILL = (255, 255, 255, 190)     # behind hour and ring labels, so lines do not cross them
+#: Hour labels nearer the zenith than this (degrees) are written at this distance.
+NEAR_ZENITH_LABEL_R = 28.0
+#: How near (pixels) the pointer must be to a path for the readout to show it.
+PICK_RADIUS_PX = 40.0
+
+
+# -- small formatting helpers (no physics) -------------------------------------------
+
+def compass(azimuth_deg: float) -> str:
+    """Sixteen-point compass name of an azimuth (degrees clockwise from north)."""
+    return COMPASS[int(math.floor((azimuth_deg % 360.0) / 22.5 + 0.5)) % 16]
+
+
+def hhmm(hours: float) -> str:
+    """Hours of the day as ``HH:MM`` (rounded to the minute); an em dash for NaN."""
+    if hours is None or not math.isfinite(hours):
+        return "—"
+    m = int(round(hours * 60.0)) % (24 * 60)
+    return f"{m // 60:02d}:{m % 60:02d}"
+
+
+def duration(hours: float) -> str:
+    """A duration as ``15 h 38 min``."""
+    m = int(round(hours * 60.0))
+    return f"{m // 60} h {m % 60:02d} min"
+
+
+def chart_x(azimuth_deg, centre_deg: float) -> np.ndarray:
+    """Horizontal chart coordinate of an azimuth on a chart centred on ``centre_deg``.
+
+    Centred on 180° (northern sites) the coordinate is the azimuth itself,
+    0..360 with east on the left; centred on 0° (southern sites) it is the
+    azimuth folded to -180..180, so east (90) is on the right. (Facing the
+    equator, east is on the observer's left in the north and right in the
+    south: common practice, no source.)
+    """
+    az = np.asarray(azimuth_deg, dtype=float)
+    return np.mod(az - centre_deg + 180.0, 360.0) - 180.0 + centre_deg
+
+
+def split_at_edges(azimuth_deg, elevation_deg, centre_deg: float):
+    """Chart x/y of a curve, cut where it crosses the chart's side edges.
+
+    Where the curve passes through the direction opposite the centre, the
+    crossing point is added on both edges with a NaN between them, so the
+    curve leaves one side and comes back on the other. NaNs in the input
+    (breaks between pieces) are kept.
+    """
+    az = np.asarray(azimuth_deg, dtype=float)
+    el = np.asarray(elevation_deg, dtype=float)
+    x = chart_x(az, centre_deg)
+    if len(az) < 2:
+        return x, el
+    lo, hi = centre_deg - 180.0, centre_deg + 180.0
+    d_ang = np.mod(az[1:] - az[:-1] + 180.0, 360.0) - 180.0
+    dx = x[1:] - x[:-1]
+    with np.errstate(invalid="ignore"):
+        wraps = np.flatnonzero(np.abs(dx - d_ang) > 1.0)
+    if len(wraps) == 0:
+        return x, el
+    xs, ys, start = [], [], 0
+    for i in wraps:
+        xs.append(x[start:i + 1])
+        ys.append(el[start:i + 1])
+        if d_ang[i] > 0:
+            frac = (hi - x[i]) / d_ang[i]
+            edge_out, edge_in = hi, lo
+        else:
+            frac = (x[i] - lo) / -d_ang[i]
+            edge_out, edge_in = lo, hi
+        yc = el[i] + frac * (el[i + 1] - el[i])
+        xs.append(np.array([edge_out, np.nan, edge_in]))
+        ys.append(np.array([yc, np.nan, yc]))
+        start = i + 1
+    xs.append(x[start:])
+    ys.append(el[start:])
+    return np.concatenate(xs), np.concatenate(ys)
+
+
+def polar_xy(azimuth_deg, elevation_deg):
+    """Map x/y seen from above: north up, east right, radius = 90° - elevation.
+
+    An azimuthal equidistant sky map centred on the zenith (common practice, no
+    source); elevations below 0° are drawn on the horizon ring.
+    """
+    az = np.radians(np.asarray(azimuth_deg, dtype=float))
+    r = 90.0 - np.clip(np.asarray(elevation_deg, dtype=float), 0.0, 90.0)
+    return r * np.sin(az), r * np.cos(az)
+
+
+def _pen(color, width: float, style=Qt.PenStyle.SolidLine):
+    pen = pg.mkPen(color, width=width)
+    pen.setStyle(style)
+    pen.setCapStyle(Qt.PenCapStyle.RoundCap)
+    return pen
+
+
+def _hex(c: QColor) -> str:
+    return c.name()
+
+
+class SunPathView(View):
+    """The sun's paths, hour lines and horizon; the chosen date; a monthly events table."""
+
+    title = "Sun path"
+
+    def __init__(self, ctx, parent=None):
+        super().__init__(ctx, parent)
+        self.chart = None                  # the last SunChart shown
+        self.path_items: dict[str, pg.PlotDataItem] = {}
+        self.polar_path_items: dict[str, pg.PlotDataItem] = {}
+        self.hour_items: dict[int, tuple] = {}
+        self.polar_hour_items: dict[int, tuple] = {}
+        self._pick: dict[str, list] = {"cart": [], "polar": []}
+
+        outer = QVBoxLayout(self)
+        outer.setContentsMargins(14, 8, 14, 6)
+        outer.setSpacing(4)
+
+        # -- controls -----------------------------------------------------------
+        top = QHBoxLayout()
+        head = QLabel("Sun path")
+        head.setProperty("role", "heading")
+        top.addWidget(head)
+        self.site_label = QLabel()
+        self.site_label.setProperty("role", "muted")
+        top.addWidget(self.site_label, 1)
+        top.addWidget(QLabel("Date"))
+        self.date_edit = QDateEdit()
+        self.date_edit.setCalendarPopup(True)
+        self.date_edit.setDisplayFormat("d MMM yyyy")
+        self.date_edit.setDateRange(QDate(1901, 1, 1), QDate(2099, 12, 31))
+        self.date_edit.setDate(QDate.currentDate())
+        self.date_edit.setToolTip("The date drawn in bold and described below the charts")
+        top.addWidget(self.date_edit)
+        top.addSpacing(10)
+        top.addWidget(QLabel("Times in"))
+        self.basis = QComboBox()
+        for key, text in BASES:
+            self.basis.addItem(text, key)
+        self._set_basis(ctx.prefs.time_basis)
+        self.basis.setToolTip("Time basis of the hour lines, the readout and the tables")
+        top.addWidget(self.basis)
+        outer.addLayout(top)
+
+        # -- charts ---------------------------------------------------------------
+        charts = QWidget()
+        cl = QHBoxLayout(charts)
+        cl.setContentsMargins(0, 0, 0, 0)
+        cl.setSpacing(6)
+        self.cart = pg.PlotWidget()
+        self.polar = pg.PlotWidget()
+        for w in (self.cart, self.polar):
+            w.setBackground("w")
+            w.setMinimumHeight(260)
+            w.setSizePolicy(QSizePolicy.Policy.Expanding, QSizePolicy.Policy.Expanding)
+            p = w.getPlotItem()
+            p.setMenuEnabled(False)
+            p.hideButtons()
+            p.setMouseEnabled(x=False, y=False)
+        cl.addWidget(self.cart, 3)
+        cl.addWidget(self.polar, 2)
+        self._setup_cartesian()
+        self._setup_polar()
+
+        self.legend = QLabel()
+        self.legend.setWordWrap(True)
+        self.legend.setTextFormat(Qt.TextFormat.RichText)
+        self.readout = QLabel("Point at a path on either chart to read its time and position.")
+        self.readout.setProperty("role", "muted")
+        self.readout.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
+
+        upper = QWidget()
+        ul = QVBoxLayout(upper)
+        ul.setContentsMargins(0, 0, 0, 0)
+        ul.setSpacing(2)
+        ul.addWidget(charts, 1)
+        ul.addWidget(self.legend)
+        ul.addWidget(self.readout)
+
+        # -- chosen date and the monthly table --------------------------------------
+        lower = QWidget()
+        ll = QHBoxLayout(lower)
+        ll.setContentsMargins(0, 4, 0, 0)
+        ll.setSpacing(12)
+        self.day_text = QLabel("Computing…")
+        self.day_text.setTextFormat(Qt.TextFormat.RichText)
+        self.day_text.setWordWrap(True)
+        self.day_text.setAlignment(Qt.AlignmentFlag.AlignTop | Qt.AlignmentFlag.AlignLeft)
+        self.day_text.setFixedWidth(250)
+        self.day_text.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
+        ll.addWidget(self.day_text)
+        tbox = QVBoxLayout()
+        tbox.setSpacing(2)
+        self.table_caption = QLabel()
+        self.table_caption.setProperty("role", "muted")
+        tbox.addWidget(self.table_caption)
+        self.events_model = QStandardItemModel(0, 0, self)
+        self.table = CopyableTable()
+        self.table.setSortingEnabled(False)
+        self.table.setModel(self.events_model)
+        self.table.verticalHeader().setDefaultSectionSize(19)
+        self.table.setWordWrap(False)
+        tbox.addWidget(self.table, 1)
+        ll.addLayout(tbox, 1)
+
+        outer.addWidget(upper, 1)
+        outer.addWidget(lower, 0)
+
+        # -- signals ----------------------------------------------------------------
+        self.date_edit.dateChanged.connect(lambda _d: self.mark_stale())
+        self.basis.currentIndexChanged.connect(lambda _i: self.mark_stale())
+        ctx.preferences_changed.connect(lambda prefs: self._set_basis(prefs.time_basis))
+        self._proxies = [
+            pg.SignalProxy(self.cart.scene().sigMouseMoved, rateLimit=30,
+                           slot=self._on_cart_mouse_moved),
+            pg.SignalProxy(self.polar.scene().sigMouseMoved, rateLimit=30,
+                           slot=self._on_polar_mouse_moved)]
+        self._show_site_label(ctx.site)
+
+    # -- set-up -------------------------------------------------------------------
+    def _set_basis(self, basis: str) -> None:
+        i = self.basis.findData(basis)
+        if i >= 0 and i != self.basis.currentIndex():
+            self.basis.setCurrentIndex(i)
+
+    # Plot items are made once and then only given new data: every pyqtgraph
+    # item added or removed costs several signal emissions, so redrawing by
+    # clearing the plots would be needlessly heavy.
+    def _item(self, plot, store: dict, key, z: float, pen=None) -> pg.PlotDataItem:
+        item = store.get(key)
+        if item is None:
+            item = pg.PlotDataItem(pen=pen)
+            item.setZValue(z)
+            plot.addItem(item)
+            store[key] = item
+        return item
+
+    @staticmethod
+    def _set(item, x, y) -> None:
+        """New data for a curve, skipped when it is the data already shown."""
+        x, y = np.asarray(x, dtype=float), np.asarray(y, dtype=float)
+        last = getattr(item, "_shown", None)
+        if last is not None and np.array_equal(last[0], x, equal_nan=True) \
+                and np.array_equal(last[1], y, equal_nan=True):
+            return
+        item.setData(x, y, connect="finite")
+        item._shown = (x, y)
+
+    def _text(self, plot, store: dict, key, z: float, size: float = 8.5,
+              color: str = HOUR_TEXT_COLOR) -> pg.TextItem:
+        item = store.get(key)
+        if item is None:
+            item = pg.TextItem("", color=color, fill=LABEL_FILL)
+            item.setFont(theme.plot_font(size))
+            item.setZValue(z)
+            plot.addItem(item)
+            store[key] = item
+        return item
+
+    def _setup_cartesian(self) -> None:
+        p = self.cart.getPlotItem()
+        theme.style_plot(p, "Elevation (°)", "Azimuth (° clockwise from north)")
+        p.getAxis("bottom").setHeight(42)
+        p.getAxis("left").setWidth(44)
+        self._cart_items: dict = {}
+        self._cart_texts: dict = {}
+        self.horizon_item = self._item(p, self._cart_items, "horizon", 5,
+                                       _pen(theme.HORIZON_LINE, 1.4))
+        self.horizon_item.setFillLevel(-100.0)
+        self.horizon_item.setBrush(pg.mkBrush(*theme.HORIZON_FILL))
+        self.day_item = self._day_items(p, self._cart_items)
+
+    def _day_items(self, plot, store):
+        """The chosen date: dotted where hidden, white halo and bold where the sun is clear."""
+        self._item(plot, store, "day hidden", 10,
+                   _pen(theme.ACCENT, 1.8, Qt.PenStyle.DotLine))
+        self._item(plot, store, "day halo", 9, _pen("#ffffff", 7.0))
+        bold = self._item(plot, store, "day", 11, _pen(theme.ACCENT, 3.6))
+        bold.full_data = (np.array([]), np.array([]))
+        return bold
+
+    def _set_day(self, store, day, mapper) -> None:
+        if len(day) == 0:
+            x = y = xv = yv = np.array([])
+        else:
+            x, y = mapper(day.azimuth_deg, day.elevation_deg)
+            xv, yv = mapper(day.azimuth_deg, np.where(day.visible, day.elevation_deg, np.nan))
+        self._set(store["day hidden"], x, y)
+        self._set(store["day halo"], xv, yv)
+        self._set(store["day"], xv, yv)
+        store["day"].full_data = (x, y)
+
+    def _setup_polar(self) -> None:
+        p = self.polar.getPlotItem()
+        p.hideAxis("left")
+        p.hideAxis("bottom")
+        p.setAspectLocked(True)
+        p.setTitle("Seen from above · north up, east to the right", color=theme.TEXT,
+                   size="10pt")
+        self._polar_items: dict = {}
+        self._polar_texts: dict = {}
+        # horizon: between the outer ring (0° elevation) and the horizon line
+        self._polar_outer = pg.PlotCurveItem(pen=pg.mkPen(None))
+        self._polar_horizon = pg.PlotCurveItem(pen=_pen(theme.HORIZON_LINE, 1.4))
+        fill = pg.FillBetweenItem(self._polar_outer, self._polar_horizon,
+                                  brush=pg.mkBrush(*theme.HORIZON_FILL))
+        for it, z in ((self._polar_outer, 5), (fill, 5), (self._polar_horizon, 6)):
+            it.setZValue(z)
+            p.addItem(it)
+        # elevation rings and bearings
+        ring = np.radians(np.arange(0.0, 361.0, 2.0))
+        for el in (0.0, 30.0, 60.0):
+            r = 90.0 - el
+            c = pg.PlotCurveItem(r * np.sin(ring), r * np.cos(ring),
+                                 pen=_pen(theme.MUTED if el == 0 else theme.GRID, 1.0))
+            c.setZValue(0)
+            p.addItem(c)
+        for b in np.arange(0.0, 360.0, 45.0):
+            s, c = math.sin(math.radians(b)), math.cos(math.radians(b))
+            line = pg.PlotCurveItem([0, 90 * s], [0, 90 * c], pen=_pen(theme.GRID, 1.0))
+            line.setZValue(0)
+            p.addItem(line)
+            name = compass(b)
+            big = len(name) == 1
+            t = pg.TextItem(name, color=theme.TEXT if big else theme.MUTED,
+                            anchor=(0.5 - 0.5 * s, 0.5 + 0.5 * c))
+            t.setFont(theme.plot_font(10 if big else 8.5))
+            t.setPos(92 * s, 92 * c)
+            p.addItem(t)
+        for el in (0.0, 30.0, 60.0, 90.0):
+            self._text(p, self._polar_texts, ("ring", el), 7, 8, theme.MUTED).setText(
+                f"{el:.0f}°")
+        zen = pg.ScatterPlotItem([0], [0], size=5, brush=pg.mkBrush(theme.MUTED), pen=None)
+        p.addItem(zen)
+        self.polar_day_item = self._day_items(p, self._polar_items)
+        p.setRange(xRange=(-106, 106), yRange=(-104, 104), padding=0)
+
+    def _show_site_label(self, site) -> None:
+        hemi = "N" if site.latitude_deg >= 0 else "S"
+        ew = "E" if site.longitude_deg >= 0 else "W"
+        self.site_label.setText(f"  {site.name} · {abs(site.latitude_deg):.2f}° {hemi}, "
+                                f"{abs(site.longitude_deg):.2f}° {ew} · {site.timezone}")
+
+    # -- computation ------------------------------------------------------------------
+    def refresh(self) -> None:
+        super().refresh()
+        site = self.ctx.site
+        date = self.date_edit.date().toPython()
+        basis = self.basis.currentData()
+        self._show_site_label(site)
+        self.ctx.runner.submit(self.channel("chart"),
+                               lambda progress: sun_chart(site, date, basis, progress=progress),
+                               self._show_chart, label="Sun path")
+
+    # -- drawing ----------------------------------------------------------------------
+    def _show_chart(self, chart) -> None:
+        self.chart = chart
+        self._draw_cartesian(chart)
+        self._draw_polar(chart)
+        self._show_legend(chart)
+        self._show_day(chart)
+        self._show_events(chart)
+
+    @staticmethod
+    def _path_pen(curve):
+        color = theme.month_color(curve.month)
+        return _pen(color, 2.6 if curve.kind in ("solstice", "equinox") else 1.3)
+
+    def _draw_paths(self, plot, items, chart, mapper, pick_mapper):
+        """Day paths (solstices and equinoxes above the 21sts) and the pick lists."""
+        shown = {}
+        pick = [(chart.day, *pick_mapper(chart.day.azimuth_deg, chart.day.elevation_deg))]
+        for curve in chart.paths:
+            item = self._item(plot, items, ("path", curve.label),
+                              3 if curve.kind == "month" else 4, self._path_pen(curve))
+            self._set(item, *mapper(curve.azimuth_deg, curve.elevation_deg))
+            shown[curve.label] = item
+            pick.append((curve, *pick_mapper(curve.azimuth_deg, curve.elevation_deg)))
+        return shown, pick
+
+    def _draw_hours(self, plot, items, texts, chart, mapper, place_label):
+        """Hour lines and their labels; lines of hours not in this chart are emptied."""
+        shown = {}
+        for line in chart.hour_lines:
+            item = self._item(plot, items, ("hour", line.hour), 1, _pen(HOUR_LINE_COLOR, 1.0))
+            self._set(item, *mapper(line.azimuth_deg, line.elevation_deg))
+            text = self._text(plot, texts, ("hour", line.hour), 12)
+            text.setText(f"{line.hour}")
+            place_label(text, line)
+            text.setVisible(True)
+            shown[line.hour] = (item, text)
+        for key, item in items.items():
+            if key[0] == "hour" and key[1] not in shown:
+                self._set(item, [], [])
+                texts[key].setVisible(False)
+        return shown
+
+    def _draw_cartesian(self, chart) -> None:
+        p = self.cart.getPlotItem()
+        centre = chart.equator_azimuth_deg
+        lo, hi = centre - 180.0, centre + 180.0
+        facing = "south" if centre == 180.0 else "north"
+        side = "left" if centre == 180.0 else "right"
+        p.setTitle(f"Elevation against azimuth · facing {facing}, east on the {side}",
+                   color=theme.TEXT, size="10pt")
+        # x ticks: compass letters and degrees every 45°, minor ticks every 15°; the two
+        # edges (both the direction away from the equator) carry the letter only, so it fits
+        major = [(v, compass(v) if v in (lo, hi) else f"{compass(v)} {v % 360:.0f}°")
+                 for v in np.arange(lo, hi + 1, 45.0)]
+        minor = [(v, "") for v in np.arange(lo, hi + 1, 15.0) if v % 45]
+        p.getAxis("bottom").setTicks([major, minor])
+
+        # horizon filled below its line
+        hx = chart_x(chart.horizon_azimuth_deg, centre)
+        order = np.argsort(hx, kind="stable")
+        hx, hy = hx[order], chart.horizon_elevation_deg[order]
+        hx, keep = np.unique(hx, return_index=True)
+        hy = hy[keep]
+        if hx[0] > lo:
+            hx, hy = np.append(lo, hx), np.append(hy[-1], hy)
+        if hx[-1] < hi:
+            hx, hy = np.append(hx, hi), np.append(hy, hy[0])
+        self._set(self.horizon_item, hx, hy)
+
+        def split(az, el):
+            return split_at_edges(az, el, centre)
+
+        def place(text, line):
+            text.setAnchor((0.5, 1.1) if line.label_on_top else (0.5, -0.1))
+            text.setPos(float(chart_x(line.label_azimuth_deg, centre)),
+                        line.label_elevation_deg)
+
+        self.hour_items = self._draw_hours(p, self._cart_items, self._cart_texts, chart,
+                                           split, place)
+        self.path_items, self._pick["cart"] = self._draw_paths(
+            p, self._cart_items, chart, split, lambda az, el: (chart_x(az, centre), el))
+        self._set_day(self._cart_items, chart.day, split)
+
+        max_el = max([float(np.max(c.elevation_deg)) for c in chart.paths if len(c)] + [10.0])
+        ymin = min(-2.0, math.floor(float(np.min(hy))) - 2.0)
+        ymax = min(92.0, max(30.0, math.ceil((max_el + 8.0) / 10.0) * 10.0))
+        # a little room at the sides so the edge ticks show their letters
+        p.setRange(xRange=(lo - 6.0, hi + 6.0), yRange=(ymin, ymax), padding=0.0)
+
+    def _draw_polar(self, chart) -> None:
+        p = self.polar.getPlotItem()
+        az = chart.horizon_azimuth_deg
+        hx, hy = polar_xy(az, np.maximum(chart.horizon_elevation_deg, 0.0))
+        ox, oy = polar_xy(az, np.zeros_like(az))
+        self._set(self._polar_outer, ox, oy)
+        self._set(self._polar_horizon, hx, hy)
+        # ring labels on the side away from the equator, where paths are fewest;
+        # the zenith's label on that side of the centre
+        pole = 0.0 if chart.equator_azimuth_deg == 180.0 else 180.0
+        b = math.radians(pole + 20.0)
+        for el in (30.0, 60.0):
+            t = self._polar_texts[("ring", el)]
+            t.setAnchor((0.5, 0.5))
+            t.setPos((90.0 - el) * math.sin(b), (90.0 - el) * math.cos(b))
+        # 0° just outside the horizon ring, clear of the lowest paths
+        t = self._polar_texts[("ring", 0.0)]
+        t.setAnchor((0.5 - 0.5 * math.sin(b), 0.5 + 0.5 * math.cos(b)))
+        t.setPos(91.0 * math.sin(b), 91.0 * math.cos(b))
+        zen = self._polar_texts[("ring", 90.0)]
+        zen.setAnchor((0.5, 1.2) if pole == 0.0 else (0.5, -0.2))
+        zen.setPos(0.0, 0.0)
+
+        def place(text, line):
+            br = math.radians(line.label_azimuth_deg)
+            r = 90.0 - line.label_elevation_deg
+            if r < NEAR_ZENITH_LABEL_R:
+                # close to the zenith the label points of several hours meet: write the
+                # hour further out along its own bearing, where the line runs on
+                text.setAnchor((0.5, 0.5))
+                text.setPos(NEAR_ZENITH_LABEL_R * math.sin(br),
+                            NEAR_ZENITH_LABEL_R * math.cos(br))
+                return
+            # towards the zenith when the label sits above its point on the other chart
+            sign = -1.0 if line.label_on_top else 1.0
+            ux, uy = sign * math.sin(br), sign * math.cos(br)
+            text.setAnchor((0.5 - 0.6 * ux, 0.5 + 0.6 * uy))
+            text.setPos(r * math.sin(br), r * math.cos(br))
+
+        self.polar_hour_items = self._draw_hours(p, self._polar_items, self._polar_texts,
+                                                 chart, polar_xy, place)
+        self.polar_path_items, self._pick["polar"] = self._draw_paths(
+            p, self._polar_items, chart, polar_xy, polar_xy)
+        self._set_day(self._polar_items, chart.day, polar_xy)
+
+    def _show_legend(self, chart) -> None:
+        months = " ".join(
+            f"<span style='color:{_hex(theme.month_color(m))}; font-size:13pt'>━</span>"
+            f"&nbsp;{MONTHS[m - 1]}" for m in range(1, 13))
+        hz = "rgba({},{},{},{:.2f})".format(*theme.HORIZON_FILL[:3], theme.HORIZON_FILL[3] / 255)
+        basis = BASIS_SHORT[chart.basis]
+        self.legend.setText(
+            f"<span style='color:{theme.MUTED}'>21st of each month:</span> {months}"
+            " &nbsp;·&nbsp; thick: solstices and equinoxes"
+            f"<br><span style='color:{theme.ACCENT}; font-size:13pt'>━</span>&nbsp;"
+            f"{chart.day.label} (dotted where the horizon hides the sun)"
+            f" &nbsp;·&nbsp; <span style='color:{HOUR_LINE_COLOR}; font-size:13pt'>━</span>"
+            f"&nbsp;hour lines, {basis}"
+            f" &nbsp;·&nbsp; <span style='background:{hz}'>&nbsp;&nbsp;&nbsp;&nbsp;</span>"
+            "&nbsp;horizon and obstacles")
+
+    def _basis_note(self, chart) -> str:
+        if chart.basis == "solar":
+            return "apparent solar time (12:00 = the sun due " + (
+                "south" if chart.equator_azimuth_deg == 180.0 else "north") + " or overhead)"
+        zone = zoneinfo.ZoneInfo(chart.timezone)
+        offs = []
+        for month in (1, 7):
+            t = _dt.datetime(chart.year, month, 15, 12, tzinfo=zone)
+            off = t.utcoffset() - (t.dst() or _dt.timedelta(0)) if chart.basis == "standard" \
+                else t.utcoffset()
+            mins = int(off.total_seconds() // 60)
+            sign = "+" if mins >= 0 else "−"
+            text = f"UTC{sign}{abs(mins) // 60:02d}:{abs(mins) % 60:02d}"
+            if text not in offs:
+                offs.append(text)
+        if chart.basis == "standard":
+            return f"local standard time ({offs[0]} all year)"
+        dst = " with daylight saving" if len(offs) > 1 else ", no daylight saving"
+        return f"local clock time ({chart.timezone}, {' / '.join(offs)}{dst})"
+
+    def _show_day(self, chart) -> None:
+        s = chart.summary
+        basis = BASIS_SHORT[chart.basis]
+        lines = [f"<b>{chart.day.label}</b> <span style='color:{theme.MUTED}'>({basis})</span>"]
+        if s.polar == "day":
+            lines.append("<b>Polar day</b>: the sun does not set.")
+            lines.append(f"Solar noon {hhmm(s.solar_noon_h)}")
+            lines.append(f"Highest elevation {s.max_elevation_deg:.1f}°")
+        elif s.polar == "night":
+            lines.append("<b>Polar night</b>: the sun does not rise.")
+            lines.append(f"At solar noon ({hhmm(s.solar_noon_h)}) it stays "
+                         f"{-s.max_elevation_deg:.1f}° below the horizon.")
+        else:
+            lines.append(f"Sunrise {hhmm(s.sunrise_h)} · sunset {hhmm(s.sunset_h)}")
+            lines.append(f"Solar noon {hhmm(s.solar_noon_h)}")
+            lines.append(f"Day length {duration(s.day_length_h)}")
+            lines.append(f"Highest elevation {s.max_elevation_deg:.1f}°")
+        if s.polar != "night":
+            if s.direct_sun_h <= 0.0:
+                lines.append("The site horizon hides the sun all day.")
+            else:
+                first = (f"clears the site horizon at {hhmm(s.clears_horizon_h)}"
+                         if s.clears_horizon is not None else None)
+                last = (f"drops behind it at {hhmm(s.behind_horizon_h)}"
+                        if s.behind_horizon is not None else None)
+                if first or last:
+                    said = ", ".join(x for x in (first, last) if x)
+                    lines.append(f"The sun {said}.")
+                lines.append(f"Direct sun on the site: {duration(s.direct_sun_h)}")
+        self.day_text.setText("<br>".join(lines))
+
+    def _show_events(self, chart) -> None:
+        heads = ["Date", "Sunrise\n(hh:mm)", "Solar noon\n(hh:mm)", "Sunset\n(hh:mm)",
+                 "Day length\n(h)", "Elevation\nat noon (°)", "Sun clears\nhorizon\n(hh:mm)",
+                 "Sun behind\nhorizon\n(hh:mm)", "Direct sun\n(h)"]
+        m = self.events_model
+        m.clear()
+        m.setHorizontalHeaderLabels(heads)
+        for r in chart.events.itertuples():
+            polar = r.polar
+            if polar in ("day", "night"):
+                rise = sset = f"polar {polar}"
+            else:
+                rise, sset = hhmm(r.sunrise_h), hhmm(r.sunset_h)
+            if polar == "night":
+                clears = behind = "—"
+            elif r.direct_sun_h <= 0.0:
+                clears = behind = "no sun"
+            else:
+                clears = hhmm(r.clears_horizon_h) if math.isfinite(r.clears_horizon_h) else (
+                    "at sunrise" if polar is None else "—")
+                behind = hhmm(r.behind_horizon_h) if math.isfinite(r.behind_horizon_h) else (
+                    "at sunset" if polar is None else "—")
+            cells = [f"{r.date.day} {MONTHS[r.date.month - 1]}", rise,
+                     hhmm(r.solar_noon_h), sset, f"{r.day_length_h:.2f}",
+                     f"{r.noon_elevation_deg:.1f}", clears, behind, f"{r.direct_sun_h:.2f}"]
+            items = []
+            for i, text in enumerate(cells):
+                it = QStandardItem(text)
+                it.setEditable(False)
+                if i > 0:
+                    it.setTextAlignment(Qt.AlignmentFlag.AlignRight
+                                        | Qt.AlignmentFlag.AlignVCenter)
+                items.append(it)
+            m.appendRow(items)
+        hdr = self.table.horizontalHeader()
+        hdr.setSectionResizeMode(QHeaderView.ResizeMode.Stretch)
+        hdr.setSectionResizeMode(0, QHeaderView.ResizeMode.ResizeToContents)
+        # room for all twelve months without scrolling
+        rows = self.table.verticalHeader().defaultSectionSize() * m.rowCount()
+        self.table.setFixedHeight(hdr.sizeHint().height() + rows + 2 * self.table.frameWidth()
+                                  + 2)
+        self.table_caption.setText(f"Sun on the 21st of each month · times in "
+                                   f"{self._basis_note(chart)}")
+
+    # -- pointer readout ------------------------------------------------------------
+    def _on_cart_mouse_moved(self, event) -> None:
+        self._on_mouse_moved(event, "cart")
+
+    def _on_polar_mouse_moved(self, event) -> None:
+        self._on_mouse_moved(event, "polar")
+
+    def _on_mouse_moved(self, event, chart: str = "cart") -> None:
+        """SignalProxy slot: ``event`` is the tuple of sigMouseMoved arguments."""
+        pos = event[0] if isinstance(event, (tuple, list)) else event
+        text = self.readout_at(pos, chart)
+        if text:
+            self.readout.setText(text)
+
+    def readout_at(self, scene_pos: QPointF, chart: str = "cart") -> str | None:
+        """The readout for a position in the scene of one chart (``"cart"`` or ``"polar"``).
+
+        None before the first result or when the position is outside the plot area.
+        """
+        if self.chart is None:
+            return None
+        widget = self.cart if chart == "cart" else self.polar
+        vb = widget.getPlotItem().getViewBox()
+        if not vb.sceneBoundingRect().contains(scene_pos):
+            return None
+        view_pt = vb.mapSceneToView(scene_pos)
+        return self._nearest_text(chart, vb, view_pt.x(), view_pt.y())
+
+    def _nearest_text(self, key, vb, x, y) -> str:
+        px, py = vb.viewPixelSize()
+        best = None
+        for curve, xs, ys in self._pick[key]:
+            if len(xs) == 0:
+                continue
+            d2 = ((np.asarray(xs) - x) / px) ** 2 + ((np.asarray(ys) - y) / py) ** 2
+            i = int(np.nanargmin(d2))
+            if best is None or d2[i] < best[0]:
+                best = (d2[i], curve, i)
+        if best is None or best[0] > PICK_RADIUS_PX ** 2:
+            return "No path near the pointer."
+        _, curve, i = best
+        az = float(curve.azimuth_deg[i])
+        el = float(curve.elevation_deg[i])
+        hidden = "" if curve.visible[i] else " · behind the site horizon"
+        return (f"{curve.label}: {hhmm(curve.hour[i])} {BASIS_SHORT[self.chart.basis]} · "
+                f"azimuth {az:.1f}° ({compass(az)}) · elevation {el:.1f}°{hidden}")
+
+
+__all__ = ["SunPathView", "chart_x", "compass", "duration", "hhmm", "polar_xy",
+           "split_at_edges"]
