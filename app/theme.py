@@ -65,7 +65,7 @@ def percent_colormap():
 STYLE_SHEET = f"""
 QMainWindow, QDialog {{ background: {SURFACE}; }}
 QWidget {{ color: {TEXT}; }}
-QListWidget#navigation {{ background: {PANEL}; border: none; font-size: 11pt; }}
+QListWidget#navigation {{ background: {PANEL}; border: none; font-size: 11pt; outline: 0; }}
 QListWidget#navigation::item {{ padding: 10px 14px; }}
 QListWidget#navigation::item:selected {{ background: {ACCENT}; color: white; }}
 QLabel.fieldError, QLabel[role="fieldError"] {{ color: {ERROR}; }}

@@ -2,8 +2,9 @@
 
 from .sheet_view import SheetView
 from .site_view import SiteView
+from .study_view import StudyView
 from .sunpath_view import SunPathView
 
-VIEW_CLASSES = [SiteView, SunPathView, SheetView]
+VIEW_CLASSES = [SiteView, SunPathView, StudyView, SheetView]
 
 __all__ = ["VIEW_CLASSES"]

@@ -1,0 +1,836 @@
+"""Tilt study view: objective and limits, the compared options, and four charts.
+
+The study itself is :func:`tiltyard.engine.tilt.tilt_study`, run through the
+task runner; this view only edits its options and draws its result. The last
+good result stays on screen while a field holds a value the engine refuses.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from dataclasses import replace
+from datetime import date
+
+import numpy as np
+import pyqtgraph as pg
+from PySide6.QtCore import QRectF, Qt
+from PySide6.QtGui import QBrush, QColor, QFontMetrics, QGuiApplication
+from PySide6.QtWidgets import (
+    QCheckBox,
+    QComboBox,
+    QFormLayout,
+    QGridLayout,
+    QGroupBox,
+    QHBoxLayout,
+    QHeaderView,
+    QLabel,
+    QPushButton,
+    QScrollArea,
+    QVBoxLayout,
+    QWidget,
+)
+
+from tiltyard.engine.tilt import StudyOptions, tilt_study
+from tiltyard.engine.timegrid import REFERENCE_YEAR
+
+from .. import theme
+from ..study_model import (
+    COL_OBJECTIVE,
+    MONTH_ABBR,
+    StudySortProxy,
+    StudyTableModel,
+    compass,
+    day_of_year,
+    degree_text,
+    schedule_words,
+    short_name,
+)
+from ..widgets import CopyableTable, ValidatedField, View
+
+OBJECTIVES = (("annual total", "annual"), ("worst month", "worst-month"),
+              ("chosen months", "months"))
+
+#: Which editor fields an engine message is about (by the message's first words).
+_MESSAGE_FIELDS = (("tilt range", ("tilt_min_deg", "tilt_max_deg")),
+                   ("tilt_step_deg", ("tilt_step_deg",)),
+                   ("azimuth_deg", ("azimuth_deg",)),
+                   ("min_days_between", ("min_days_between",)),
+                   ("switch", ("switch_a", "switch_b")),
+                   ("months", ("months",)))
+
+#: Light-to-dark ramp for tilt blocks on the schedule timeline (0° light, 90° dark).
+_TILT_RAMP = pg.ColorMap(pos=[0.0, 1.0], color=[QColor("#e3edf3"), QColor("#163c50")])
+
+_OPTIMUM_WORDS = {"annual": "fixed optimum", "worst-month": "worst-month optimum",
+                  "months": "chosen-months optimum"}
+
+_COMPASS_8 = ("N", "NE", "E", "SE", "S", "SW", "W", "NW")
+
+
+def _float(text: str, what: str) -> float:
+    try:
+        value = float(text.strip().replace(",", ".").rstrip("°").strip())
+    except ValueError:
+        raise ValueError(f"{what} {text!r} is not a number") from None
+    if not math.isfinite(value):
+        raise ValueError(f"{what} {text!r} is not a finite number")
+    return value
+
+
+def _int(text: str, what: str) -> int:
+    try:
+        return int(text.strip())
+    except ValueError:
+        raise ValueError(f"{what} {text!r} is not a whole number of days") from None
+
+
+def _mmdd(text: str, year: int) -> str:
+    t = text.strip()
+    m = re.fullmatch(r"(\d{1,2})-(\d{1,2})", t)
+    if m is None:
+        raise ValueError(f"switch date {text!r}: expected MM-DD, e.g. 10-01 for 1 October")
+    try:
+        date(year, int(m.group(1)), int(m.group(2)))
+    except ValueError:
+        raise ValueError(f"switch date {text!r}: no such day in {year} (MM-DD, month "
+                         "01-12)") from None
+    return f"{int(m.group(1)):02d}-{int(m.group(2)):02d}"
+
+
+def _azimuth_x(az_deg, equator_az: float):
+    """Map azimuths onto the map's x axis, which is centred on the equator direction."""
+    a = np.mod(np.asarray(az_deg, dtype=float), 360.0)
+    if equator_az < 90.0 or equator_az > 270.0:      # facing north: x runs -180..180
+        return np.where(a > 180.0, a - 360.0, a)
+    return a
+
+
+class StudyView(View):
+    title = "Tilt study"
+
+    def __init__(self, ctx, parent=None):
+        super().__init__(ctx, parent)
+        self.study = None            # the result on screen
+        # last accepted value of each field (stands in for a field being edited)
+        self._good = {"tilt_min_deg": 0.0, "tilt_max_deg": 90.0, "tilt_step_deg": 1.0,
+                      "azimuth_deg": None, "min_days_between": 30, "switch_a": None,
+                      "switch_b": None}
+        self._year = REFERENCE_YEAR
+        self._map_overlay = []
+        self._curve_overlay = []
+        self._timeline_items = []
+        self._month_lines = []
+        self._month_lines_year = 0
+        self.timeline_bars = []
+
+        outer = QVBoxLayout(self)
+        outer.setContentsMargins(14, 10, 14, 6)
+        outer.setSpacing(6)
+        top = QHBoxLayout()
+        self.heading = QLabel("Tilt study")
+        self.heading.setProperty("role", "heading")
+        top.addWidget(self.heading)
+        top.addSpacing(12)
+        self.basis = QLabel()
+        self.basis.setProperty("role", "muted")
+        self.basis.setToolTip("The sky basis and diffuse model are the ones chosen for "
+                              "Irradiance; changing them there re-runs the study.")
+        self.basis.setWordWrap(True)
+        top.addWidget(self.basis, 1)
+        self.status = QLabel()
+        self.status.setProperty("role", "muted")
+        top.addWidget(self.status)
+        outer.addLayout(top)
+
+        upper = QHBoxLayout()
+        upper.setSpacing(10)
+        upper.addWidget(self._build_editor())
+        upper.addWidget(self._build_table(), 1)
+        outer.addLayout(upper)
+        outer.addWidget(self._build_charts(), 1)
+
+        ctx.sky_changed.connect(lambda _s: self.mark_stale())
+        self._sync_enabled()
+        self._options = self._collect()
+
+    # -- construction ---------------------------------------------------------
+    def _build_editor(self) -> QWidget:
+        box = QGroupBox("Objective and limits")
+        form = QFormLayout(box)
+        form.setContentsMargins(8, 8, 8, 8)
+        form.setVerticalSpacing(5)
+        form.setFieldGrowthPolicy(QFormLayout.FieldGrowthPolicy.AllNonFixedFieldsGrow)
+        self.objective = QComboBox()
+        for text, key in OBJECTIVES:
+            self.objective.addItem(text, key)
+        self.objective.setToolTip("Annual total: most energy over the year. Worst month: "
+                                  "the weakest month as strong as it can be (off-grid, "
+                                  "winter loads). Chosen months: most energy in the ticked "
+                                  "months.")
+        self.objective.currentIndexChanged.connect(lambda _i: self._changed())
+        form.addRow("Maximise", self.objective)
+
+        months = QWidget()
+        mg = QGridLayout(months)
+        mg.setContentsMargins(0, 0, 0, 0)
+        mg.setHorizontalSpacing(4)
+        mg.setVerticalSpacing(0)
+        self.month_boxes = []
+        for i, name in enumerate(MONTH_ABBR):
+            cb = QCheckBox(name)
+            cb.toggled.connect(lambda _c: self._changed())
+            mg.addWidget(cb, i // 4, i % 4)
+            self.month_boxes.append(cb)
+        self.months_error = QLabel()
+        self.months_error.setProperty("role", "fieldError")
+        self.months_error.setWordWrap(True)
+        self.months_error.hide()
+        mg.addWidget(self.months_error, 3, 0, 1, 4)
+        self.months_widget = months
+        form.addRow(months)
+
+        self.fields = {}
+        self.tilt_min = self._field("tilt_min_deg", "0 flat to 90 vertical", "°")
+        self.tilt_max = self._field("tilt_max_deg", "0 flat to 90 vertical", "°")
+        self.tilt_step = self._field("tilt_step_deg", "rack notches, e.g. 5", "°")
+        form.addRow("Tilt from", self.tilt_min)
+        form.addRow("Tilt to", self.tilt_max)
+        form.addRow("Tilt step", self.tilt_step)
+
+        az_row = QWidget()
+        al = QHBoxLayout(az_row)
+        al.setContentsMargins(0, 0, 0, 0)
+        self.azimuth_mode = QComboBox()
+        self.azimuth_mode.addItem("free", "free")
+        self.azimuth_mode.addItem("fixed", "fixed")
+        self.azimuth_mode.setToolTip("Free: the study chooses the direction. Fixed: the plane "
+                                     "faces a given direction (clockwise from north, "
+                                     "south = 180°).")
+        self.azimuth_mode.currentIndexChanged.connect(self._azimuth_mode_changed)
+        self.azimuth = self._field("azimuth_deg", "0-360", "°")
+        al.addWidget(self.azimuth_mode, 0, Qt.AlignmentFlag.AlignTop)
+        al.addWidget(self.azimuth, 1)
+        form.addRow("Azimuth", az_row)
+        self.min_days = self._field("min_days_between", "1-120", "days")
+        self.min_days.setToolTip("Shortest time a schedule keeps one tilt (days between two "
+                                 "adjustments)")
+        self.tilt_step.setToolTip("Tilts the rack can be set to: from the lowest tilt in "
+                                  "steps of this size")
+        form.addRow("Min. period", self.min_days)
+
+        sw_row = QWidget()
+        sl = QGridLayout(sw_row)
+        sl.setContentsMargins(0, 0, 0, 0)
+        sl.setHorizontalSpacing(4)
+        self.switch_mode = QComboBox()
+        self.switch_mode.addItem("optimised", "optimised")
+        self.switch_mode.addItem("fixed", "fixed")
+        self.switch_mode.setToolTip("Dates of the two-season schedule's adjustments: found by "
+                                    "the study, or fixed by you (MM-DD).")
+        self.switch_mode.currentIndexChanged.connect(self._switch_mode_changed)
+        self.switch_a = self._field("switch_a", "MM-DD")
+        self.switch_b = self._field("switch_b", "MM-DD")
+        sl.addWidget(self.switch_mode, 0, 0, 1, 2)
+        sl.addWidget(self.switch_a, 1, 0, Qt.AlignmentFlag.AlignTop)
+        sl.addWidget(self.switch_b, 1, 1, Qt.AlignmentFlag.AlignTop)
+        form.addRow("Switch on", sw_row)
+
+        for name, text in (("tilt_min_deg", "0"), ("tilt_max_deg", "90"),
+                           ("tilt_step_deg", "1"), ("min_days_between", "30")):
+            self.fields[name].edit.setText(text)
+
+        scroll = QScrollArea()
+        scroll.setWidgetResizable(True)
+        scroll.setFrameShape(QScrollArea.Shape.NoFrame)
+        scroll.setHorizontalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
+        scroll.setWidget(box)
+        scroll.setFixedWidth(272)
+        return scroll
+
+    def _field(self, name: str, placeholder: str, unit: str = "") -> ValidatedField:
+        f = ValidatedField(lambda text, n=name: self._check_field(n, text), placeholder, unit)
+        f.accepted.connect(lambda _v: self._changed())
+        self.fields[name] = f
+        return f
+
+    def _build_table(self) -> QWidget:
+        w = QWidget()
+        lay = QVBoxLayout(w)
+        lay.setContentsMargins(0, 0, 0, 0)
+        lay.setSpacing(4)
+        row = QHBoxLayout()
+        sub = QLabel("Options compared")
+        sub.setStyleSheet("font-weight: 600;")
+        row.addWidget(sub)
+        hint = QLabel("click a header to sort · Ctrl+C copies the selected rows")
+        hint.setProperty("role", "muted")
+        row.addWidget(hint)
+        row.addStretch(1)
+        self.copy_button = QPushButton("Copy table")
+        self.copy_button.setToolTip("Copy the whole table as tab-separated text (for a "
+                                    "spreadsheet)")
+        self.copy_button.clicked.connect(self.copy_table)
+        row.addWidget(self.copy_button)
+        lay.addLayout(row)
+
+        self.model = StudyTableModel(self)
+        self.proxy = StudySortProxy(self)
+        self.proxy.setSourceModel(self.model)
+        self.table = CopyableTable()
+        self.table.setModel(self.proxy)
+        self.table.setWordWrap(False)
+        self.table.setTextElideMode(Qt.TextElideMode.ElideRight)
+        self.table.sortByColumn(0, Qt.SortOrder.AscendingOrder)
+        hh = self.table.horizontalHeader()
+        hh.setDefaultAlignment(Qt.AlignmentFlag.AlignCenter | Qt.TextFlag.TextWordWrap)
+        hh.setMinimumHeight(40)
+        hh.setSectionResizeMode(QHeaderView.ResizeMode.Interactive)
+        hh.setSectionResizeMode(1, QHeaderView.ResizeMode.Stretch)
+        self.table.setColumnWidth(0, 136)
+        self._fit_headers()
+        hh.setFixedHeight(56)
+        self.table.verticalHeader().setDefaultSectionSize(22)
+        self.table.setVerticalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
+        self._fit_table(8)
+        lay.addWidget(self.table, 1)
+
+        self.recommendation = QLabel("Computing the study…")
+        self.recommendation.setWordWrap(True)
+        self.recommendation.setTextFormat(Qt.TextFormat.RichText)
+        lay.addWidget(self.recommendation)
+        self.warnings = QLabel()
+        self.warnings.setWordWrap(True)
+        self.warnings.setStyleSheet(f"color: {theme.WARNING};")
+        self.warnings.hide()
+        lay.addWidget(self.warnings)
+        return w
+
+    def _build_charts(self) -> QWidget:
+        w = QWidget()
+        lay = QHBoxLayout(w)
+        lay.setContentsMargins(0, 0, 0, 0)
+        lay.setSpacing(6)
+
+        self.curve_plot = pg.PlotWidget()
+        cp = self.curve_plot.getPlotItem()
+        theme.style_plot(cp, "Annual irradiation (kWh/m²)", "Tilt (°)")
+        cp.setTitle("Annual irradiation vs tilt", size="9.5pt")
+        cp.setMenuEnabled(False)
+        cp.hideButtons()
+        self.curve = cp.plot([], [], pen=theme.series_pen(0, dashed=False))
+        self.curve_opt = pg.ScatterPlotItem(size=11, symbol="o", brush=pg.mkBrush(theme.ACCENT),
+                                            pen=pg.mkPen("w", width=1.5))
+        cp.addItem(self.curve_opt)
+        cp.setXRange(-2, 96, padding=0)
+        cp.getAxis("bottom").setTicks([[(t, f"{t}") for t in range(0, 91, 15)]])
+        lay.addWidget(self.curve_plot, 3)
+
+        self.map_plot = pg.PlotWidget()
+        mp = self.map_plot.getPlotItem()
+        theme.style_plot(mp, "Tilt (°)", "Azimuth (° from north, clockwise)")
+        mp.setTitle("Tilt × azimuth, % of the best plane", size="9.5pt")
+        mp.showGrid(x=False, y=False)
+        mp.setMenuEnabled(False)
+        mp.hideButtons()
+        self.map_image = pg.ImageItem(axisOrder="row-major")
+        mp.addItem(self.map_image)
+        self.map_bar = pg.ColorBarItem(values=(50, 100), colorMap=theme.percent_colormap(),
+                                       label="% of optimum", interactive=False, width=14,
+                                       pen=theme.MUTED)
+        self.map_bar.setImageItem(self.map_image, insert_in=mp)
+        mp.getAxis("left").setTicks([[(t, f"{t}") for t in range(0, 91, 15)]])
+        lay.addWidget(self.map_plot, 4)
+
+        self.timeline_plot = pg.PlotWidget()
+        tp = self.timeline_plot.getPlotItem()
+        theme.style_plot(tp, "", "Month (block labels: tilt)")
+        tp.setTitle("Schedules across the year", size="9.5pt")
+        tp.showGrid(x=False, y=False)
+        tp.setMenuEnabled(False)
+        tp.hideButtons()
+        tp.invertY(True)
+        tp.getAxis("left").setWidth(124)
+        tp.getAxis("left").setStyle(tickLength=0)
+        tp.getAxis("bottom").setStyle(tickLength=0)
+        for p in (tp, mp, cp):
+            p.getViewBox().setMouseEnabled(x=False, y=False)
+        lay.addWidget(self.timeline_plot, 5)
+        return w
+
+    def _fit_table(self, rows: int) -> None:
+        """Make the table exactly as tall as its rows (the charts get the rest)."""
+        h = (self.table.horizontalHeader().height()
+             + rows * self.table.verticalHeader().defaultSectionSize()
+             + 2 * self.table.frameWidth() + 2)
+        self.table.setFixedHeight(h)
+
+    def _fit_headers(self) -> None:
+        """Numeric columns as wide as the longest word of their header (headers wrap)."""
+        font = self.table.horizontalHeader().font()
+        font.setBold(True)
+        fm = QFontMetrics(font)
+        for c in range(2, self.proxy.columnCount()):
+            words = str(self.proxy.headerData(c, Qt.Orientation.Horizontal)).split()
+            self.table.setColumnWidth(c, max(60, max(fm.horizontalAdvance(w) for w in words)
+                                             + 12))
+
+    # -- reading the editor ---------------------------------------------------
+    def _basic(self, name: str, text: str):
+        """The value typed in one field (format only; the engine judges ranges)."""
+        if name in ("tilt_min_deg", "tilt_max_deg", "tilt_step_deg", "azimuth_deg"):
+            what = {"tilt_min_deg": "lowest tilt", "tilt_max_deg": "steepest tilt",
+                    "tilt_step_deg": "tilt step", "azimuth_deg": "azimuth"}[name]
+            return _float(text, what)
+        if name == "min_days_between":
+            return _int(text, "shortest period")
+        return _mmdd(text, self._year)
+
+    def _value(self, name: str, override: dict):
+        if name in override:
+            return override[name]
+        try:
+            return self._basic(name, self.fields[name].edit.text())
+        except ValueError:
+            return self._good[name]
+
+    def _kwargs(self, override: dict | None = None) -> dict:
+        o = override or {}
+        kw = {"objective": self.objective.currentData(),
+              "months": tuple(i + 1 for i, cb in enumerate(self.month_boxes) if cb.isChecked()),
+              "tilt_min_deg": self._value("tilt_min_deg", o),
+              "tilt_max_deg": self._value("tilt_max_deg", o),
+              "tilt_step_deg": self._value("tilt_step_deg", o),
+              "azimuth_deg": (self._value("azimuth_deg", o)
+                              if self.azimuth_mode.currentData() == "fixed" else None),
+              "min_days_between": self._value("min_days_between", o),
+              "switch_dates": None}
+        if self.switch_mode.currentData() == "fixed":
+            kw["switch_dates"] = (self._value("switch_a", o), self._value("switch_b", o))
+        return kw
+
+    @staticmethod
+    def _fields_of(message: str) -> tuple:
+        for prefix, names in _MESSAGE_FIELDS:
+            if message.startswith(prefix):
+                return names
+        return ()
+
+    @staticmethod
+    def _validate(kw: dict) -> StudyOptions:
+        sw = kw.get("switch_dates")
+        if sw is not None:
+            if None in sw:
+                raise ValueError("switch dates: give both dates as MM-DD")
+            if sw[0] == sw[1]:
+                raise ValueError(f"switch dates {sw[0]} and {sw[1]}: the two dates must "
+                                 "differ")
+        return StudyOptions(**kw)
+
+    def _check_field(self, name: str, text: str):
+        """Parse one field and let the engine judge it with the other fields as they are."""
+        value = self._basic(name, text)
+        try:
+            self._validate(self._kwargs({name: value}))
+        except ValueError as exc:
+            if name in self._fields_of(str(exc)):
+                raise
+        return value
+
+    def _collect(self) -> StudyOptions | None:
+        """Options from the editor, or None (with the messages shown) if refused."""
+        for name, f in self.fields.items():
+            if not f.isEnabled():
+                f.set_error("")
+                continue
+            try:
+                self._basic(name, f.edit.text())
+            except ValueError as exc:
+                f.set_error(str(exc))
+                return None
+        kw = self._kwargs()
+        self.months_error.hide()
+        try:
+            opts = self._validate(kw)
+        except ValueError as exc:
+            names = self._fields_of(str(exc))
+            for name, f in self.fields.items():
+                f.set_error(str(exc) if name in names else "")
+            if "months" in names:
+                self.months_error.setText("tick the months to optimise for" if not kw["months"]
+                                          else str(exc))
+                self.months_error.show()
+            return None
+        for f in self.fields.values():
+            f.set_error("")
+        for name in self._good:
+            if self.fields[name].isEnabled():
+                self._good[name] = self._basic(name, self.fields[name].edit.text())
+        return opts
+
+    def _changed(self) -> None:
+        self._sync_enabled()
+        opts = self._collect()
+        if opts is None:
+            self.status.setText("showing the last good result")
+            return
+        if opts != self._options:
+            self._options = opts
+            self.mark_stale()
+
+    def _sync_enabled(self) -> None:
+        self.months_widget.setEnabled(self.objective.currentData() == "months")
+        for cb in self.month_boxes:
+            cb.setEnabled(self.objective.currentData() == "months")
+        self.azimuth.setEnabled(self.azimuth_mode.currentData() == "fixed")
+        fixed = self.switch_mode.currentData() == "fixed"
+        self.switch_a.setEnabled(fixed)
+        self.switch_b.setEnabled(fixed)
+
+    def _azimuth_mode_changed(self, _i) -> None:
+        if self.azimuth_mode.currentData() == "fixed" and not self.azimuth.edit.text().strip():
+            az = (self.study.curve_azimuth_deg if self.study is not None
+                  else self.ctx.site.equator_azimuth_deg)
+            self.azimuth.edit.setText(f"{az:g}")
+        self._changed()
+
+    def _switch_mode_changed(self, _i) -> None:
+        if self.switch_mode.currentData() == "fixed":
+            starts = ("04-01", "10-01")
+            if self.study is not None:
+                starts = tuple(p.start for p in self.study.option("two-season").schedule)
+            for f, s in zip((self.switch_a, self.switch_b), starts, strict=True):
+                if not f.edit.text().strip():
+                    f.edit.setText(s)
+        self._changed()
+
+    # -- computing ------------------------------------------------------------
+    @property
+    def options(self) -> StudyOptions | None:
+        """The options the next study will use (None while the editor is refused)."""
+        return self._options
+
+    def refresh(self) -> None:
+        super().refresh()
+        site = self.ctx.site
+        self.heading.setText(f"Tilt study — {site.name}")
+        if self._options is None:
+            self._options = self._collect()
+            if self._options is None:
+                return
+        try:
+            irr = self.ctx.sky.irradiance_options()
+        except ValueError as exc:
+            self.status.setText("")
+            self.ctx.notify("error", f"Tilt study: sky basis: {exc}")
+            return
+        self._year = irr.year
+        opts = replace(self._options, irradiance=irr)
+        self.status.setText("computing…")
+        self.ctx.runner.submit(self.channel("study"),
+                               lambda progress: tilt_study(site, opts, progress=progress),
+                               self._show_study, label="Tilt study")
+
+    def _show_study(self, study) -> None:
+        self.study = study
+        self.status.setText("")
+        irr = study.options_used.irradiance
+        note = study.sky_note
+        if irr.sky == "clear" and "upper bound" not in note:
+            note += " (an upper bound)"
+        self.basis.setText(f"Sky basis: {note} · sky diffuse model {irr.model} · "
+                           f"year {irr.year}, "
+                           f"{irr.step_min} min steps")
+        self.model.set_study(study)
+        self._fit_table(len(study.options))
+        self._fit_headers()
+        self.table.setColumnHidden(COL_OBJECTIVE, study.options_used.objective == "annual")
+        self._show_recommendation(study)
+        self._draw_curve(study)
+        self._draw_map(study)
+        self._draw_timeline(study)
+        self.ctx.publish_study(study)
+
+    def _show_recommendation(self, study) -> None:
+        rec = study.recommended
+        year = study.options_used.irradiance.year
+        fixed = study.option("fixed-optimal")
+        objective = study.options_used.objective_label
+        gain = ""
+        if rec is not fixed and study.score(fixed) > 0:
+            up = 100.0 * (study.score(rec) / study.score(fixed) - 1.0)
+            gain = f" It raises the {objective} objective by {up:.1f} % over the fixed optimum."
+        accent = theme.ACCENT
+        self.recommendation.setText(
+            f"<span style='color:{accent}; font-weight:600'>Recommended: "
+            f"{degree_text(rec.label)}</span> — {schedule_words(rec, year)}.{gain}<br>"
+            f"<span style='color:{theme.MUTED}'>Rule: {degree_text(study.recommendation_rule)}"
+            ". The two-axis row is a ceiling to judge the others by, not a recommendation."
+            "</span>")
+        if study.warnings:
+            self.warnings.setText("\n".join("• " + degree_text(w) for w in study.warnings))
+            self.warnings.show()
+        else:
+            self.warnings.hide()
+
+    # -- charts ---------------------------------------------------------------
+    def _draw_curve(self, study) -> None:
+        cp = self.curve_plot.getPlotItem()
+        for item in self._curve_overlay:
+            cp.removeItem(item)
+        self._curve_overlay = []
+        tilt = study.tilt_curve.index.to_numpy(dtype=float)
+        kwh = study.tilt_curve["annual_kwh_m2"].to_numpy(dtype=float)
+        self.curve.setData(tilt, kwh)
+        i = int(np.argmax(kwh))
+        self.curve_opt.setData([tilt[i]], [kwh[i]])
+        az = study.curve_azimuth_deg
+        cp.setLabel("bottom", f"Tilt (°), facing {az:.0f}° ({compass(az)})")
+        lo, hi = float(np.nanmin(kwh)), float(kwh[i])
+        cp.setYRange(lo - 0.05 * (hi - lo), hi + 0.16 * (hi - lo), padding=0)
+        ax = 0.0 if tilt[i] < 20 else (1.0 if tilt[i] > 70 else 0.5)
+        label = pg.TextItem(f"best {tilt[i]:.0f}°: {kwh[i]:.0f} kWh/m²", color=theme.ACCENT,
+                            anchor=(ax, 1.1))
+        label.setFont(theme.plot_font(8.5))
+        label.setPos(tilt[i], kwh[i])
+        cp.addItem(label)
+        self._curve_overlay.append(label)
+        o = study.options_used
+        if o.tilt_min_deg > 0 or o.tilt_max_deg < 90:
+            region = pg.LinearRegionItem((o.tilt_min_deg, o.tilt_max_deg), movable=False,
+                                         brush=pg.mkBrush(47, 109, 140, 22),
+                                         pen=pg.mkPen(theme.GRID))
+            region.setZValue(-10)
+            cp.addItem(region)
+            self._curve_overlay.append(region)
+        fixed = study.option("fixed-optimal").schedule[0]
+        # mark the objective's fixed optimum when it is not just the curve's best rounded
+        # to the tilt step (worst-month objective, narrowed tilt range)
+        if abs(fixed.tilt_deg - tilt[i]) > o.tilt_step_deg / 2.0 + 0.5:
+            line = pg.InfiniteLine(fixed.tilt_deg, angle=90,
+                                   pen=pg.mkPen(theme.SERIES[1], width=1.5,
+                                                style=Qt.PenStyle.DashLine),
+                                   label=f"{_OPTIMUM_WORDS[o.objective]} {fixed.tilt_deg:g}°",
+                                   labelOpts={"position": 0.12, "color": theme.SERIES[1],
+                                              "anchors": [(0, 0), (0, 0)]
+                                              if fixed.tilt_deg < 60 else [(1, 0), (1, 0)]})
+            cp.addItem(line)
+            self._curve_overlay.append(line)
+
+    def _draw_map(self, study) -> None:
+        mp = self.map_plot.getPlotItem()
+        for item in self._map_overlay:
+            mp.removeItem(item)
+        self._map_overlay = []
+        site = study.site
+        eq = site.equator_azimuth_deg
+        grid = study.grid_pct
+        az = grid.columns.to_numpy(dtype=float)
+        tilt = grid.index.to_numpy(dtype=float)
+        x = _azimuth_x(az, eq)
+        order = np.argsort(x, kind="stable")
+        x = x[order]
+        data = grid.to_numpy(dtype=float)[:, order]
+        d_az = float(np.median(np.diff(x))) if len(x) > 1 else 5.0
+        d_t = float(np.median(np.diff(tilt))) if len(tilt) > 1 else 1.0
+        self.map_image.setImage(data, autoLevels=False)
+        x0, y0 = x[0] - d_az / 2, tilt[0] - d_t / 2
+        self.map_image.setRect(QRectF(x0, y0, d_az * len(x), d_t * len(tilt)))
+        lo = max(0.0, math.floor(float(np.nanmin(data)) / 10.0) * 10.0)
+        self.map_bar.setLevels((lo, 100.0))
+        mp.setXRange(x0, x0 + d_az * len(x), padding=0)
+        mp.setYRange(y0, y0 + d_t * len(tilt), padding=0)
+        start = -180 if x[0] < 0 else 0
+        ticks = [(a, _COMPASS_8[((a % 360) // 45) % 8] + f" {a % 360}°")
+                 for a in range(start, start + 361, 45)]
+        mp.getAxis("bottom").setTicks([ticks[::2], ticks[1::2]])
+
+        # contour levels, in the grid's own pixels (centres at index + 0.5)
+        for level, width in ((80.0, 1.0), (90.0, 1.0), (95.0, 1.3), (98.0, 1.6)):
+            if level <= lo:
+                continue
+            xs, ys = [], []
+            for line in pg.functions.isocurve(data, level, connected=True):
+                pts = np.asarray(line, dtype=float)
+                ys.extend(tilt[0] + (pts[:, 0] - 0.5) * d_t)
+                xs.extend(x[0] + (pts[:, 1] - 0.5) * d_az)
+                ys.append(np.nan)
+                xs.append(np.nan)
+            if not xs:
+                continue
+            iso = pg.PlotDataItem(xs, ys, connect="finite",
+                                  pen=pg.mkPen(255, 255, 255, 170, width=width))
+            mp.addItem(iso)
+            self._map_overlay.append(iso)
+            # label each level once, at its highest point
+            k = int(np.nanargmax(np.asarray(ys)))
+            tx = pg.TextItem(f"{level:.0f} %", color=(255, 255, 255), anchor=(0.5, 1.0))
+            tx.setFont(theme.plot_font(7.5))
+            tx.setPos(xs[k], ys[k])
+            mp.addItem(tx)
+            self._map_overlay.append(tx)
+
+        g_tilt, g_az, _ = study.grid_optimum
+        opt_x = float(_azimuth_x(g_az, eq))
+        star = pg.ScatterPlotItem([opt_x], [g_tilt], symbol="star", size=16,
+                                  brush=pg.mkBrush(theme.SERIES[4]), pen=pg.mkPen("k", width=1))
+        star.setZValue(20)
+        mp.addItem(star)
+        self._map_overlay.append(star)
+        self.map_markers = [("optimum", opt_x, g_tilt)]
+        self.map_labels = []
+        labels = [(f"best {g_tilt:.0f}° / {g_az:.0f}° {compass(g_az)}", opt_x, g_tilt)]
+        plane_options = [o for o in study.options if o.kind == "plane"]
+        for pl, opt in zip(site.planes, plane_options, strict=False):
+            px = float(_azimuth_x(pl.azimuth_deg, eq))
+            dot = pg.ScatterPlotItem([px], [pl.tilt_deg], symbol="o", size=10,
+                                     brush=pg.mkBrush("w"), pen=pg.mkPen("k", width=1.5))
+            dot.setZValue(10)
+            mp.addItem(dot)
+            self._map_overlay.append(dot)
+            pct = 100.0 * opt.annual_kwh_m2 / study.grid_optimum[2]
+            pct_text = f"{pct:.1f}" if 99.5 <= pct < 100.0 else f"{pct:.0f}"
+            labels.append((f"{pl.label} ({pct_text} %)", px, pl.tilt_deg))
+            self.map_markers.append((pl.label, px, pl.tilt_deg))
+        self._place_labels(mp, labels, [(mx, my) for _n, mx, my in self.map_markers])
+
+    def _place_labels(self, plot, labels, markers) -> None:
+        """Put each (text, x, y) label beside its marker, clear of the others and inside."""
+        vb = plot.getViewBox()
+        sx, sy = (abs(v) for v in vb.viewPixelSize())
+        (xmin, xmax), (ymin, ymax) = vb.viewRange()
+        font = theme.plot_font(8)
+        fm = QFontMetrics(font)
+        taken = [(mx - 7 * sx, my - 7 * sy, mx + 7 * sx, my + 7 * sy) for mx, my in markers]
+
+        def clamp(b):
+            dx = max(0.0, xmin - b[0]) - max(0.0, b[2] - xmax)
+            dy = max(0.0, ymin - b[1]) - max(0.0, b[3] - ymax)
+            return (b[0] + dx, b[1] + dy, b[2] + dx, b[3] + dy)
+
+        def overlap(b):
+            return sum(max(0.0, min(b[2], t[2]) - max(b[0], t[0]))
+                       * max(0.0, min(b[3], t[3]) - max(b[1], t[1])) for t in taken)
+
+        for text, x, y in labels:
+            # TextItem pads its text by a few pixels on every side
+            w, h = (fm.horizontalAdvance(text) + 12) * sx, (fm.height() + 8) * sy
+            gap_x, gap_y = 8 * sx, 8 * sy
+            cands = [(x - w / 2, y + gap_y), (x - w / 2, y - gap_y - h), (x + gap_x, y - h / 2),
+                     (x - gap_x - w, y - h / 2)]
+            cands += [(x - w / 2, y + gap_y + k * h) for k in (1, 2, 3)]
+            cands += [(x - w / 2, y - gap_y - (k + 1) * h) for k in (1, 2, 3)]
+            boxes = [clamp((cx, cy, cx + w, cy + h)) for cx, cy in cands]
+            box = next((b for b in boxes if overlap(b) == 0.0), None)
+            if box is None:
+                box = min(boxes, key=overlap)
+            taken.append(box)
+            near_y = min(max(y, box[1]), box[3])
+            near_x = min(max(x, box[0]), box[2])
+            if math.hypot((near_x - x) / sx, (near_y - y) / sy) > 14:
+                leader = pg.PlotDataItem([x, near_x], [y, near_y],
+                                         pen=pg.mkPen(theme.TEXT, width=1))
+                leader.setZValue(25)
+                plot.addItem(leader)
+                self._map_overlay.append(leader)
+            t = pg.TextItem(text, color=theme.TEXT, fill=pg.mkBrush(255, 255, 255, 215),
+                            anchor=(0.0, 0.0))
+            t.setFont(font)
+            t.setZValue(30)
+            t.setPos(box[0], box[3])
+            plot.addItem(t)
+            self._map_overlay.append(t)
+            self.map_labels.append((text, box))
+
+    def _draw_timeline(self, study) -> None:
+        tp = self.timeline_plot.getPlotItem()
+        for item in self._timeline_items:
+            tp.removeItem(item)
+        self._timeline_items = []
+        self.timeline_bars = []
+        year = study.options_used.irradiance.year
+        n_days = (date(year + 1, 1, 1) - date(year, 1, 1)).days
+        rec = study.recommended
+        ticks = []
+        fm = QFontMetrics(theme.plot_font(9))
+        for row, opt in enumerate(study.options):
+            name = ("▶ " if opt is rec else "") + short_name(opt)
+            ticks.append((row, fm.elidedText(name, Qt.TextElideMode.ElideRight, 112)))
+            x0s, widths, brushes, texts = [], [], [], []
+            for p in opt.schedule:
+                a, b = day_of_year(p.start, year), day_of_year(p.end, year) + 1
+                segments = [(a, b)] if b > a else [(a, n_days), (0, b)]
+                for s, e in segments:
+                    x0s.append(s)
+                    widths.append(e - s)
+                    if p.tilt_deg is None:
+                        brushes.append(QBrush(QColor(theme.GRID), Qt.BrushStyle.BDiagPattern))
+                    else:
+                        brushes.append(pg.mkBrush(_TILT_RAMP.map(p.tilt_deg / 90.0,
+                                                                 mode="qcolor")))
+                    texts.append((s, e, p.tilt_deg))
+            pen = (pg.mkPen(theme.SERIES[1], width=2.5) if opt is rec
+                   else pg.mkPen(theme.SURFACE, width=1))
+            bars = pg.BarGraphItem(x0=x0s, width=widths, y=[row] * len(x0s), height=0.72,
+                                   brushes=brushes, pen=pen)
+            bars.setToolTip(f"{degree_text(opt.label)}: {schedule_words(opt, year)}")
+            tp.addItem(bars)
+            self._timeline_items.append(bars)
+            self.timeline_bars.append((opt.kind, bars))
+            for s, e, t in texts:
+                if t is None:
+                    txt, colour = "follows the sun", theme.MUTED
+                elif e - s < 18:
+                    continue
+                else:
+                    txt = f"{t:.0f}°"
+                    colour = "w" if t > 40 else theme.TEXT
+                item = pg.TextItem(txt, color=colour, anchor=(0.5, 0.5))
+                item.setFont(theme.plot_font(7.5 if e - s < 40 else 8.5))
+                item.setPos((s + e) / 2.0, row)
+                tp.addItem(item)
+                self._timeline_items.append(item)
+        # month boundaries: drawn once per kind of year (they rarely change)
+        if self._month_lines_year != n_days:
+            for line in self._month_lines:
+                tp.removeItem(line)
+            self._month_lines = []
+            for m in range(2, 13):
+                d = (date(year, m, 1) - date(year, 1, 1)).days
+                line = pg.InfiniteLine(d, angle=90, pen=pg.mkPen(theme.GRID, width=1))
+                line.setZValue(-5)
+                tp.addItem(line)
+                self._month_lines.append(line)
+            self._month_lines_year = n_days
+        mids = [((date(year, m, 1) - date(year, 1, 1)).days
+                 + (date(year + (m == 12), m % 12 + 1, 1) - date(year, m, 1)).days / 2.0,
+                 MONTH_ABBR[m - 1])
+                for m in range(1, 13)]
+        tp.getAxis("bottom").setTicks([mids])
+        tp.getAxis("left").setTicks([ticks])
+        tp.setXRange(0, n_days, padding=0.0)
+        tp.setYRange(-0.6, len(study.options) - 0.4, padding=0.0)
+
+    # -- copying --------------------------------------------------------------
+    def copy_table(self) -> str:
+        """Put the whole options table on the clipboard as tab-separated text."""
+        text = self.table.as_tsv(selected_only=False)
+        QGuiApplication.clipboard().setText(text)
+        return text
+
+    def table_rows(self) -> list[list[str]]:
+        """What the table shows, row by row, in its current (sorted) order."""
+        m = self.proxy
+        cols = [c for c in range(m.columnCount()) if not self.table.isColumnHidden(c)]
+        return [[str(m.index(r, c).data()) for c in cols] for r in range(m.rowCount())]
+
+    def recommended_row(self) -> int | None:
+        """The table row (as shown) of the recommended option."""
+        for r in range(self.proxy.rowCount()):
+            src = self.proxy.mapToSource(self.proxy.index(r, 0))
+            if self.model.is_recommended(src.row()):
+                return r
+        return None
+
+
+__all__ = ["StudyView"]
