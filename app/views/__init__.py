@@ -1,10 +1,11 @@
 """The six views, in navigation order."""
 
+from .irradiance_view import IrradianceView
 from .sheet_view import SheetView
 from .site_view import SiteView
 from .study_view import StudyView
 from .sunpath_view import SunPathView
 
-VIEW_CLASSES = [SiteView, SunPathView, StudyView, SheetView]
+VIEW_CLASSES = [SiteView, SunPathView, IrradianceView, StudyView, SheetView]
 
 __all__ = ["VIEW_CLASSES"]

@@ -1,0 +1,648 @@
+"""Irradiance view: one day's curves, monthly bars per option, annual totals.
+
+Controls: the sky basis (clear sky, the site's monthly values, a weather file)
+and the transposition model, both shared through ``ctx.set_sky`` with the Tilt
+study view; the plane (horizontal, each existing plane, and the tilt study's
+optimum when there is one); the date.
+
+Charts: (1) the date's curves, W/m², on local clock time; (2) monthly mean daily
+irradiation, kWh/m²/day, grouped by month with one bar per option; (3) a table
+of annual totals with the horizon loss. All figures come from the engine
+(:func:`tiltyard.engine.daycurves.irradiance_day`,
+:func:`tiltyard.engine.daycurves.compare_options`) in the worker.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pyqtgraph as pg
+from PySide6.QtCore import QDate, Qt
+from PySide6.QtGui import (
+    QBrush,
+    QColor,
+    QIcon,
+    QPainter,
+    QPixmap,
+    QStandardItem,
+    QStandardItemModel,
+)
+from PySide6.QtWidgets import (
+    QComboBox,
+    QDateEdit,
+    QGridLayout,
+    QHBoxLayout,
+    QLabel,
+    QPushButton,
+    QSizePolicy,
+    QVBoxLayout,
+    QWidget,
+)
+
+from tiltyard.engine.daycurves import compare_options, irradiance_day
+from tiltyard.engine.timegrid import REFERENCE_YEAR
+
+from .. import theme
+from ..weather_dialog import WeatherDialog, finding_text, summary_text
+from ..widgets import CopyableTable, View
+
+MONTHS = ("Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec")
+
+SKY_ITEMS = (("clear", "Clear sky (upper bound)"), ("monthly", "Monthly values of the site"),
+             ("file", "Weather file…"))
+MODEL_ITEMS = (("perez", "Perez 1990"), ("haydavies", "Hay-Davies"),
+               ("isotropic", "Isotropic (Liu-Jordan)"))
+
+MONTHLY_MISSING = ("this site has no monthly mean daily GHI values; enter the 12 values "
+                   "in the Site view to use them.")
+
+# day curves: key, pen (colour, width, dash) — colour and dash both differ, for greyscale
+_DAY_STYLE = {
+    "poa": (theme.SERIES[0], 2.6, Qt.PenStyle.SolidLine),
+    "ghi": (theme.SERIES[1], 2.0, Qt.PenStyle.DashLine),
+    "dni": (theme.SERIES[2], 2.0, Qt.PenStyle.DotLine),
+    "dhi": (theme.SERIES[3], 2.0, Qt.PenStyle.DashDotLine),
+    "ghi_clear": (theme.SERIES[4], 1.4, Qt.PenStyle.DashDotDotLine),
+    "dni_extra": (theme.CATEGORICAL[0], 1.2, Qt.PenStyle.DashLine),
+}
+_SHADE = QColor(90, 96, 88, 40)   # sun up but behind the site horizon
+
+
+def _pen(key: str):
+    colour, width, style = _DAY_STYLE[key]
+    pen = pg.mkPen(colour, width=width)
+    pen.setStyle(style)
+    return pen
+
+
+def _bar_brush(i: int) -> QBrush:
+    colour = theme.series_color(i)
+    if i >= len(theme.SERIES):  # colours repeat: hatch the second round
+        return QBrush(colour, Qt.BrushStyle.BDiagPattern)
+    return QBrush(colour)
+
+
+def _swatch_icon(i: int) -> QIcon:
+    """The bar colour (and hatch) of series ``i`` as a table icon."""
+    pm = QPixmap(14, 14)
+    pm.fill(QColor("white"))
+    p = QPainter(pm)
+    p.fillRect(0, 0, 14, 14, _bar_brush(i))
+    p.setPen(theme.series_color(i).darker(135))
+    p.drawRect(0, 0, 13, 13)
+    p.end()
+    return QIcon(pm)
+
+
+def _short(label: str) -> str:
+    """A legend name: the option's label up to its parenthesis."""
+    return label.split(" (")[0].strip() or label
+
+
+class _Swatch(QWidget):
+    """A legend sample: a short line in the curve's pen, or a block in the bar's brush."""
+
+    def __init__(self, pen=None, brush=None, outline=None, parent=None):
+        super().__init__(parent)
+        self.pen, self.brush, self.outline = pen, brush, outline
+        self.setFixedSize(30, 14)
+
+    def paintEvent(self, _event) -> None:  # noqa: N802 - Qt override
+        p = QPainter(self)
+        p.setRenderHint(QPainter.RenderHint.Antialiasing)
+        if self.brush is not None:
+            p.fillRect(7, 1, 16, 12, QColor("white"))
+            p.fillRect(7, 1, 16, 12, self.brush)
+            if self.outline is not None:
+                p.setPen(self.outline)
+                p.drawRect(7, 1, 16, 12)
+        elif self.pen is not None:
+            p.setPen(self.pen)
+            p.drawLine(1, 7, 29, 7)
+        p.end()
+
+
+class Legend(QWidget):
+    """Legend entries in rows of ``columns``, as plain widgets below a chart."""
+
+    def __init__(self, columns: int = 3, parent=None):
+        super().__init__(parent)
+        self.columns = columns
+        self._grid = QGridLayout(self)
+        self._grid.setContentsMargins(6, 0, 6, 0)
+        self._grid.setHorizontalSpacing(4)
+        self._grid.setVerticalSpacing(1)
+        self.entries: list[str] = []
+
+    def clear(self) -> None:
+        while self._grid.count():
+            w = self._grid.takeAt(0).widget()
+            if w is not None:
+                w.hide()
+                w.deleteLater()
+        self.entries = []
+
+    def add(self, text: str, pen=None, brush=None, outline=None) -> None:
+        i = len(self.entries)
+        r, c = divmod(i, self.columns)
+        label = QLabel(text)
+        label.setWordWrap(True)
+        label.setStyleSheet("font-size: 9pt;")
+        label.setToolTip(text)
+        swatch = _Swatch(pen, brush, outline)
+        self._grid.addWidget(swatch, r, 2 * c)
+        self._grid.addWidget(label, r, 2 * c + 1)
+        swatch.show()      # children added to a shown widget stay hidden otherwise
+        label.show()
+        for k in range(self.columns):
+            self._grid.setColumnStretch(2 * k + 1, 1)
+        self.entries.append(text)
+
+
+class _Block(QWidget):
+    """A container that does not pass height-for-width up: the charts take the height left."""
+
+    def hasHeightForWidth(self) -> bool:  # noqa: N802 - Qt override
+        return False
+
+
+class _Item(QStandardItem):
+    def __init__(self, text: str, sort=None):
+        super().__init__(text)
+        self.setEditable(False)
+        self.setData(text if sort is None else sort, Qt.ItemDataRole.UserRole)
+
+
+class IrradianceView(View):
+    title = "Irradiance"
+
+    def __init__(self, ctx, parent=None):
+        super().__init__(ctx, parent)
+        self._updating = False
+        self._planes: list[tuple[str, float, float]] = []
+        self.day = None          # the DayCurves on show
+        self.rows = ()           # the OptionTotals on show
+        self._dialog = None
+
+        outer = QVBoxLayout(self)
+        outer.setContentsMargins(18, 10, 18, 8)
+        outer.setSpacing(4)
+        head = QLabel("Irradiance")
+        head.setProperty("role", "heading")
+        outer.addWidget(head)
+
+        # -- controls -------------------------------------------------------------------
+        grid = QGridLayout()
+        grid.setHorizontalSpacing(10)
+        grid.setVerticalSpacing(4)
+        self.sky_combo = QComboBox()
+        for key, text in SKY_ITEMS:
+            self.sky_combo.addItem(text, key)
+        self.sky_combo.setToolTip("Shared with the Tilt study view")
+        self.sky_combo.currentIndexChanged.connect(self._sky_picked)
+        self.weather_button = QPushButton("Choose weather file…")
+        self.weather_button.clicked.connect(self.open_weather_dialog)
+        self.model_combo = QComboBox()
+        for key, text in MODEL_ITEMS:
+            self.model_combo.addItem(text, key)
+        self.model_combo.setToolTip("Sky-diffuse transposition model, shared with the Tilt "
+                                    "study view")
+        self.model_combo.currentIndexChanged.connect(self._model_picked)
+        self.plane_combo = QComboBox()
+        self.plane_combo.setSizeAdjustPolicy(
+            QComboBox.SizeAdjustPolicy.AdjustToMinimumContentsLengthWithIcon)
+        self.plane_combo.setMinimumContentsLength(40)
+        self.plane_combo.view().setTextElideMode(Qt.TextElideMode.ElideNone)
+        self.plane_combo.currentIndexChanged.connect(self._plane_picked)
+        self.date_edit = QDateEdit()
+        self.date_edit.setCalendarPopup(True)
+        self.date_edit.setDisplayFormat("d MMMM yyyy")
+        self.date_edit.setDateRange(QDate(REFERENCE_YEAR, 1, 1), QDate(REFERENCE_YEAR, 12, 31))
+        self.date_edit.setDate(QDate(REFERENCE_YEAR, 6, 21) if ctx.site.latitude_deg >= 0
+                               else QDate(REFERENCE_YEAR, 12, 21))
+        self.date_edit.setToolTip(f"A date of the reference year {REFERENCE_YEAR} "
+                                  "(the year every figure is computed for)")
+        self.date_edit.dateChanged.connect(self._date_picked)
+        for col, (text, w) in enumerate((("Sky basis", self.sky_combo),
+                                         ("Transposition", self.model_combo))):
+            grid.addWidget(QLabel(text), col, 0)
+            grid.addWidget(w, col, 1)
+        grid.addWidget(self.weather_button, 0, 2)
+        grid.addWidget(QLabel("Plane"), 0, 4)
+        grid.addWidget(self.plane_combo, 0, 5)
+        grid.addWidget(QLabel("Date"), 1, 4)
+        date_row = QHBoxLayout()
+        date_row.addWidget(self.date_edit)
+        date_row.addStretch(1)
+        grid.addLayout(date_row, 1, 5)
+        grid.setColumnMinimumWidth(3, 18)
+        grid.setColumnStretch(6, 1)
+        outer.addLayout(grid)
+        self.sky_note = QLabel("")
+        self.sky_note.setProperty("role", "muted")
+        self.sky_note.setWordWrap(True)
+        outer.addWidget(self.sky_note)
+        self.monthly_reason = QLabel("")
+        self.monthly_reason.setProperty("role", "muted")
+        self.monthly_reason.setWordWrap(True)
+        outer.addWidget(self.monthly_reason)
+
+        # -- charts ---------------------------------------------------------------------
+        self.charts = _Block()
+        charts = QHBoxLayout(self.charts)
+        charts.setContentsMargins(0, 0, 0, 0)
+        charts.setSpacing(14)
+        left = QVBoxLayout()
+        self.day_title = QLabel("")
+        self.day_title.setStyleSheet("font-weight: 600;")
+        left.addWidget(self.day_title)
+        self.day_widget = pg.GraphicsLayoutWidget()
+        self.day_plot = self.day_widget.addPlot(row=0, col=0)
+        theme.style_plot(self.day_plot, "Irradiance (W/m²)", "Local clock time (h)")
+        self.day_plot.getAxis("left").setWidth(62)     # room for "1400" beside the label
+        self.day_plot.setMouseEnabled(x=False, y=False)
+        self.day_plot.hideButtons()
+        self.day_plot.setXRange(0, 24, padding=0.0)
+        self.day_plot.getAxis("bottom").setTicks(
+            [[(h, f"{h:02d}:00") for h in range(0, 25, 3)], [(h, "") for h in range(25)]])
+        self.day_items = {}
+        for key in ("poa", "ghi", "dni", "dhi", "ghi_clear", "dni_extra"):
+            item = pg.PlotDataItem([], [], pen=_pen(key), connect="finite")
+            self.day_plot.addItem(item)
+            self.day_items[key] = item
+        self._shades = []
+        left.addWidget(self.day_widget, 1)
+        self.day_legend = Legend(3)
+        left.addWidget(self.day_legend)
+        self.day_totals = QLabel("")
+        self.day_totals.setWordWrap(True)
+        self.day_totals.setProperty("role", "muted")
+        self.day_totals.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
+        left.addWidget(self.day_totals)
+        charts.addLayout(left, 1)
+
+        right = QVBoxLayout()
+        self.bars_title = QLabel("")
+        self.bars_title.setStyleSheet("font-weight: 600;")
+        right.addWidget(self.bars_title)
+        self.bars_widget = pg.GraphicsLayoutWidget()
+        self.bars_plot = self.bars_widget.addPlot(row=0, col=0)
+        theme.style_plot(self.bars_plot, "Mean daily irradiation (kWh/m²/day)", "Month")
+        self.bars_plot.getAxis("left").setWidth(62)    # room for "4.5" beside the label
+        self.bars_plot.setMouseEnabled(x=False, y=False)
+        self.bars_plot.hideButtons()
+        self.bars_plot.showGrid(x=False, y=True, alpha=0.25)
+        self.bars_plot.getAxis("bottom").setTicks([[(m, MONTHS[m - 1]) for m in range(1, 13)]])
+        self.bars_plot.setXRange(0.5, 12.5, padding=0.0)
+        self.bar_items: list[pg.BarGraphItem] = []
+        right.addWidget(self.bars_widget, 1)
+        self.bars_legend = Legend(3)
+        right.addWidget(self.bars_legend)
+        self.study_note = QLabel("")
+        self.study_note.setWordWrap(True)
+        self.study_note.setProperty("role", "muted")
+        right.addWidget(self.study_note)
+        charts.addLayout(right, 1)
+        outer.addWidget(self.charts, 1)
+
+        # -- annual table -----------------------------------------------------------------
+        self.table_model = QStandardItemModel(0, 5, self)
+        self.table_model.setHorizontalHeaderLabels(
+            ["Option", "Tilt, azimuth (°)", "Annual\n(kWh/m²)", "Horizon\nloss (%)",
+             "Sky basis"])
+        self.table_model.setSortRole(Qt.ItemDataRole.UserRole)
+        self.table = CopyableTable()
+        self.table.setModel(self.table_model)
+        hh = self.table.horizontalHeader()
+        hh.setSortIndicator(-1, Qt.SortOrder.AscendingOrder)   # engine order until clicked
+        hh.setStretchLastSection(True)
+        self.table.verticalHeader().setDefaultSectionSize(20)
+        self.table.setSizePolicy(QSizePolicy.Policy.Expanding, QSizePolicy.Policy.Fixed)
+        self._fit_table(3)
+        outer.addWidget(self.table)
+
+        ctx.sky_changed.connect(self._on_sky_changed)
+        ctx.study_changed.connect(self._on_study_changed)
+        self._sync_controls()
+
+    # -- controls -------------------------------------------------------------------------
+    def _study_for_site(self):
+        study = self.ctx.study
+        if study is None or study.site != self.ctx.site:
+            return None
+        return study
+
+    def _plane_choices(self) -> list[tuple[str, float, float]]:
+        site = self.ctx.site
+        out = [("Horizontal", 0.0, site.equator_azimuth_deg)]
+        out += [(f"{p.label} ({p.tilt_deg:g}° facing {p.azimuth_deg:g}°)", p.tilt_deg,
+                 p.azimuth_deg) for p in site.planes]
+        study = self._study_for_site()
+        if study is not None:
+            fixed = study.option("fixed-optimal")
+            fp = fixed.schedule[0]
+            rec = study.recommended
+            tag = ", recommended" if rec.kind == "fixed-optimal" else ""
+            out.append((f"Study: optimal fixed{tag} ({fp.tilt_deg:g}° facing "
+                        f"{fp.azimuth_deg:g}°)", fp.tilt_deg, fp.azimuth_deg))
+            if rec.kind != "fixed-optimal":
+                p = rec.schedule[0]
+                out.append((f"Study: recommended {_short(rec.label).lower()}, first period "
+                            f"{p.start} to {p.end} ({p.tilt_deg:g}° facing {p.azimuth_deg:g}°)",
+                            p.tilt_deg, p.azimuth_deg))
+        return out
+
+    def _sync_controls(self) -> None:
+        """Show the shared sky choice, the site's planes and what the site allows."""
+        self._updating = True
+        try:
+            sky = self.ctx.sky
+            site = self.ctx.site
+            has_monthly = site.monthly_ghi_kwh_m2_day is not None
+            item = self.sky_combo.model().item(1)
+            item.setEnabled(has_monthly)
+            item.setToolTip("" if has_monthly else MONTHLY_MISSING)
+            self.monthly_reason.setText("" if has_monthly else
+                                        "Monthly values unavailable: " + MONTHLY_MISSING)
+            item.setToolTip("" if has_monthly else "Unavailable: " + MONTHLY_MISSING)
+            self.monthly_reason.setVisible(not has_monthly)
+            file_text = ("Weather file…" if sky.weather_path is None
+                         else f"Weather file: {sky.weather_path.name}")
+            self.sky_combo.setItemText(2, file_text)
+            self.sky_combo.setCurrentIndex(self.sky_combo.findData(sky.sky))
+            self.model_combo.setCurrentIndex(self.model_combo.findData(sky.model))
+            previous = self.plane_combo.currentText()
+            self._planes = self._plane_choices()
+            self.plane_combo.clear()
+            for label, _t, _a in self._planes:
+                self.plane_combo.addItem(label)
+            idx = self.plane_combo.findText(previous)
+            self.plane_combo.setCurrentIndex(idx if idx >= 0 else min(1, len(self._planes) - 1))
+            self._show_sky_note()
+        finally:
+            self._updating = False
+
+    def _show_sky_note(self) -> None:
+        sky = self.ctx.sky
+        if sky.sky == "file" and sky.weather is not None:
+            w = sky.weather
+            warn = [finding_text(f) for f in w.findings if f.severity != "info"]
+            text = "Weather file " + summary_text(w)
+            if warn:
+                text += ". " + warn[0] + (f" (and {len(warn) - 1} more)" if len(warn) > 1 else "")
+            self.sky_note.setText(text)
+            self.sky_note.setToolTip("\n".join(finding_text(f) for f in w.findings))
+        elif sky.sky == "monthly":
+            self.sky_note.setText("Monthly values: a synthetic hourly year scaled to the site's "
+                                  "monthly mean daily GHI; right monthly totals, no day-to-day "
+                                  "weather.")
+            self.sky_note.setToolTip("")
+        else:
+            self.sky_note.setText("Clear sky: every figure is an upper bound, not an expected "
+                                  "yield (no clouds).")
+            self.sky_note.setToolTip("")
+
+    def _sky_picked(self, index: int) -> None:
+        if self._updating:
+            return
+        key = self.sky_combo.itemData(index)
+        sky = self.ctx.sky
+        if key == "file":
+            if sky.weather is None:
+                self.open_weather_dialog()
+                return
+            self.ctx.set_sky(sky="file")
+        elif key == "monthly" and self.ctx.site.monthly_ghi_kwh_m2_day is None:
+            self._sync_controls()
+        else:
+            self.ctx.set_sky(sky=key)
+
+    def _model_picked(self, index: int) -> None:
+        if not self._updating:
+            self.ctx.set_sky(model=self.model_combo.itemData(index))
+
+    def _plane_picked(self, _index: int) -> None:
+        if not self._updating:
+            self._request(day=True, year=False)
+
+    def _date_picked(self, _date) -> None:
+        if not self._updating:
+            self._request(day=True, year=False)
+
+    def open_weather_dialog(self) -> WeatherDialog:
+        """Open the weather-file dialog (window-modal, not blocking) and return it."""
+        path = str(self.ctx.sky.weather_path) if self.ctx.sky.weather_path else None
+        self._dialog = WeatherDialog(self.ctx, self, path=path)
+        self._dialog.finished.connect(lambda _r: self._sync_controls())
+        self._dialog.open()
+        return self._dialog
+
+    # -- reacting to the shared state -------------------------------------------------------
+    def _on_sky_changed(self, _sky) -> None:
+        self._sync_controls()
+        self._request(day=True, year=True)
+
+    def _on_study_changed(self, _study) -> None:
+        selected = self._selected_plane()
+        self._sync_controls()
+        self._request(day=self._selected_plane() != selected, year=True)
+
+    def showEvent(self, event) -> None:  # noqa: N802 - Qt override
+        super().showEvent(event)
+        self.activated()          # catch up on what changed while hidden
+
+    def _request(self, day: bool, year: bool) -> None:
+        if not self.isVisible():
+            self._stale = True
+            return
+        self._submit(day, year)
+
+    def refresh(self) -> None:
+        super().refresh()
+        self._sync_controls()
+        site = self.ctx.site
+        if self.ctx.sky.sky == "monthly" and site.monthly_ghi_kwh_m2_day is None:
+            self.ctx.notify("info", "This site has no monthly GHI values: the sky basis is back "
+                            "to clear sky.")
+            self.ctx.set_sky(sky="clear")      # emits sky_changed, which submits
+            return
+        if self.ctx.sky.sky == "file" and self.ctx.sky.weather is None:
+            self.ctx.set_sky(sky="clear")
+            return
+        self._submit(True, True)
+
+    # -- engine work --------------------------------------------------------------------------
+    def _selected_plane(self) -> tuple[str, float, float]:
+        i = self.plane_combo.currentIndex()
+        if 0 <= i < len(self._planes):
+            return self._planes[i]
+        return self._plane_choices()[0]
+
+    def _options(self):
+        sky = self.ctx.sky
+        if sky.sky == "file" and sky.weather is not None:
+            return sky.irradiance_options(step_min=sky.weather.step_min)
+        return sky.irradiance_options()
+
+    def _submit(self, day: bool, year: bool) -> None:
+        site = self.ctx.site
+        opts = self._options()
+        if day:
+            label, tilt, az = self._selected_plane()
+            d = self.date_edit.date()
+            date = f"{opts.year:04d}-{d.month():02d}-{d.day():02d}"
+            self.ctx.runner.submit(
+                self.channel("day"),
+                lambda progress: irradiance_day(site, date, tilt, az, opts),
+                lambda result, name=label: self._show_day(result, name),
+                label="Irradiance: day curves")
+        if year:
+            study = self._study_for_site()
+            self.ctx.runner.submit(
+                self.channel("year"),
+                lambda progress: compare_options(site, opts, study, progress),
+                self._show_rows, label="Irradiance: monthly and annual totals")
+
+    # -- drawing --------------------------------------------------------------------------
+    def _show_day(self, day, plane_label: str) -> None:
+        self.day = day
+        s = day.series
+        x = day.clock_hours
+        up = day.sun_up
+        basis = day.options.sky
+        ghi_name = {"clear": "GHI, clear sky", "monthly": "GHI, monthly values",
+                    "file": "GHI, weather file"}[basis]
+        names = {"poa": f"Plane of array ({_short(plane_label)})", "ghi": ghi_name,
+                 "dni": "DNI", "dhi": "DHI", "ghi_clear": "GHI, clear sky (reference)",
+                 "dni_extra": "Extraterrestrial normal"}
+        data = {"poa": s["poa_global"], "ghi": s["ghi"], "dni": s["dni"], "dhi": s["dhi"],
+                "ghi_clear": s["ghi_clear"], "dni_extra": s["dni_extra"]}
+        self.day_legend.clear()
+        symbol = "o" if day.step_min >= 30 else None
+        for key, item in self.day_items.items():
+            y = np.asarray(data[key], dtype=float)
+            show = not (key == "ghi_clear" and basis == "clear")
+            if key == "dni_extra":
+                y = np.where(up, y, np.nan)   # defined while the sun is up
+            if show:
+                item.setData(x, y, symbol=symbol if key != "dni_extra" else None, symbolSize=4,
+                             symbolPen=None, symbolBrush=_DAY_STYLE[key][0])
+                self.day_legend.add(names[key], pen=_pen(key))
+            else:
+                item.setData([], [])
+            item.setVisible(show)
+        for r in self._shades:
+            self.day_plot.removeItem(r)
+        self._shades = []
+        behind = up & ~s["sun_visible"].to_numpy(dtype=bool)
+        step_h = day.step_min / 60.0
+        starts = s["interval_start"]
+        start_h = (starts.dt.hour + starts.dt.minute / 60.0).to_numpy(dtype=float)
+        for a, b in _runs(behind):
+            region = pg.LinearRegionItem((start_h[a], min(start_h[b - 1] + step_h, 24.0)),
+                                         movable=False, brush=_SHADE, pen=pg.mkPen(None))
+            region.setZValue(-10)
+            self.day_plot.addItem(region)
+            self._shades.append(region)
+        ymax = float(np.nanmax([np.nanmax(np.asarray(data[k], dtype=float)) for k in data]
+                               + [100.0]))
+        self.day_plot.setYRange(0, ymax * 1.05, padding=0.0)
+        self.day_plot.setLabel("bottom", f"Local clock time, {day.site.timezone} (h)")
+        date = day.date
+        self.day_title.setText(f"{date.day} {date.strftime('%B %Y')}: {day.sky_label}"
+                               + (", hourly values of the basis" if day.step_min >= 60 else ""))
+        t = day.totals_kwh_m2
+        if behind.any():
+            self.day_legend.add("Sun behind the horizon", brush=QBrush(_SHADE))
+        self.day_totals.setText(
+            f"Day, kWh/m²: extraterrestrial horizontal "
+            f"{t['extraterrestrial_horizontal_kwh_m2']:.2f} · GHI {t['ghi_kwh_m2']:.2f} · "
+            f"DNI {t['dni_kwh_m2']:.2f} · DHI {t['dhi_kwh_m2']:.2f} · plane "
+            f"{t['poa_kwh_m2']:.2f} = beam {t['poa_beam_kwh_m2']:.2f} + sky "
+            f"{t['poa_sky_diffuse_kwh_m2']:.2f} + ground {t['poa_ground_kwh_m2']:.2f} "
+            f"(horizon loss {t['horizon_loss_kwh_m2']:.2f})")
+
+    def _show_rows(self, rows) -> None:
+        self.rows = tuple(rows)
+        for item in self.bar_items:
+            self.bars_plot.removeItem(item)
+        self.bar_items = []
+        self.bars_legend.clear()
+        n = len(self.rows)
+        group = 0.84
+        width = group / max(n, 1)
+        top = 0.0
+        for i, r in enumerate(self.rows):
+            x = np.arange(1, 13) - group / 2 + width * (i + 0.5)
+            h = r.mean_daily_kwh_m2_day
+            top = max(top, float(np.max(h)))
+            outline = pg.mkPen(theme.series_color(i).darker(135), width=0.8)
+            bar = pg.BarGraphItem(x=x, height=h, width=width * 0.92, brush=_bar_brush(i),
+                                  pen=outline)
+            bar.setToolTip(r.label)
+            self.bars_plot.addItem(bar)
+            self.bar_items.append(bar)
+            self.bars_legend.add(_short(r.label), brush=_bar_brush(i), outline=outline)
+        self.bars_plot.setYRange(0, max(top, 0.1) * 1.06, padding=0.0)
+        own = [r.sky_label for r in self.rows if not r.from_study]
+        studied = [r.sky_label for r in self.rows if r.from_study]
+        basis = own[0] if own else ""
+        self.bars_title.setText(f"Monthly mean daily irradiation per option: {basis}")
+        study = self.ctx.study
+        if study is not None and self._study_for_site() is None:
+            self.study_note.setText("The tilt study was computed for an earlier version of this "
+                                    "site; its options return when it is recomputed.")
+        elif study is None:
+            self.study_note.setText("Run the Tilt study to add its options here.")
+        elif studied and studied[0] != basis:
+            self.study_note.setText(f"The tilt study's options are on its own sky basis, "
+                                    f"{studied[0]}, until the study is recomputed on {basis}.")
+        else:
+            self.study_note.setText("")
+        self.study_note.setVisible(bool(self.study_note.text()))
+        self._fill_table()
+
+    def _fill_table(self) -> None:
+        m = self.table_model
+        m.removeRows(0, m.rowCount())
+        for i, r in enumerate(self.rows):
+            name = _Item(r.label)
+            name.setIcon(_swatch_icon(i))
+            loss = ("—" if r.horizon_loss_pct is None else f"{r.horizon_loss_pct:.1f}")
+            cells = [name, _Item(r.plane_text),
+                     _Item(f"{r.annual_kwh_m2:,.0f}", r.annual_kwh_m2),
+                     _Item(loss, -1.0 if r.horizon_loss_pct is None else r.horizon_loss_pct),
+                     _Item(r.sky_label)]
+            for c in (2, 3):
+                cells[c].setTextAlignment(Qt.AlignmentFlag.AlignRight
+                                          | Qt.AlignmentFlag.AlignVCenter)
+            if r.horizon_loss_pct is None:
+                cells[3].setToolTip("not defined for a plane that follows the sun")
+            m.appendRow(cells)
+        self._fit_table(m.rowCount())
+        for c in range(m.columnCount() - 1):
+            self.table.resizeColumnToContents(c)
+            self.table.setColumnWidth(c, self.table.columnWidth(c) + 10)
+
+    def _fit_table(self, n_rows: int) -> None:
+        """Height for up to nine rows without scrolling."""
+        head = max(self.table.horizontalHeader().sizeHint().height(), 40)
+        rows = min(max(n_rows, 2), 9)
+        self.table.setFixedHeight(head + rows * self.table.verticalHeader().defaultSectionSize()
+                                  + 2 * self.table.frameWidth() + 2)
+        if self.layout() is not None:
+            self.layout().activate()     # lay out now, not at the next resize
+
+    # -- what a test or the sheet reads ---------------------------------------------------------
+    def table_rows(self) -> list[list[str]]:
+        m = self.table_model
+        return [[m.item(r, c).text() for c in range(m.columnCount())] for r in range(m.rowCount())]
+
+
+def _runs(mask: np.ndarray):
+    """(start, end) index pairs of the True runs of ``mask`` (end exclusive)."""
+    m = np.concatenate([[False], np.asarray(mask, dtype=bool), [False]])
+    d = np.diff(m.astype(int))
+    return list(zip(np.flatnonzero(d == 1), np.flatnonzero(d == -1), strict=True))
+
+
+__all__ = ["IrradianceView"]
