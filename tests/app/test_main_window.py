@@ -155,3 +155,41 @@ def test_preferences_round_trip(qtbot):
                                  paper="letter")
     settings.save_preferences(prefs)
     assert settings.load_preferences() == prefs
+
+
+def test_typing_a_site_changes_the_sun_path_and_its_events(window, qtbot, idle):
+    w = window()
+    sun = w.show_view("Sun path")
+    idle(w.runner)
+    before_chart = sun.chart
+    before_rows = sun.table.as_tsv()
+    site_view = w.show_view("Site")
+    site_view.tz_follow.setChecked(False)
+    site_view.latitude.edit.clear()
+    qtbot.keyClicks(site_view.latitude.edit, "33 27 S")   # typed as degrees, minutes, letter
+    site_view.latitude.commit()
+    assert w.document.site.latitude_deg == -33.45
+    w.show_view("Sun path")
+    idle(w.runner)
+    assert sun.chart is not before_chart
+    # June solstice noon: 90 - |lat - 23.44| (Duffie & Beckman 2013, sec. 1.6), within 0.5 deg
+    june = max(max(p.elevation_deg) for p in sun.chart.paths if p.date.month == 6)
+    assert abs(june - (90 - abs(-33.45 - 23.44))) < 0.5
+    assert sun.table.as_tsv() != before_rows
+
+
+def test_adding_an_obstacle_raises_the_horizon_loss_in_the_window(window, idle):
+    from tiltyard.engine.site import Obstacle
+
+    w = window("tarnvik-cabin")
+    view = w.show_view("Horizon")
+    idle(w.runner)
+
+    def shown_loss_pct():            # the horizontal row's loss as the table shows it
+        return float(view.loss_model.index(0, 3).data())
+
+    before = shown_loss_pct()
+    site = w.document.site
+    w.document.propose(obstacles=site.obstacles + (Obstacle("new shed", 180.0, 40.0, 5.0, 4.0),))
+    idle(w.runner)
+    assert shown_loss_pct() > before + 1.0
