@@ -10,9 +10,11 @@ from __future__ import annotations
 import argparse
 import datetime as _dt
 import json
+import os
 import re
 import sys
 import traceback
+from pathlib import Path
 
 from tiltyard import __version__
 
@@ -41,7 +43,8 @@ def _date(text: str) -> _dt.date:
 def build_parser() -> argparse.ArgumentParser:
     from tiltyard.engine.plane import TRANSPOSITION_MODELS
     from tiltyard.engine.sky import CLEARSKY_MODELS, SOLAR_CONSTANT_W_M2
-    from tiltyard.engine.timegrid import REFERENCE_YEAR, STEPS_MIN
+    from tiltyard.engine.tilt import OPTION_KINDS
+    from tiltyard.engine.timegrid import REFERENCE_YEAR, STEPS_MIN, TIME_BASES
 
     p = _Parser(prog="tiltyard",
                 description="Solar site assessment: sun path, horizon, irradiance on any plane. "
@@ -93,6 +96,64 @@ def build_parser() -> argparse.ArgumentParser:
                                    "schedules, and two-axis tracking as a ceiling.")
     s.add_argument("site", metavar="SITE")
     _add_sky_options(s)
+    _add_study_options(s)
+    s.add_argument("--json", action="store_true", help="write one JSON document to stdout")
+
+    s = sub.add_parser(
+        "sheet", help="the feasibility sheet as PDF (A4 or US Letter), with CSV and JSON data",
+        description="The feasibility sheet for the client: key figures of the recommended "
+                    "option, the sun path with the horizon, the monthly irradiation of the "
+                    "compared options, the options and monthly tables, assumptions and "
+                    "cautions, on two pages. Runs the same tilt study as 'tiltyard study' with "
+                    "the same flags. Works without a display. Every file is written whole or "
+                    "not at all (a temporary file in the same folder, then renamed).",
+        epilog="Data exports (any combination, with or without -o): --csv-monthly FILE "
+               "(monthly and annual irradiation of every option, kWh/m2), --csv-options FILE "
+               "(the options table), --csv-hourly FILE (interval plane-of-array irradiance in "
+               "W/m2 of the options chosen with --hourly-options), --json-out FILE (the same "
+               "document as 'tiltyard study --json'). Preparer, organisation and paper default "
+               "to the desktop app's preferences.")
+    s.add_argument("site", metavar="SITE")
+    s.add_argument("-o", "--output", metavar="FILE.pdf", default=None,
+                   help="write the sheet as a PDF file")
+    s.add_argument("--paper", choices=("a4", "letter"), default=None,
+                   help="paper size (default: the app's preference, else a4)")
+    s.add_argument("--preparer", default=None, metavar="NAME",
+                   help="who prepared the sheet (default: the app's preference)")
+    s.add_argument("--organisation", "--organization", dest="organisation", default=None,
+                   metavar="NAME", help="the preparer's organisation (default: the app's "
+                                        "preference)")
+    s.add_argument("--prepared", type=_date, default=None, metavar="YYYY-MM-DD",
+                   help="date prepared (default: today)")
+    s.add_argument("--times", choices=TIME_BASES, default=None,
+                   help="time basis of the sun-path hour lines: clock (local clock time with "
+                        "daylight saving), standard or solar (default: the app's preference, "
+                        "else clock)")
+    s.add_argument("--csv-monthly", metavar="FILE", default=None,
+                   help="write the monthly and annual table as CSV")
+    s.add_argument("--csv-options", metavar="FILE", default=None,
+                   help="write the options table as CSV")
+    s.add_argument("--csv-hourly", metavar="FILE", default=None,
+                   help="write the interval plane-of-array irradiance of the chosen options "
+                        "as CSV")
+    s.add_argument("--hourly-options", metavar="KIND,...", default=None,
+                   help="options in --csv-hourly: " + ", ".join(OPTION_KINDS)
+                        + " or recommended (default: every option)")
+    s.add_argument("--json-out", metavar="FILE", default=None,
+                   help="write the study as JSON (the document of 'tiltyard study --json')")
+    _add_sky_options(s)
+    _add_study_options(s)
+    for sp in sub.choices.values():      # --verbose works after the subcommand too
+        sp.add_argument("--verbose", action="store_true", default=argparse.SUPPRESS,
+                        help="show the full traceback of an internal fault")
+    return p
+
+
+def _add_study_options(s) -> None:
+    """The tilt study's flags (study and sheet take the same ones)."""
+    from tiltyard.engine.plane import TRANSPOSITION_MODELS
+    from tiltyard.engine.timegrid import REFERENCE_YEAR
+
     s.add_argument("--model", choices=TRANSPOSITION_MODELS, default="perez",
                    help="sky diffuse model (default perez)")
     s.add_argument("--objective", default="annual", metavar="OBJ",
@@ -118,11 +179,6 @@ def build_parser() -> argparse.ArgumentParser:
                    help="system loss fraction for the indicative specific yield (default 0.14)")
     s.add_argument("--year", type=int, default=REFERENCE_YEAR,
                    help=f"year (default {REFERENCE_YEAR}, a non-leap reference year)")
-    s.add_argument("--json", action="store_true", help="write one JSON document to stdout")
-    for sp in sub.choices.values():      # --verbose works after the subcommand too
-        sp.add_argument("--verbose", action="store_true", default=argparse.SUPPRESS,
-                        help="show the full traceback of an internal fault")
-    return p
 
 
 def _add_sky_options(s) -> None:
@@ -263,6 +319,7 @@ def _schedule_words(opt) -> str:
 
 
 def cmd_study(args) -> int:
+    from tiltyard.engine.exports import study_json_text
     from tiltyard.engine.jobs import CAUTION
     from tiltyard.engine.tilt import tilt_study
 
@@ -272,12 +329,12 @@ def cmd_study(args) -> int:
         st = tilt_study(site, opts)
     except ValueError as err:
         raise UserError(str(err)) from None
-    doc = {"study": st.to_json_dict()}
-    _weather_report(opts.irradiance.weather, doc, args.json)
     if args.json:
-        print(json.dumps(doc, indent=2, ensure_ascii=False))
+        # one shared builder: the sheet's --json-out and the app's export write the same text
+        sys.stdout.write(study_json_text(st))
         return EXIT_OK
-    d = doc["study"]
+    _weather_report(opts.irradiance.weather, {}, False)
+    d = st.to_json_dict()
     print(f"Tilt study for {site.name}  ({site.latitude_deg:.4f}, {site.longitude_deg:.4f})")
     print(f"  sky: {opts.irradiance.sky}, model: {opts.irradiance.model}, year "
           f"{opts.irradiance.year}; objective: {opts.objective_label}; tilts "
@@ -467,8 +524,134 @@ def cmd_irradiance(args) -> int:
     return EXIT_OK
 
 
+# -- sheet --------------------------------------------------------------------------------
+
+def _check_output(flag: str, path: str) -> Path:
+    """Refuse an output path that cannot be written, before any work is done."""
+    p = Path(path)
+    if not path or p.name in ("", ".", ".."):
+        raise UserError(f"{flag} {path!r}: not a file name")
+    if p.is_dir():
+        raise UserError(f"{flag} {path}: is a folder, not a file")
+    folder = p.parent if str(p.parent) else Path(".")
+    if not folder.exists():
+        raise UserError(f"{flag} {path}: the folder {folder} does not exist")
+    if not folder.is_dir():
+        raise UserError(f"{flag} {path}: {folder} is not a folder")
+    if not os.access(folder, os.W_OK | os.X_OK):
+        raise UserError(f"{flag} {path}: the folder {folder} is not writable")
+    return p
+
+
+def _ensure_gui_app():
+    """A Qt application for fonts and the PDF writer; Qt's offscreen platform when there is
+    no display (so the sheet works on a server or in CI)."""
+    if (sys.platform not in ("win32", "darwin") and not os.environ.get("QT_QPA_PLATFORM")
+            and not os.environ.get("DISPLAY") and not os.environ.get("WAYLAND_DISPLAY")):
+        os.environ["QT_QPA_PLATFORM"] = "offscreen"
+    # a QApplication (not only a QGuiApplication): widgets created later in the same
+    # process, as in the test suite, need one, and there is only ever one instance
+    from PySide6.QtWidgets import QApplication
+
+    return QApplication.instance() or QApplication(["tiltyard"])
+
+
+def _sheet_preferences():
+    """The desktop app's saved preferences, or the defaults when they cannot be read."""
+    try:
+        from tiltyard.app.settings import load_preferences
+
+        return load_preferences()
+    except Exception:  # noqa: BLE001 - preferences are a convenience, never a failure
+        from tiltyard.app.settings import Preferences
+
+        return Preferences()
+
+
+def cmd_sheet(args) -> int:
+    import datetime
+
+    from tiltyard.engine.exports import (
+        check_option_kinds,
+        hourly_csv_text,
+        monthly_csv_text,
+        options_csv_text,
+        select_options,
+        study_json_text,
+    )
+    from tiltyard.engine.site import write_bytes_atomically
+
+    wanted = [("-o", args.output), ("--csv-monthly", args.csv_monthly),
+              ("--csv-options", args.csv_options), ("--csv-hourly", args.csv_hourly),
+              ("--json-out", args.json_out)]
+    wanted = [(flag, path) for flag, path in wanted if path is not None]
+    if not wanted:
+        raise UserError("sheet: nothing to write; give -o FILE.pdf and/or --csv-monthly, "
+                        "--csv-options, --csv-hourly, --json-out FILE")
+    seen = {}
+    for flag, path in wanted:
+        key = os.path.abspath(path)
+        if key in seen:
+            raise UserError(f"{flag} {path}: the same file as {seen[key]}")
+        seen[key] = flag
+        _check_output(flag, path)
+    if args.hourly_options is not None and args.csv_hourly is None:
+        raise UserError(f"--hourly-options {args.hourly_options}: only with --csv-hourly FILE")
+    kinds = None
+    if args.hourly_options is not None:
+        kinds = [k.strip() for k in args.hourly_options.split(",") if k.strip()]
+        if not kinds:
+            raise UserError(f"--hourly-options {args.hourly_options!r}: give option kinds")
+        try:
+            check_option_kinds(kinds)
+        except ValueError as err:
+            raise UserError(f"--hourly-options {args.hourly_options}: {err}") from None
+    site = _load_site(args.site)
+    opts = _study_options(args, site)
+    prefs = None
+    if None in (args.preparer, args.organisation, args.paper, args.times):
+        prefs = _sheet_preferences()
+    paper = args.paper or (prefs.paper if prefs is not None else "a4")
+    basis = args.times or (prefs.time_basis if prefs is not None else "clock")
+    _ensure_gui_app()
+    from tiltyard.app.sheet import SheetMeta, compute_sheet, pdf_bytes
+
+    meta = SheetMeta(
+        preparer=args.preparer if args.preparer is not None else prefs.preparer,
+        organisation=args.organisation if args.organisation is not None else prefs.organisation,
+        prepared=args.prepared or datetime.date.today(), time_basis=basis)
+    try:
+        result = compute_sheet(site, opts, meta, paper)
+        chosen = select_options(result.study, kinds)
+    except ValueError as err:
+        raise UserError(str(err)) from None
+    _weather_report(opts.irradiance.weather, {}, False)
+    # everything in memory first: a failure leaves no file behind and no file changed
+    data = {}
+    for flag, _path in wanted:
+        if flag == "-o":
+            data[flag] = pdf_bytes(result.document)
+        elif flag == "--csv-monthly":
+            data[flag] = monthly_csv_text(result.study).encode("utf-8")
+        elif flag == "--csv-options":
+            data[flag] = options_csv_text(result.study).encode("utf-8")
+        elif flag == "--csv-hourly":
+            data[flag] = hourly_csv_text(result.sky, site, chosen).encode("utf-8")
+        else:
+            data[flag] = study_json_text(result.study).encode("utf-8")
+    for flag, path in wanted:
+        try:
+            write_bytes_atomically(path, data[flag])
+        except OSError as err:
+            raise UserError(f"{flag} {path}: cannot write ({err.strerror or err})") from None
+        what = (f"feasibility sheet, {result.document.page_count} pages, "
+                f"{'A4' if paper == 'a4' else 'US Letter'}" if flag == "-o" else flag[2:])
+        print(f"wrote {path} ({what})")
+    return EXIT_OK
+
+
 COMMANDS = {"sites": cmd_sites, "sun": cmd_sun, "irradiance": cmd_irradiance,
-            "study": cmd_study}
+            "study": cmd_study, "sheet": cmd_sheet}
 
 
 def _one_line(text) -> str:

@@ -331,8 +331,14 @@ class MainWindow(QMainWindow):
             self.status_label.setText("Ready")
 
     def _on_progress(self, label: str, fraction: float, stage: str) -> None:
-        self.progress.setValue(int(round(100 * max(0.0, min(1.0, fraction)))))
-        self.status_label.setText(f"{label}: {stage}" if stage else label)
+        value = int(round(100 * max(0.0, min(1.0, fraction))))
+        # QProgressBar repaints synchronously on setValue: only big steps are worth it
+        if abs(value - self.progress.value()) >= 10 or value in (0, 100):
+            if value != self.progress.value():
+                self.progress.setValue(value)
+        text = f"{label}: {stage}" if stage else label
+        if text != self.status_label.text():
+            self.status_label.setText(text)
 
     def _on_task_error(self, label: str, message: str, tb: str) -> None:
         self.banner.show_message("error", f"{label}: {message}", tb)

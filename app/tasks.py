@@ -116,6 +116,8 @@ class TaskRunner(QObject):
         self._pending: dict[str, tuple] = {}
         self._timers: dict[str, QTimer] = {}
         self._closed = False
+        self._drawing = 0
+        self._stage_gen: dict[str, int] = {}
 
     # -- requests -------------------------------------------------------------
     def submit(self, channel: str, fn: Callable, on_result: Callable | None = None,
@@ -151,7 +153,43 @@ class TaskRunner(QObject):
         self._emit_busy()
 
     def is_busy(self) -> bool:
-        return bool(self._pending) or bool(self._running)
+        return bool(self._pending) or bool(self._running) or self._drawing > 0
+
+    def run_in_stages(self, owner: str, steps) -> None:
+        """Run GUI-side drawing ``steps`` one per event-loop turn.
+
+        A result that takes long to draw is split so the event loop (input,
+        repaints) gets a turn between steps. A newer call for the same
+        ``owner`` abandons the rest of an older one. The runner counts as busy
+        until the last step has run.
+        """
+        gen = self._stage_gen.get(owner, 0) + 1
+        self._stage_gen[owner] = gen
+        steps = list(steps)
+        self._drawing += 1
+        self._emit_busy()
+
+        def run(i):
+            try:
+                if self._closed or self._stage_gen.get(owner) != gen or i >= len(steps):
+                    return self._done_drawing()
+                try:
+                    steps[i]()
+                except Exception as exc:  # noqa: BLE001 - a view fault must not kill the app
+                    self.error.emit(owner, f"could not show the result: {exc}",
+                                    traceback.format_exc())
+                    return self._done_drawing()
+                if i + 1 >= len(steps):
+                    return self._done_drawing()
+                QTimer.singleShot(0, lambda: run(i + 1))
+            except RuntimeError:       # the runner was deleted while steps were queued
+                return None
+
+        run(0)
+
+    def _done_drawing(self) -> None:
+        self._drawing = max(0, self._drawing - 1)
+        self._emit_busy()
 
     def shutdown(self, timeout_ms: int = 30000) -> bool:
         """Cancel everything and wait for the worker threads to finish."""

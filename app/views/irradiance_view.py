@@ -98,64 +98,71 @@ def _short(label: str) -> str:
     return label.split(" (")[0].strip() or label
 
 
-class _Swatch(QWidget):
-    """A legend sample: a short line in the curve's pen, or a block in the bar's brush."""
-
-    def __init__(self, pen=None, brush=None, outline=None, parent=None):
-        super().__init__(parent)
-        self.pen, self.brush, self.outline = pen, brush, outline
-        self.setFixedSize(30, 14)
-
-    def paintEvent(self, _event) -> None:  # noqa: N802 - Qt override
-        p = QPainter(self)
-        p.setRenderHint(QPainter.RenderHint.Antialiasing)
-        if self.brush is not None:
-            p.fillRect(7, 1, 16, 12, QColor("white"))
-            p.fillRect(7, 1, 16, 12, self.brush)
-            if self.outline is not None:
-                p.setPen(self.outline)
-                p.drawRect(7, 1, 16, 12)
-        elif self.pen is not None:
-            p.setPen(self.pen)
-            p.drawLine(1, 7, 29, 7)
-        p.end()
-
-
 class Legend(QWidget):
-    """Legend entries in rows of ``columns``, as plain widgets below a chart."""
+    """Legend entries in rows of ``columns``, painted by one widget below a chart.
+
+    One painted widget rather than a label per entry: creating and showing
+    child widgets on every redraw cost several milliseconds each and stalled
+    the GUI thread.
+    """
+
+    ROW_H = 17
+    SWATCH_W = 30
 
     def __init__(self, columns: int = 3, parent=None):
         super().__init__(parent)
         self.columns = columns
-        self._grid = QGridLayout(self)
-        self._grid.setContentsMargins(6, 0, 6, 0)
-        self._grid.setHorizontalSpacing(4)
-        self._grid.setVerticalSpacing(1)
         self.entries: list[str] = []
+        self._items: list[tuple] = []
+        f = self.font()
+        f.setPointSizeF(9.0)
+        self.setFont(f)
+        self.setSizePolicy(QSizePolicy.Policy.Preferred, QSizePolicy.Policy.Fixed)
 
     def clear(self) -> None:
-        while self._grid.count():
-            w = self._grid.takeAt(0).widget()
-            if w is not None:
-                w.hide()
-                w.deleteLater()
         self.entries = []
+        self._items = []
 
     def add(self, text: str, pen=None, brush=None, outline=None) -> None:
-        i = len(self.entries)
-        r, c = divmod(i, self.columns)
-        label = QLabel(text)
-        label.setWordWrap(True)
-        label.setStyleSheet("font-size: 9pt;")
-        label.setToolTip(text)
-        swatch = _Swatch(pen, brush, outline)
-        self._grid.addWidget(swatch, r, 2 * c)
-        self._grid.addWidget(label, r, 2 * c + 1)
-        swatch.show()      # children added to a shown widget stay hidden otherwise
-        label.show()
-        for k in range(self.columns):
-            self._grid.setColumnStretch(2 * k + 1, 1)
         self.entries.append(text)
+        self._items.append((text, pen, brush, outline))
+
+    def finish(self) -> None:
+        """Lay out and repaint after a run of :meth:`add` calls."""
+        self.setFixedHeight(self._rows() * self.ROW_H + 4)
+        self.setToolTip("\n".join(self.entries))
+        self.update()
+
+    def _rows(self) -> int:
+        return max(1, -(-len(self._items) // self.columns))
+
+    def sizeHint(self):  # noqa: N802 - Qt override
+        from PySide6.QtCore import QSize
+        return QSize(300, self._rows() * self.ROW_H + 4)
+
+    def paintEvent(self, _event) -> None:  # noqa: N802 - Qt override
+        p = QPainter(self)
+        p.setRenderHint(QPainter.RenderHint.Antialiasing)
+        col_w = max(1, (self.width() - 12) // self.columns)
+        fm = p.fontMetrics()
+        for i, (text, pen, brush, outline) in enumerate(self._items):
+            r, c = divmod(i, self.columns)
+            x0 = 6 + c * col_w
+            y0 = 2 + r * self.ROW_H
+            if brush is not None:
+                p.fillRect(x0 + 7, y0 + 2, 16, 12, QColor("white"))
+                p.fillRect(x0 + 7, y0 + 2, 16, 12, brush)
+                if outline is not None:
+                    p.setPen(outline)
+                    p.drawRect(x0 + 7, y0 + 2, 16, 12)
+            elif pen is not None:
+                p.setPen(pen)
+                p.drawLine(x0 + 1, y0 + 8, x0 + 29, y0 + 8)
+            p.setPen(QColor(theme.TEXT))
+            avail = col_w - self.SWATCH_W - 8
+            shown = fm.elidedText(text, Qt.TextElideMode.ElideRight, max(10, avail))
+            p.drawText(x0 + self.SWATCH_W + 4, y0 + 2 + fm.ascent(), shown)
+        p.end()
 
 
 class _Block(QWidget):
@@ -271,7 +278,7 @@ class IrradianceView(View):
             self.day_items[key] = item
         self._shades = []
         left.addWidget(self.day_widget, 1)
-        self.day_legend = Legend(3)
+        self.day_legend = Legend(2)
         left.addWidget(self.day_legend)
         self.day_totals = QLabel("")
         self.day_totals.setWordWrap(True)
@@ -553,6 +560,7 @@ class IrradianceView(View):
         t = day.totals_kwh_m2
         if behind.any():
             self.day_legend.add("Sun behind the horizon", brush=QBrush(_SHADE))
+        self.day_legend.finish()
         self.day_totals.setText(
             f"Day, kWh/m²: extraterrestrial horizontal "
             f"{t['extraterrestrial_horizontal_kwh_m2']:.2f} · GHI {t['ghi_kwh_m2']:.2f} · "
@@ -582,6 +590,7 @@ class IrradianceView(View):
             self.bars_plot.addItem(bar)
             self.bar_items.append(bar)
             self.bars_legend.add(_short(r.label), brush=_bar_brush(i), outline=outline)
+        self.bars_legend.finish()
         self.bars_plot.setYRange(0, max(top, 0.1) * 1.06, padding=0.0)
         own = [r.sky_label for r in self.rows if not r.from_study]
         studied = [r.sky_label for r in self.rows if r.from_study]

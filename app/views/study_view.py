@@ -546,10 +546,11 @@ class StudyView(View):
         self._fit_headers()
         self.table.setColumnHidden(COL_OBJECTIVE, study.options_used.objective == "annual")
         self._show_recommendation(study)
-        self._draw_curve(study)
-        self._draw_map(study)
-        self._draw_timeline(study)
-        self.ctx.publish_study(study)
+        self.ctx.runner.run_in_stages(self.channel("draw"), (
+            lambda: self._draw_curve(study),
+            lambda: self._draw_map(study),
+            lambda: self._draw_timeline(study),
+            lambda: self.ctx.publish_study(study)))
 
     def _show_recommendation(self, study) -> None:
         rec = study.recommended

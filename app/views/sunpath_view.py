@@ -412,11 +412,11 @@ class SunPathView(View):
     # -- drawing ----------------------------------------------------------------------
     def _show_chart(self, chart) -> None:
         self.chart = chart
-        self._draw_cartesian(chart)
-        self._draw_polar(chart)
-        self._show_legend(chart)
-        self._show_day(chart)
-        self._show_events(chart)
+        self.ctx.runner.run_in_stages(self.channel("draw"), (
+            lambda: self._draw_cartesian(chart),
+            lambda: self._draw_cartesian_paths(chart),
+            lambda: self._draw_polar(chart),
+            lambda: (self._show_legend(chart), self._show_day(chart), self._show_events(chart))))
 
     @staticmethod
     def _path_pen(curve):
@@ -489,6 +489,17 @@ class SunPathView(View):
 
         self.hour_items = self._draw_hours(p, self._cart_items, self._cart_texts, chart,
                                            split, place)
+
+    def _draw_cartesian_paths(self, chart) -> None:
+        """Second half of the cartesian chart: day paths, the chosen day, the range."""
+        p = self.cart.getPlotItem()
+        centre = chart.equator_azimuth_deg
+        lo, hi = centre - 180.0, centre + 180.0
+        hy = chart.horizon_elevation_deg
+
+        def split(az, el):
+            return split_at_edges(az, el, centre)
+
         self.path_items, self._pick["cart"] = self._draw_paths(
             p, self._cart_items, chart, split, lambda az, el: (chart_x(az, centre), el))
         self._set_day(self._cart_items, chart.day, split)

@@ -1,0 +1,528 @@
+"""The two pages of the feasibility sheet, laid out as display lists.
+
+Page 1: who, where and when; the key figures of the recommended option; the
+sun-path chart with the horizon; the monthly chart of the compared options.
+Page 2: the options table, the monthly table, the study's notes, the
+assumptions with the reproducibility line, and the cautions.
+
+Each page is laid out at a font scale of 1 and, if anything would not fit
+(a very long site name, many planes, many weather findings), again at
+smaller scales; text that still does not fit at the smallest scale is
+shrunk and elided inside its own box by :func:`.layout.fit_text`.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from PySide6.QtCore import QRectF
+
+from .. import theme
+from .charts import Series, monthly_chart, sun_path_chart
+from .content import (
+    BASIS_WORDS,
+    PAPERS,
+    SCOPE,
+    SheetMeta,
+    degree_text,
+    kwh,
+    location_line,
+    objective_words,
+    option_name,
+    pct,
+    prepared_line,
+    schedule_sentence,
+)
+from .layout import (
+    MUTED,
+    TEXT,
+    Column,
+    Font,
+    Measure,
+    Page,
+    fit_text,
+    hrule,
+    natural_height,
+    pen,
+    rect_path,
+    shape,
+)
+
+#: Page margins, points (left, top, right, bottom).
+MARGINS = (42.0, 38.0, 42.0, 34.0)
+#: Font scales tried, largest first.
+SCALES = (1.0, 0.95, 0.9, 0.85, 0.8, 0.75, 0.7)
+#: Smallest chart height on page 1 at scale 1, points.
+MIN_CHART_H = 150.0
+
+PANEL = "#f1f2ef"
+RULE = "#c9cdc6"
+MONTHS = ("Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec")
+
+
+@dataclass
+class SheetDocument:
+    """A laid-out sheet: pages of ops in points, ready for any paint device."""
+
+    paper: str
+    width: float
+    height: float
+    pages: list
+    title: str
+    figures: object
+    meta: SheetMeta
+    scales: tuple
+
+    @property
+    def page_count(self) -> int:
+        return len(self.pages)
+
+
+class _Ctx:
+    """What both pages need: the figures, the sun chart, the metadata, the paper."""
+
+    def __init__(self, figures, sun, meta: SheetMeta, paper: str):
+        self.f = figures
+        self.sun = sun
+        self.meta = meta
+        self.paper = paper
+        self.name, self.w, self.h = PAPERS[paper]
+        study = figures.study
+        self.study = study
+        self.site = study.site
+        self.year = study.options_used.irradiance.year
+        self.rec = study.recommended
+        self.doc = figures.document["study"]
+
+    def content(self) -> QRectF:
+        left, top, right, bottom = MARGINS
+        return QRectF(left, top, self.w - left - right, self.h - top - bottom)
+
+
+def build_sheet(figures, sun, meta: SheetMeta | None = None, paper: str = "a4") -> SheetDocument:
+    """Lay the sheet out.
+
+    Parameters
+    ----------
+    figures : tiltyard.engine.exports.SheetFigures
+        Every number on the sheet.
+    sun : tiltyard.engine.sunchart.SunChart
+        The sun-path data (its hour lines in ``meta.time_basis``).
+    meta : SheetMeta, optional
+        Preparer, organisation, date prepared, time basis.
+    paper : {"a4", "letter"}
+    """
+    if paper not in PAPERS:
+        raise ValueError(f"paper = {paper!r}: must be one of {', '.join(PAPERS)}")
+    meta = meta or SheetMeta()
+    ctx = _Ctx(figures, sun, meta, paper)
+    m = Measure()
+    pages, scales = [], []
+    for build in (_page1, _page2):
+        for s in SCALES:
+            page, ok = build(m, ctx, s)
+            if ok:
+                break
+        pages.append(page)
+        scales.append(s)
+    for i, page in enumerate(pages):
+        _footer(m, ctx, page, i + 1, len(pages))
+    return SheetDocument(paper, ctx.w, ctx.h, pages,
+                         f"Feasibility sheet — {ctx.site.name}", figures, meta, tuple(scales))
+
+
+# -- shared pieces --------------------------------------------------------------------------------
+
+def _footer_height(m: Measure) -> float:
+    return m.line_height(Font(6.5)) + 5.0
+
+
+def _body(m: Measure, ctx: _Ctx) -> QRectF:
+    c = ctx.content()
+    return QRectF(c.left(), c.top(), c.width(), c.height() - _footer_height(m) - 6.0)
+
+
+def _footer(m: Measure, ctx: _Ctx, page: Page, number: int, total: int) -> None:
+    c = page.content
+    fh = _footer_height(m)
+    top = c.bottom() - fh
+    frame = QRectF(c.left(), top, c.width(), fh)
+    page.frames["footer"] = frame
+    page.add(hrule(frame, top, RULE, 0.5))
+    f = Font(6.5)
+    right = (f"Tiltyard {ctx.f.version} · inputs {ctx.f.short_digest} · page {number} of "
+             f"{total}")
+    rw = min(m.width(right, f) + 2.0, c.width() * 0.5)
+    box_r = QRectF(c.right() - rw, top + 4.0, rw, fh - 4.0)
+    box_l = QRectF(c.left(), top + 4.0, c.width() - rw - 10.0, fh - 4.0)
+    page.add(fit_text(m, right, box_r, f, min_size=5.0, align="right", color=MUTED,
+                      role="footer.right").ops)
+    page.add(fit_text(m, "Preliminary feasibility estimate, not a design. Safety and sizing "
+                         "belong to local codes and licensed installers.", box_l, f,
+                      min_size=5.0, color=MUTED, role="footer.left").ops)
+
+
+def _heading(col: Column, text: str, s: float, role: str, gap_before: float = 7.0) -> list:
+    col.gap(gap_before * s)
+    return col.text(text, Font(9.5 * s, bold=True), min_size=7.0, max_lines=2,
+                    gap_after=2.5 * s, role=role, color=theme.ACCENT)
+
+
+# -- page 1 --------------------------------------------------------------------------------------
+
+def _page1(m: Measure, ctx: _Ctx, s: float):
+    page = Page(ctx.w, ctx.h, ctx.content())
+    body = _body(m, ctx)
+    col = Column(m, body)
+    page.add(hrule(body, body.top(), theme.ACCENT, 2.0))
+    col.gap(6.0)
+    page.add(col.text("SOLAR SITE FEASIBILITY SHEET · PRELIMINARY ESTIMATE",
+                      Font(7.5 * s, bold=True), min_size=5.5, max_lines=1,
+                      color=theme.ACCENT, gap_after=3.0 * s, role="kicker"))
+    page.add(col.text(ctx.site.name, Font(17.0 * s, bold=True), min_size=9.0 * s, max_lines=3,
+                      gap_after=3.0 * s, role="site-name"))
+    page.add(col.text(location_line(ctx.site), Font(8.5 * s), min_size=6.0, max_lines=2,
+                      gap_after=1.5 * s, role="location"))
+    page.add(col.text(prepared_line(ctx.meta), Font(8.5 * s), min_size=6.0, max_lines=2,
+                      gap_after=3.0 * s, role="prepared"))
+    page.add(col.text(SCOPE, Font(7.6 * s, italic=True), min_size=5.5, max_lines=3,
+                      color=MUTED, gap_after=8.0 * s, role="scope"))
+    header = QRectF(body.left(), body.top(), body.width(), col.y - body.top())
+    page.frames["header"] = header
+
+    key_top = col.y
+    key_ops, key_h, key_over = _key_figures(m, ctx, QRectF(body.left(), key_top, body.width(),
+                                                           col.remaining), s)
+    key_box = col.take(key_h)
+    page.frames["key"] = key_box
+    page.add(shape(rect_path(key_box.adjusted(0.5, 0.5, -0.5, -0.5)), key_box,
+                   pen(theme.ACCENT, 1.0), theme.ACCENT_SOFT, role="key-box"))
+    page.add(key_ops)
+    col.gap(10.0 * s)
+
+    avail = col.remaining
+    need = 2 * MIN_CHART_H * s + 12.0
+    ok = not col.overflow and not key_over and avail >= need
+    sun_h = max(0.0, (avail - 12.0) * 0.49)
+    sun_box = col.take(sun_h)
+    col.gap(12.0)
+    mon_box = col.take(col.remaining)
+    page.frames["sunpath"] = sun_box
+    page.frames["monthly"] = mon_box
+    if sun_box.height() > 40 and mon_box.height() > 40:
+        page.add(sun_path_chart(m, sun_box, ctx.sun, BASIS_WORDS[ctx.meta.time_basis], s))
+        page.add(monthly_chart(m, mon_box, _chart_series(ctx), s))
+    else:
+        ok = False
+    return page, ok
+
+
+def _tiles(ctx: _Ctx) -> list[tuple[str, str, str]]:
+    f = ctx.f
+    rec = f.recommended
+    d = ctx.doc
+    tiles = [(f"{kwh(rec['annual_kwh_m2'])} kWh/m²",
+              "a year on the plane of the recommended option", "key.annual"),
+             (f"{pct(rec['gain_vs_horizontal_pct'])} %", "over a horizontal plane",
+              "key.gain_horizontal")]
+    for i, (label, g) in enumerate(f.gains_over_planes):
+        tiles.append((f"{pct(g)} %", f"over the existing plane “{label}”",
+                      f"key.gain_plane.{i}"))
+    fixed = ctx.study.option("fixed-optimal")
+    fp = fixed.schedule[0]
+    if ctx.rec is fixed:
+        two = next(r for r in d["options"] if r["kind"] == "two-season")
+        cap = (f"over the fixed optimum: this is the fixed optimum; a two-season schedule "
+               f"would add {pct(two['gain_vs_fixed_optimal_pct'])} %")
+    else:
+        cap = (f"over the best fixed plane ({fp.tilt_deg:g}° facing {fp.azimuth_deg:g}°, "
+               "no adjustments)")
+    tiles.append((f"{pct(rec['gain_vs_fixed_optimal_pct'])} %", cap, "key.gain_fixed"))
+    loss = f.horizon_loss
+    if loss.loss_kwh_m2 >= 0:
+        cap = (f"lost to the horizon: {kwh(loss.loss_kwh_m2)} kWh/m² a year (open horizon: "
+               f"{kwh(loss.open_kwh_m2)})")
+    else:
+        cap = (f"gained below the horizontal: {kwh(-loss.loss_kwh_m2)} kWh/m² a year (open "
+               f"horizon: {kwh(loss.open_kwh_m2)})")
+    tiles.append((f"{pct(loss.loss_pct, signed=False)} %", cap, "key.horizon_loss"))
+    opts = ctx.study.options_used
+    if opts.objective != "annual":
+        tiles.append((f"{kwh(rec['objective_value_kwh_m2'])} kWh/m²",
+                      f"objective value: {objective_words(opts)}", "key.objective"))
+    return tiles
+
+
+def _key_figures(m: Measure, ctx: _Ctx, frame: QRectF, s: float) -> tuple[list, float, bool]:
+    """The key-figures box content laid out from the top of ``frame``; (ops, height,
+    overflow)."""
+    pad = 8.0 * s
+    inner = QRectF(frame.left() + pad, frame.top() + pad, frame.width() - 2 * pad,
+                   max(0.0, frame.height() - 2 * pad))
+    col = Column(m, inner)
+    ops = []
+    opts = ctx.study.options_used
+    ops += col.text(f"Key figures · recommended for {objective_words(opts)}",
+                    Font(8.0 * s, bold=True), min_size=6.0, max_lines=2, color=theme.ACCENT,
+                    gap_after=2.0 * s, role="key.heading")
+    ops += col.text(degree_text(ctx.rec.label), Font(12.5 * s, bold=True), min_size=8.0,
+                    max_lines=2, gap_after=1.5 * s, role="key.option")
+    ops += col.text(schedule_sentence(ctx.rec, ctx.year), Font(9.5 * s), min_size=6.5,
+                    max_lines=3, gap_after=6.0 * s, role="key.schedule")
+    tiles = _tiles(ctx)
+    ncol = len(tiles) if len(tiles) <= 5 else -(-len(tiles) // 2)
+    ncol = min(ncol, 5)
+    nrow = -(-len(tiles) // ncol)
+    gap = 6.0 * s
+    tw = (inner.width() - (ncol - 1) * gap) / ncol
+    vf = Font(14.0 * s, bold=True)
+    cf = Font(6.8 * s)
+    vh = m.line_height(vf)
+    ch = 3 * m.line_height(cf, 1.12)
+    th = 4.0 + vh + 2.0 + ch + 4.0
+    grid = col.take(nrow * th + (nrow - 1) * gap)
+    for i, (value, caption, role) in enumerate(tiles):
+        r, c = divmod(i, ncol)
+        box = QRectF(grid.left() + c * (tw + gap), grid.top() + r * (th + gap), tw, th)
+        box = box.intersected(grid)
+        if box.height() < th - 0.01:
+            col.overflow = True
+            continue
+        ops.append(shape(rect_path(box.adjusted(0.25, 0.25, -0.25, -0.25)), box,
+                         pen("#b8c9d4", 0.5), "#ffffff", role="tile"))
+        vb = QRectF(box.left() + 5.0, box.top() + 4.0, box.width() - 10.0, vh)
+        color = theme.ACCENT if role == "key.annual" else TEXT
+        ops += fit_text(m, value, vb, vf, min_size=8.0, color=color, role=role).ops
+        cb = QRectF(box.left() + 5.0, vb.bottom() + 2.0, box.width() - 10.0, ch)
+        ops += fit_text(m, caption, cb, cf, min_size=6.0 * s, max_lines=3, color=MUTED,
+                        role=role + ".caption").ops
+    col.gap(5.0 * s)
+    rule = degree_text(ctx.study.recommendation_rule)
+    rule = rule[0].upper() + rule[1:]
+    basis = ("Clear-sky basis: every figure is an upper bound, not an expected yield. "
+             if opts.irradiance.sky == "clear" else "")
+    ops += col.text(f"{basis}Rule: {rule}. The two-axis tracker is a ceiling to judge the "
+                    "others by, not a recommendation.", Font(7.0 * s), min_size=5.5,
+                    max_lines=3, color=TEXT, role="key.rule")
+    height = col.y - frame.top() + pad
+    return ops, min(height, frame.height()), col.overflow or height > frame.height()
+
+
+def _chart_series(ctx: _Ctx) -> list:
+    """Horizontal, the site planes, the fixed optimum, the two-season schedule, the
+    recommendation and the two-axis ceiling, with the JSON document's monthly values."""
+    rows = ctx.doc["options"]
+    rec_label = ctx.doc["recommended"]
+    chosen = []
+    for r in rows:
+        keep = r["kind"] in ("horizontal", "plane", "fixed-optimal", "two-season", "two-axis")
+        if keep or r["label"] == rec_label:
+            chosen.append(r)
+    series = []
+    style = 0
+    by_label = {o.label: o for o in ctx.study.options}
+    for r in chosen:
+        opt = by_label[r["label"]]
+        name = option_name(opt)
+        emphasis = r["label"] == rec_label
+        if emphasis:
+            name = f"{name} (recommended)"
+        name += f": {kwh(r['annual_kwh_m2'])} kWh/m² a year"
+        series.append(Series(name, tuple(r["monthly_kwh_m2"]), style, emphasis,
+                             r["kind"] == "two-axis"))
+        if not emphasis and r["kind"] != "two-axis":
+            style += 1
+    return series
+
+
+# -- page 2 --------------------------------------------------------------------------------------
+
+def _page2(m: Measure, ctx: _Ctx, s: float):
+    page = Page(ctx.w, ctx.h, ctx.content())
+    body = _body(m, ctx)
+    # running head
+    hf = Font(9.0 * s, bold=True)
+    hh = m.line_height(hf)
+    right_text = "Feasibility sheet · details"
+    rf = Font(7.5 * s)
+    rw = m.width(right_text, rf) + 2.0
+    page.add(fit_text(m, ctx.site.name, QRectF(body.left(), body.top(), body.width() - rw - 12,
+                                                hh), hf, min_size=7.0, max_lines=1,
+                      role="head.site").ops)
+    page.add(fit_text(m, right_text, QRectF(body.right() - rw, body.top(), rw, hh), rf,
+                      align="right", valign="bottom", color=MUTED, role="head.right").ops)
+    y = body.top() + hh + 3.0
+    page.add(hrule(body, y, RULE, 0.6))
+    # cautions at the bottom, sized first so they always fit whole
+    _, ch = _cautions(m, ctx, body, s)
+    col = Column(m, QRectF(body.left(), y + 2.0, body.width(),
+                           body.bottom() - ch - 10.0 * s - (y + 2.0)))
+    page.add(_heading(col, "Options compared", s, "section.options", gap_before=4.0))
+    page.add(_options_table(m, ctx, col, s))
+    page.add(_heading(col, "Monthly irradiation on the plane (kWh/m²)", s, "section.monthly"))
+    page.add(_monthly_table(m, ctx, col, s))
+    # the clear-sky caveat is stated in the key figures and the assumptions already
+    notes = [n for n in ctx.f.notes if not n.startswith("Clear-sky basis")]
+    if notes:
+        page.add(_heading(col, "Notes from the study", s, "section.notes"))
+        for note in notes:
+            page.add(col.text("• " + degree_text(note), Font(7.0 * s), min_size=5.5,
+                              max_lines=3, gap_after=1.5 * s, role="note"))
+    page.add(_heading(col, "Assumptions", s, "section.assumptions"))
+    rows = list(ctx.f.assumptions) + [("Reproducibility", ctx.f.reproducibility)]
+    page.add(_pairs(m, col, rows, s))
+    # the cautions follow the assumptions, or stay at the foot of the page if short of room
+    top = min(col.y + 10.0 * s, body.bottom() - ch)
+    caution_box = QRectF(body.left(), top, body.width(), ch)
+    page.frames["cautions"] = caution_box
+    cops, _ = _cautions(m, ctx, caution_box, s)
+    page.add(shape(rect_path(caution_box.adjusted(0.4, 0.4, -0.4, -0.4)), caution_box,
+                   pen("#8a5a00", 0.8), "#fbf6ea", role="cautions-box"))
+    page.add(cops)
+    return page, not col.overflow
+
+
+def _cautions(m: Measure, ctx: _Ctx, frame: QRectF, s: float) -> tuple[list, float]:
+    pad = 6.0 * s
+    inner = QRectF(frame.left() + pad, frame.top() + pad, frame.width() - 2 * pad, 1e4)
+    col = Column(m, inner)
+    ops = col.text("Cautions", Font(9.0 * s, bold=True), max_lines=1, color="#8a5a00",
+                   gap_after=2.0 * s, role="section.cautions")
+    for i, text in enumerate(ctx.f.cautions):
+        ops += col.text("• " + text, Font(7.4 * s, bold=(i == 0)), max_lines=4,
+                        gap_after=1.5 * s, role=f"caution.{i}")
+    return ops, col.y - frame.top() + pad
+
+
+def _table(m: Measure, col: Column, columns, rows, s: float, role: str) -> list:
+    """A table flowing down ``col``.
+
+    ``columns``: (title, width fraction, align, max lines); ``rows``: dicts with
+    ``cells`` (texts), optional ``bold``, ``italic``, ``fill``, ``color``.
+    """
+    ops = []
+    width = col.rect.width()
+    xs = [col.rect.left()]
+    for _t, frac, _a, _n in columns:
+        xs.append(xs[-1] + frac * width)
+    xs[-1] = col.rect.right()
+    hpad, vpad = 2.5 * s, 1.6 * s
+    head_font = Font(6.7 * s, bold=True)
+    body_font = Font(7.0 * s, condensed=True)
+
+    def row_height(texts, font, limits):
+        h = 0.0
+        for i, t in enumerate(texts):
+            w = xs[i + 1] - xs[i] - 2 * hpad
+            h = max(h, natural_height(m, t, w, font, limits[i]))
+        return h + 2 * vpad
+
+    head = [c[0] for c in columns]
+    hh = row_height(head, head_font, [4] * len(columns))
+    hbox = col.take(hh)
+    ops.append(shape(rect_path(hbox), hbox, None, PANEL, role=f"{role}.head-bg"))
+    for i, t in enumerate(head):
+        cell = QRectF(xs[i] + hpad, hbox.top() + vpad, xs[i + 1] - xs[i] - 2 * hpad,
+                      max(0.0, hbox.height() - 2 * vpad))
+        align = columns[i][2]
+        ops += fit_text(m, t, cell, head_font, min_size=5.5, max_lines=4, align=align,
+                        valign="bottom", role=f"{role}.head").ops
+    ops.append(hrule(hbox, hbox.bottom(), AXIS_GREY, 0.6))
+    limits = [c[3] for c in columns]
+    for r in rows:
+        font = Font(body_font.size, bold=r.get("bold", False), italic=r.get("italic", False),
+                    condensed=True)
+        h = row_height(r["cells"], font, limits)
+        box = col.take(h)
+        if box.height() <= 0.5:
+            col.overflow = True
+            break
+        if r.get("fill"):
+            ops.append(shape(rect_path(box), box, None, r["fill"], role=f"{role}.fill"))
+        for i, t in enumerate(r["cells"]):
+            cell = QRectF(xs[i] + hpad, box.top() + vpad, xs[i + 1] - xs[i] - 2 * hpad,
+                          max(0.0, box.height() - 2 * vpad))
+            ops += fit_text(m, t, cell, font, min_size=6.0 * s, max_lines=limits[i],
+                            align=columns[i][2], color=r.get("color", TEXT),
+                            role=f"{role}.cell.{i}").ops
+        ops.append(hrule(box, box.bottom(), RULE, 0.35))
+    return ops
+
+
+AXIS_GREY = "#5b6570"
+
+
+def _row_style(ctx: _Ctx, opt) -> dict:
+    if opt is ctx.rec:
+        return {"bold": True, "fill": theme.ACCENT_SOFT, "color": TEXT}
+    if opt.kind == "two-axis":
+        return {"italic": True, "color": MUTED}
+    return {}
+
+
+def _options_table(m: Measure, ctx: _Ctx, col: Column, s: float) -> list:
+    columns = [("Option", 0.20, "left", 2), ("Schedule: tilt, dates, facing", 0.33, "left", 3),
+               ("Annual (kWh/m²)", 0.09, "right", 1), ("Gain vs horizontal (%)", 0.09, "right", 1),
+               ("Gain vs fixed optimum (%)", 0.09, "right", 1),
+               ("Share of two-axis (%)", 0.09, "right", 1),
+               ("Adjustments per year", 0.11, "right", 1)]
+    rows = []
+    table = ctx.f.options
+    for opt, (_i, r) in zip(ctx.study.options, table.iterrows(), strict=True):
+        name = option_name(opt)
+        if opt.kind == "rule-of-thumb":
+            name = "Rule of thumb (tilt = latitude)"
+        if opt is ctx.rec:
+            name = "★ " + name
+        adjust = "continuous" if opt.kind == "two-axis" else str(int(r["adjustments_per_year"]))
+        rows.append({"cells": [name, schedule_sentence(opt, ctx.year), kwh(r["annual_kwh_m2"]),
+                               pct(r["gain_vs_horizontal_pct"]),
+                               pct(r["gain_vs_fixed_optimal_pct"]),
+                               pct(r["share_of_tracking_pct"], signed=False), adjust],
+                     **_row_style(ctx, opt)})
+    return _table(m, col, columns, rows, s, "options")
+
+
+def _monthly_table(m: Measure, ctx: _Ctx, col: Column, s: float) -> list:
+    columns = [("Option", 0.19, "left", 2)] + [(mo, 0.062, "right", 1) for mo in MONTHS] \
+        + [("Year", 0.066, "right", 1)]
+    rows = []
+    mt = ctx.f.monthly
+    for opt, name_col in zip(ctx.study.options, mt.columns, strict=True):
+        vals = mt[name_col].to_list()
+        name = option_name(opt)
+        if opt.kind == "rule-of-thumb":
+            name = "Rule of thumb"
+        if opt is ctx.rec:
+            name = "★ " + name
+        rows.append({"cells": [name] + [kwh(v) for v in vals], **_row_style(ctx, opt)})
+    return _table(m, col, columns, rows, s, "monthly")
+
+
+def _pairs(m: Measure, col: Column, rows, s: float) -> list:
+    """Label and text rows (assumptions)."""
+    ops = []
+    lw = 0.17 * col.rect.width()
+    lf = Font(6.9 * s, bold=True)
+    tf = Font(6.9 * s)
+    for label, text in rows:
+        tw = col.rect.width() - lw - 6.0
+        h = max(natural_height(m, degree_text(text), tw, tf, 6),
+                natural_height(m, label, lw, lf, 2))
+        box = col.take(h)
+        if box.height() < m.line_height(tf.sized(5.0)):
+            col.overflow = True
+            break
+        ops += fit_text(m, label, QRectF(box.left(), box.top(), lw, box.height()), lf,
+                        min_size=5.0, max_lines=2, role=f"assumption.label.{label}").ops
+        fitted = fit_text(m, degree_text(text), QRectF(box.left() + lw + 6.0, box.top(), tw,
+                                                       box.height()), tf, min_size=5.0,
+                          max_lines=6, role=f"assumption.{label}")
+        if fitted.elided:
+            col.overflow = True
+        ops += fitted.ops
+        col.gap(2.0 * s)
+    return ops
+
+
+__all__ = ["MARGINS", "SheetDocument", "build_sheet"]

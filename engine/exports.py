@@ -1,0 +1,543 @@
+"""Data exports of a tilt study, and every figure the feasibility sheet prints.
+
+One module builds what leaves the program as data, so the command line, the
+desktop app and the printed sheet give the same numbers:
+
+- :func:`study_document` / :func:`study_json_text`: the study as JSON, the
+  document of ``tiltyard study --json`` (``{"study": ...}`` plus the weather
+  file's import findings when the sky basis is a weather file);
+- :func:`options_table` / :func:`monthly_table` and their CSV texts: the
+  options compared and their monthly and annual irradiation, built from the
+  JSON document's own (rounded) values;
+- :func:`hourly_poa_table` / :func:`hourly_csv_text`: the interval
+  plane-of-array irradiance of chosen options
+  (:func:`tiltyard.engine.tilt.schedule_poa`);
+- :func:`sheet_figures`: the key figures, assumptions, cautions and the
+  reproducibility hash of the sheet.
+
+No Qt here: plain dictionaries, pandas frames and text.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import io
+import json
+from dataclasses import dataclass, fields, replace
+
+import numpy as np
+import pandas as pd
+
+from .jobs import model_references
+from .site import HorizonProfile, Site, site_to_dict
+from .skyyear import SkyYear, sky_year
+from .tilt import MONTH_NAMES, OPTION_KINDS, StudyOption, StudyOptions, TiltStudy, schedule_poa
+from .timegrid import MIDPOINT_CONVENTION
+
+#: Month abbreviations used as CSV row labels.
+MONTH_ABBR = tuple(m[:3] for m in MONTH_NAMES)
+
+#: What the sheet states besides the standing caution, in this order.
+SHEET_CAUTIONS = (
+    "This is a preliminary feasibility estimate. It is not a design and not a quotation.",
+    "Structural, electrical and fire safety, roof access and the sizing of any installation "
+    "belong to local codes and licensed installers.",
+    "Weather varies from year to year: a single year, a typical year or a clear sky does "
+    "not predict the energy of any particular year.",
+    "Irradiation on the plane is the sunlight reaching the panel surface, not the electricity "
+    "a system delivers.",
+)
+
+
+# -- the JSON document -------------------------------------------------------------------
+
+def study_document(study: TiltStudy) -> dict:
+    """The JSON document of ``tiltyard study --json`` for ``study``.
+
+    ``{"study": study.to_json_dict()}``, plus ``"weather"`` (source, interval,
+    labelling and every import finding, see
+    :func:`tiltyard.engine.allsky.weather_json_dict`) when the sky basis is a
+    weather file.
+    """
+    doc = {"study": study.to_json_dict()}
+    weather = study.options_used.irradiance.weather
+    if weather is not None:
+        from .allsky import weather_json_dict
+
+        doc["weather"] = weather_json_dict(weather)
+    return doc
+
+
+def study_json_text(study: TiltStudy) -> str:
+    """:func:`study_document` as the exact text ``tiltyard study --json`` prints."""
+    return json.dumps(study_document(study), indent=2, ensure_ascii=False) + "\n"
+
+
+# -- tables --------------------------------------------------------------------------------
+
+def _unique(names) -> list[str]:
+    """Names made unique by a ``[2]``, ``[3]`` suffix on repeats (two planes with one label)."""
+    seen: dict[str, int] = {}
+    out = []
+    for n in names:
+        seen[n] = seen.get(n, 0) + 1
+        out.append(n if seen[n] == 1 else f"{n} [{seen[n]}]")
+    return out
+
+
+def _schedule_code(sched: list) -> str:
+    """A schedule as ``MM-DD..MM-DD tilt/azimuth`` periods, ``;``-separated."""
+    if len(sched) == 1 and sched[0]["tilt_deg"] is None:
+        return "tracking"
+    return "; ".join(f"{p['start']}..{p['end']} {p['tilt_deg']:g}/{p['azimuth_deg']:g}"
+                     for p in sched)
+
+
+def options_table(study: TiltStudy) -> pd.DataFrame:
+    """The options compared, one row each, with the JSON document's values.
+
+    Columns: ``label``, ``kind``, ``recommended`` (bool), ``schedule``
+    (``MM-DD..MM-DD tilt/azimuth`` per period, degrees), ``annual_kwh_m2``,
+    ``objective_value_kwh_m2``, ``gain_vs_horizontal_pct``,
+    ``gain_vs_fixed_optimal_pct``, ``share_of_tracking_pct``,
+    ``adjustments_per_year``. Rows in the study's order.
+    """
+    d = study.to_json_dict()
+    rows = []
+    for r in d["options"]:
+        rows.append({
+            "label": r["label"], "kind": r["kind"], "recommended": r["label"] == d["recommended"],
+            "schedule": _schedule_code(r["schedule"]), "annual_kwh_m2": r["annual_kwh_m2"],
+            "objective_value_kwh_m2": r["objective_value_kwh_m2"],
+            "gain_vs_horizontal_pct": r["gain_vs_horizontal_pct"],
+            "gain_vs_fixed_optimal_pct": r["gain_vs_fixed_optimal_pct"],
+            "share_of_tracking_pct": r["share_of_tracking_pct"],
+            "adjustments_per_year": r["adjustments_per_year"]})
+    return pd.DataFrame(rows)
+
+
+def monthly_table(study: TiltStudy) -> pd.DataFrame:
+    """Monthly and annual irradiation on the plane of every option, kWh/m².
+
+    Rows ``Jan`` .. ``Dec`` and ``Year`` (index ``month``); one column per
+    option, named ``"<label> (kWh/m2)"`` (labels made unique), in the
+    study's order. Values are the JSON document's (3 decimals); the ``Year``
+    row is the option's annual total as the JSON document gives it.
+    """
+    d = study.to_json_dict()
+    names = _unique(r["label"] for r in d["options"])
+    data = {f"{n} (kWh/m2)": list(r["monthly_kwh_m2"]) + [r["annual_kwh_m2"]]
+            for n, r in zip(names, d["options"], strict=True)}
+    return pd.DataFrame(data, index=pd.Index(list(MONTH_ABBR) + ["Year"], name="month"))
+
+
+def _csv(df: pd.DataFrame, index: bool = True, float_format: str = "%.3f") -> str:
+    buf = io.StringIO()
+    df.to_csv(buf, index=index, float_format=float_format, lineterminator="\n")
+    return buf.getvalue()
+
+
+def monthly_csv_text(study: TiltStudy) -> str:
+    """:func:`monthly_table` as CSV text (UTF-8, comma-separated, 3 decimals)."""
+    return _csv(monthly_table(study))
+
+
+def options_csv_text(study: TiltStudy) -> str:
+    """:func:`options_table` as CSV text."""
+    return _csv(options_table(study), index=False)
+
+
+def check_option_kinds(kinds) -> tuple:
+    """The kinds, stripped, if each is an option kind or ``"recommended"``.
+
+    Raises
+    ------
+    ValueError
+        Naming the first unknown kind and the allowed ones.
+    """
+    out = []
+    for k in kinds:
+        k = str(k).strip()
+        if k not in OPTION_KINDS and k != "recommended":
+            raise ValueError(f"option kind {k!r}: must be one of "
+                             f"{', '.join(OPTION_KINDS)} or recommended")
+        out.append(k)
+    return tuple(out)
+
+
+def select_options(study: TiltStudy, kinds=None) -> tuple:
+    """The study's options of the given kinds, in the study's order.
+
+    Parameters
+    ----------
+    study : TiltStudy
+    kinds : iterable of str, optional
+        Option kinds (:data:`tiltyard.engine.tilt.OPTION_KINDS`) or
+        ``"recommended"``; None or empty selects every option.
+
+    Raises
+    ------
+    ValueError
+        Naming an unknown kind and the allowed ones.
+    """
+    if not kinds:
+        return tuple(study.options)
+    wanted = set(check_option_kinds(kinds))
+    rec = study.recommended
+    return tuple(o for o in study.options
+                 if o.kind in wanted or ("recommended" in wanted and o is rec))
+
+
+def hourly_poa_table(sky: SkyYear, site: Site, options) -> pd.DataFrame:
+    """Interval plane-of-array irradiance of several options, W/m².
+
+    Parameters
+    ----------
+    sky : SkyYear
+        The study's sky (``sky_year(site, study.options_used.irradiance)``).
+    site : Site
+        The site (horizon).
+    options : sequence of StudyOption
+        The options to export.
+
+    Returns
+    -------
+    pandas.DataFrame
+        Indexed by interval start (ISO 8601 text with the site zone's UTC
+        offset, ``interval_start``); for each option the columns
+        ``"<label>: poa_global (W/m2)"`` (interval mean, so that
+        ``sum * step_h / 1000`` is the option's annual kWh/m²) and
+        ``"<label>: surface_tilt (deg)"`` (the schedule's tilt in force; the
+        sun's zenith angle for the two-axis ceiling while the sun is up).
+
+    References
+    ----------
+    :func:`tiltyard.engine.tilt.schedule_poa` (pvlib transposition; Perez et
+    al. 1990, Hay & Davies 1980, Liu & Jordan 1963).
+    """
+    names = _unique(o.label for o in options)
+    cols = {}
+    index = None
+    for name, opt in zip(names, options, strict=True):
+        poa = schedule_poa(sky, site, opt)
+        index = poa.index
+        cols[f"{name}: poa_global (W/m2)"] = poa["poa_global"].to_numpy()
+        cols[f"{name}: surface_tilt (deg)"] = poa["surface_tilt"].to_numpy()
+    if index is None:
+        index = sky.grid.start_utc.tz_convert(site.timezone)
+    df = pd.DataFrame(cols, index=pd.Index([t.isoformat() for t in index],
+                                           name="interval_start"))
+    return df
+
+
+def hourly_csv_text(sky: SkyYear, site: Site, options) -> str:
+    """:func:`hourly_poa_table` as CSV text (3 decimals)."""
+    return _csv(hourly_poa_table(sky, site, options))
+
+
+# -- horizon loss of a schedule ---------------------------------------------------------------
+
+@dataclass(frozen=True)
+class OptionHorizonLoss:
+    """Annual irradiation of an option with an open and with the site horizon, kWh/m²."""
+
+    label: str
+    open_kwh_m2: float
+    site_kwh_m2: float
+
+    @property
+    def loss_kwh_m2(self) -> float:
+        return self.open_kwh_m2 - self.site_kwh_m2
+
+    @property
+    def loss_pct(self) -> float:
+        """Loss as a percentage of the open-horizon irradiation (negative: a gain)."""
+        return 0.0 if self.open_kwh_m2 <= 0 else 100.0 * self.loss_kwh_m2 / self.open_kwh_m2
+
+
+def option_horizon_loss(sky: SkyYear, site: Site, option: StudyOption) -> OptionHorizonLoss:
+    """What the site horizon costs an option's schedule over the year.
+
+    The schedule's interval plane-of-array irradiance
+    (:func:`tiltyard.engine.tilt.schedule_poa`) summed with the site's
+    horizon and obstacles, and again with an open horizon: the same sky with
+    the sun counted as visible whenever it is up and each period's plane
+    seeing the open-sky view factor ``(1 + cos tilt) / 2`` — the open-horizon
+    terms of :func:`tiltyard.engine.plane.poa_components`, as
+    :func:`tiltyard.engine.jobs.irradiance_year` reports them for one plane.
+
+    Parameters
+    ----------
+    sky : SkyYear
+        The study's sky for ``site``.
+    site : Site
+        The site with its horizon.
+    option : StudyOption
+        A study option (any kind).
+
+    Returns
+    -------
+    OptionHorizonLoss
+
+    References
+    ----------
+    Liu, B. Y. H. & Jordan, R. C. (1963), Solar Energy 7(2), 53-74 (open-sky
+    view factor); Perez, R. et al. (1990), Solar Energy 44(5), 271-289 and
+    Hay, J. E. & Davies, J. A. (1980) for the transposition, through pvlib;
+    the obstructed view factor as in Duffie, J. A. & Beckman, W. A. (2013),
+    Solar Engineering of Thermal Processes, 4th ed., sec. 2.15.
+    """
+    k = sky.grid.step_h / 1000.0
+    shaded = float(schedule_poa(sky, site, option)["poa_global"].sum()) * k
+    open_site = site.with_changes(horizon=HorizonProfile(), obstacles=())
+    open_sky = replace(sky, site=open_site, sun_visible=np.asarray(sky.sun_up_fraction) > 0)
+    open_ = float(schedule_poa(open_sky, open_site, option)["poa_global"].sum()) * k
+    return OptionHorizonLoss(option.label, open_, shaded)
+
+
+# -- reproducibility ---------------------------------------------------------------------------
+
+def _plain(value):
+    """A JSON-ready copy (tuples as lists, numpy scalars as Python numbers)."""
+    if isinstance(value, dict):
+        return {str(k): _plain(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [_plain(v) for v in value]
+    if isinstance(value, np.generic):
+        return value.item()
+    return value
+
+
+def options_to_dict(opts: StudyOptions) -> dict:
+    """The study options as plain data (the weather series as its source and a digest)."""
+    out = {f.name: getattr(opts, f.name) for f in fields(opts) if f.name != "irradiance"}
+    irr = opts.irradiance
+    out["irradiance"] = {f.name: getattr(irr, f.name) for f in fields(irr)
+                         if f.name != "weather"}
+    w = irr.weather
+    if w is not None:
+        digest = hashlib.sha256(
+            pd.util.hash_pandas_object(w.data, index=True).to_numpy().tobytes()).hexdigest()
+        out["irradiance"]["weather"] = {"source": w.source, "step_min": int(w.step_min),
+                                        "timestamp_label": w.timestamp_label,
+                                        "timezone": w.timezone, "data_sha256": digest}
+    else:
+        out["irradiance"]["weather"] = None
+    return _plain(out)
+
+
+def input_digest(site: Site, opts: StudyOptions) -> str:
+    """SHA-256 (hex) of the site file's JSON and the study options, canonically serialised.
+
+    Keys sorted, no whitespace, floats in Python's shortest round-trip form:
+    the same site and options give the same digest on any machine.
+    """
+    doc = {"site": site_to_dict(site), "study_options": options_to_dict(opts)}
+    text = json.dumps(_plain(doc), sort_keys=True, separators=(",", ":"), ensure_ascii=False,
+                      allow_nan=False)
+    return hashlib.sha256(text.encode("utf-8")).hexdigest()
+
+
+def tool_version() -> str:
+    from tiltyard import __version__
+
+    return __version__
+
+
+# -- the sheet's figures ------------------------------------------------------------------------
+
+@dataclass(frozen=True)
+class SheetFigures:
+    """Every number and statement of the feasibility sheet.
+
+    Attributes
+    ----------
+    study : TiltStudy
+        The study (its JSON document is :attr:`document`).
+    document : dict
+        :func:`study_document` of the study.
+    recommended : dict
+        The recommended option's row of the JSON document.
+    gains_over_planes : tuple of (str, float or None)
+        The recommended option's annual gain over each existing site plane,
+        percent (from the JSON document's annual values).
+    horizon_loss : OptionHorizonLoss
+        The site horizon's cost to the recommended schedule.
+    options : pandas.DataFrame
+        :func:`options_table`.
+    monthly : pandas.DataFrame
+        :func:`monthly_table`.
+    assumptions : tuple of (str, str)
+        Heading and statement pairs.
+    cautions : tuple of str
+    notes : tuple of str
+        The study's warnings (things a practitioner should look at).
+    turbidity_source : str
+    digest : str
+        :func:`input_digest` (hex).
+    version : str
+        Tiltyard's version.
+    """
+
+    study: TiltStudy
+    document: dict
+    recommended: dict
+    gains_over_planes: tuple
+    horizon_loss: OptionHorizonLoss
+    options: pd.DataFrame
+    monthly: pd.DataFrame
+    assumptions: tuple
+    cautions: tuple
+    notes: tuple
+    turbidity_source: str
+    digest: str
+    version: str
+
+    @property
+    def short_digest(self) -> str:
+        """The first 12 hex digits of :attr:`digest`."""
+        return self.digest[:12]
+
+    @property
+    def reproducibility(self) -> str:
+        return (f"Tiltyard {self.version}; inputs {self.short_digest} (first 12 hex digits of "
+                "the SHA-256 of the site file and the study options)")
+
+
+def _gain(a: float, b: float) -> float | None:
+    return None if b <= 0 else round(100.0 * (a / b - 1.0), 3)
+
+
+def _albedo_text(site: Site) -> str:
+    if isinstance(site.albedo, tuple):
+        vals = ", ".join(f"{v:g}" for v in site.albedo)
+        return f"monthly, January first: {vals}"
+    return f"{site.albedo:g} all year"
+
+
+def _sky_text(opts: StudyOptions, study: TiltStudy) -> str:
+    irr = opts.irradiance
+    if irr.sky == "clear":
+        return (f"clear sky every day ({MODEL_NAMES[irr.clearsky_model]} model): an upper "
+                "bound, not an "
+                "expected yield; real skies give less, and cloudier months favour flatter "
+                "tilts")
+    if irr.sky == "monthly":
+        return ("the site's 12 monthly mean daily GHI values, made into a synthetic hourly "
+                "year: " + study.sky_note)
+    return f"measured or typical weather from {irr.weather.source}: {study.sky_note}"
+
+
+def _weather_text(opts: StudyOptions) -> str:
+    w = opts.irradiance.weather
+    if w is None:
+        return "none used (the sky basis above)"
+    text = (f"{w.source}, {int(w.step_min)}-minute intervals, timestamps marking the interval "
+            f"{w.timestamp_label}" + (f", zone {w.timezone}" if w.timezone else ""))
+    if not w.findings:
+        return text + "; the import found nothing to report"
+    counts = {s: sum(f.severity == s for f in w.findings) for s in ("error", "warning", "info")}
+    said = ", ".join(f"{n} {s}{'s' if n != 1 else ''}" for s, n in counts.items() if n)
+    shown = [f"{f.severity}: {f.message}" + (f" (line {f.line})" if f.line else "")
+             for f in sorted(w.findings, key=lambda f: ("error", "warning", "info")
+                             .index(f.severity))[:4]]
+    more = len(w.findings) - len(shown)
+    return (text + f"; the import found {said}: " + "; ".join(shown)
+            + (f"; and {more} more (see the JSON export)" if more > 0 else ""))
+
+
+#: Names of the models as the trade writes them.
+MODEL_NAMES = {"perez": "Perez 1990", "haydavies": "Hay-Davies", "isotropic":
+               "isotropic sky (Liu-Jordan)", "ineichen": "Ineichen-Perez",
+               "simplified_solis": "simplified Solis", "haurwitz": "Haurwitz"}
+
+
+def _models_text(opts: StudyOptions, study: TiltStudy) -> list[tuple[str, str]]:
+    refs = model_references()
+    irr = opts.irradiance
+    out = [("Solar position", "NREL SPA: " + refs["solar position"])]
+    if irr.sky in ("clear", "monthly"):
+        out.append(("Clear sky", f"{MODEL_NAMES[irr.clearsky_model]}: "
+                    + refs[f"clear sky: {irr.clearsky_model}"]))
+    if irr.sky in ("monthly", "file"):
+        out.append(("Beam and diffuse", "Erbs, D. G., Klein, S. A. & Duffie, J. A. (1982). "
+                                        "Solar Energy 28(4), 293-302, where only GHI is given"))
+    out.append(("Transposition", f"{MODEL_NAMES[irr.model]}: " + refs[f"transposition: {irr.model}"]
+                + " Horizon: beam and circumsolar light only while the sun is above the site "
+                  "horizon; sky diffuse scaled by each plane's sky-view factor; ground-reflected "
+                  "light unobstructed."))
+    if study.monthly_method is not None:
+        from .tilt import KLEIN_METHOD
+
+        out.append(("Cross-check", KLEIN_METHOD))
+    return out
+
+
+def sheet_figures(study: TiltStudy, sky: SkyYear | None = None) -> SheetFigures:
+    """Gather every figure and statement the feasibility sheet prints.
+
+    Parameters
+    ----------
+    study : TiltStudy
+        The tilt study of the site.
+    sky : SkyYear, optional
+        The study's sky (``sky_year(study.site, study.options_used.irradiance)``);
+        computed when not given.
+
+    Returns
+    -------
+    SheetFigures
+
+    Notes
+    -----
+    Annual values and gains are the study's JSON document's; gains over the
+    existing planes use the same formula as
+    :meth:`tiltyard.engine.tilt.TiltStudy.gain_pct` on those values; the
+    horizon loss is :func:`option_horizon_loss` of the recommended option.
+    """
+    site = study.site
+    opts = study.options_used
+    if sky is None:
+        sky = sky_year(site, opts.irradiance)
+    doc = study_document(study)
+    d = doc["study"]
+    rec = next(r for r in d["options"] if r["label"] == d["recommended"])
+    planes = tuple((r["label"], _gain(rec["annual_kwh_m2"], r["annual_kwh_m2"]))
+                   for r in d["options"] if r["kind"] == "plane")
+    loss = option_horizon_loss(sky, site, study.recommended)
+    irr = opts.irradiance
+    az = "free (chosen by the study)" if opts.azimuth_deg is None else f"{opts.azimuth_deg:g}°"
+    objective = {"annual": "the annual total", "worst-month": "the weakest month",
+                 "months": "the total of months "
+                           + ", ".join(MONTH_ABBR[int(m) - 1] for m in opts.months)}
+    assumptions = [
+        ("Sky basis", _sky_text(opts, study)),
+        *_models_text(opts, study),
+        ("Solar constant", f"{irr.solar_constant_w_m2:g} W/m² ("
+                           + model_references()["solar constant"] + ")"),
+        ("Turbidity", sky.turbidity_source),
+        ("Albedo", _albedo_text(site) + "; ground-reflected light from the unobstructed GHI"),
+        ("Time convention", f"year {irr.year}, {irr.step_min}-minute intervals: "
+                            + MIDPOINT_CONVENTION),
+        ("Horizon", f"{len(site.horizon.azimuth_deg)} measured horizon points and "
+                    f"{len(site.obstacles)} obstacles; azimuths clockwise from true north"),
+        ("Weather data", _weather_text(opts)),
+        ("Study", f"objective: {objective[opts.objective]}; tilts {opts.tilt_min_deg:g}° to "
+                  f"{opts.tilt_max_deg:g}° by {opts.tilt_step_deg:g}°; azimuth {az}; periods "
+                  f"of at least {opts.min_days_between} days; rule: "
+                  + study.recommendation_rule.replace(" deg", "°")),
+    ]
+    notes = tuple(w for w in study.warnings)
+    return SheetFigures(
+        study=study, document=doc, recommended=rec, gains_over_planes=planes,
+        horizon_loss=loss, options=options_table(study), monthly=monthly_table(study),
+        assumptions=tuple(assumptions), cautions=SHEET_CAUTIONS,
+        notes=notes, turbidity_source=sky.turbidity_source,
+        digest=input_digest(site, opts), version=tool_version())
+
+
+__all__ = ["MODEL_NAMES", "MONTH_ABBR", "SHEET_CAUTIONS", "check_option_kinds", "OptionHorizonLoss", "SheetFigures",
+           "hourly_csv_text", "hourly_poa_table", "input_digest",
+           "monthly_csv_text", "monthly_table", "option_horizon_loss", "options_csv_text",
+           "options_table", "options_to_dict", "select_options", "sheet_figures",
+           "study_document", "study_json_text", "tool_version"]
