@@ -19,6 +19,7 @@ from pathlib import Path
 from tiltyard import __version__
 
 EXIT_OK, EXIT_FAULT, EXIT_INPUT = 0, 1, 2
+SITE_HELP = "a site file (.json) or the name of a bundled demo site (see 'tiltyard sites')"
 
 
 class UserError(Exception):
@@ -47,6 +48,8 @@ def build_parser() -> argparse.ArgumentParser:
     from tiltyard.engine.timegrid import REFERENCE_YEAR, STEPS_MIN, TIME_BASES
 
     p = _Parser(prog="tiltyard",
+                usage="tiltyard [SITE]                 open the desktop app\n"
+                      "       tiltyard [--version] [--verbose] COMMAND [options]",
                 description="Solar site assessment: sun path, horizon, irradiance on any plane. "
                             "Figures are preliminary feasibility estimates, not a design.",
                 epilog="SITE is a site file (.json) or the name of a bundled demo site "
@@ -54,7 +57,7 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--version", action="version", version=f"tiltyard {__version__}")
     p.add_argument("--verbose", action="store_true",
                    help="show the full traceback of an internal fault (for problem reports)")
-    sub = p.add_subparsers(dest="command", parser_class=_Parser, metavar="COMMAND")
+    sub = p.add_subparsers(dest="command", parser_class=_Parser, metavar="COMMAND", prog="tiltyard")
 
     s = sub.add_parser("sites", help="list the bundled demo sites")
     s.add_argument("--json", action="store_true", help="write JSON to stdout")
@@ -62,7 +65,7 @@ def build_parser() -> argparse.ArgumentParser:
     s = sub.add_parser("sun", help="sunrise, sunset, solar noon and the sun's path on a date",
                        description="Sun events and path for one local date. Times are local "
                                    "clock time with the zone's daylight saving.")
-    s.add_argument("site", metavar="SITE")
+    s.add_argument("site", metavar="SITE", help=SITE_HELP)
     s.add_argument("--date", type=_date, required=True, help="local date, YYYY-MM-DD")
     s.add_argument("--step", type=float, default=10.0, metavar="MIN",
                    help="path sampling step in minutes (default 10)")
@@ -71,7 +74,7 @@ def build_parser() -> argparse.ArgumentParser:
     s = sub.add_parser("irradiance", help="a year of irradiation on one plane, by month",
                        description="Monthly and annual irradiation on a plane of given tilt and "
                                    "azimuth (degrees clockwise from true north, south = 180).")
-    s.add_argument("site", metavar="SITE")
+    s.add_argument("site", metavar="SITE", help=SITE_HELP)
     s.add_argument("--tilt", type=float, required=True, metavar="DEG",
                    help="plane tilt from horizontal, 0-90")
     s.add_argument("--azimuth", type=float, required=True, metavar="DEG",
@@ -94,7 +97,7 @@ def build_parser() -> argparse.ArgumentParser:
                                    "Compares horizontal, each site plane, the rule of thumb, the "
                                    "optimal fixed plane, optimal two- and four-season and monthly "
                                    "schedules, and two-axis tracking as a ceiling.")
-    s.add_argument("site", metavar="SITE")
+    s.add_argument("site", metavar="SITE", help=SITE_HELP)
     _add_sky_options(s)
     _add_study_options(s)
     s.add_argument("--json", action="store_true", help="write one JSON document to stdout")
@@ -113,7 +116,7 @@ def build_parser() -> argparse.ArgumentParser:
                "W/m2 of the options chosen with --hourly-options), --json-out FILE (the same "
                "document as 'tiltyard study --json'). Preparer, organisation and paper default "
                "to the desktop app's preferences.")
-    s.add_argument("site", metavar="SITE")
+    s.add_argument("site", metavar="SITE", help=SITE_HELP)
     s.add_argument("-o", "--output", metavar="FILE.pdf", default=None,
                    help="write the sheet as a PDF file")
     s.add_argument("--paper", choices=("a4", "letter"), default=None,
