@@ -13,7 +13,6 @@ from pathlib import Path
 from PySide6.QtCore import QObject, Signal
 
 from tiltyard.engine.site import Site
-from tiltyard.engine.skyyear import IrradianceOptions
 
 from .document import SiteDocument
 from .settings import Preferences
@@ -29,8 +28,10 @@ class SkyChoice:
     weather_path: Path | None = None
     weather: object | None = None     # a loaded WeatherData when sky == "file"
 
-    def irradiance_options(self, **kw) -> IrradianceOptions:
+    def irradiance_options(self, **kw):
         """Engine options for this choice (weather data passed through when loaded)."""
+        from tiltyard.engine.skyyear import IrradianceOptions  # pvlib: load when first needed
+
         sky = "file" if self.sky == "file" else self.sky
         extra = {"weather": self.weather} if self.sky == "file" else {}
         return IrradianceOptions(model=self.model, sky=sky, **extra, **kw)

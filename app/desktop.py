@@ -4,11 +4,27 @@ from __future__ import annotations
 
 import os
 import sys
+import threading
 
 from tiltyard.engine.site import DEFAULT_DEMO, demo_site_names, load_demo, load_site
 
 #: Set to a delay in ms to open the window, report it ready and quit (smoke tests, benchmarks).
 SMOKE_ENV = "TILTYARD_SMOKE_QUIT_MS"
+
+
+WARM_UP_MODULES = ("tiltyard.engine.tilt", "tiltyard.engine.sunchart",
+                   "tiltyard.engine.daycurves", "tiltyard.engine.horizon_loss",
+                   "tiltyard.engine.exports")
+
+
+def warm_up() -> None:
+    """Import the engine modules the views will need (run in a background thread)."""
+    from importlib import import_module
+    for name in WARM_UP_MODULES:
+        try:
+            import_module(name)
+        except Exception:  # noqa: BLE001 - a view will report the real error when it runs
+            return
 
 
 def create_window(site_arg: str | None = None):
@@ -36,6 +52,8 @@ def run(site_arg: str | None = None, argv: list[str] | None = None) -> int:
     window = create_window(site_arg)
     window.show()
     window.offer_recovery()
+    # load the engine (pvlib, scipy, pandas) while the user reads the first view
+    threading.Thread(target=warm_up, name="tiltyard-warm-up", daemon=True).start()
     if os.environ.get(SMOKE_ENV):
         # smoke tests and the start-up benchmark: say when the window is usable, then quit
         from PySide6.QtCore import QTimer

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import platform
 import sys
+from collections.abc import Mapping
 from pathlib import Path
 
 from PySide6.QtCore import Qt, QTimer
@@ -23,14 +24,14 @@ from PySide6.QtWidgets import (
 )
 
 from tiltyard import __version__
-from tiltyard.engine.jobs import CAUTION, model_references
+from tiltyard.engine.cautions import CAUTION
 from tiltyard.engine.site import Site, SiteError, demo_site_names
 
 from . import settings
 from .context import AppContext
 from .document import SiteDocument
 from .tasks import TaskRunner
-from .views import VIEW_CLASSES
+from .views import VIEW_TITLES, view_class
 from .widgets import CautionLabel, MessageBanner
 
 AUTOSAVE_MS = 20_000
@@ -59,12 +60,10 @@ class MainWindow(QMainWindow):
         self.nav.setObjectName("navigation")
         self.nav.setFixedWidth(150)
         self.stack = QStackedWidget()
-        self.views = {}
-        for cls in VIEW_CLASSES:
-            view = cls(self.ctx)
-            self.views[cls.title] = view
-            self.stack.addWidget(view)
-            self.nav.addItem(cls.title)
+        self.views = _LazyViews(self)
+        for title in VIEW_TITLES:
+            self.stack.addWidget(QWidget())     # replaced by the view when first shown
+            self.nav.addItem(title)
         right = QVBoxLayout()
         right.setContentsMargins(0, 0, 0, 0)
         right.setSpacing(0)
@@ -114,13 +113,23 @@ class MainWindow(QMainWindow):
     def _show_view(self, row: int) -> None:
         if row < 0:
             return
+        view = self.views[VIEW_TITLES[row]]
         self.stack.setCurrentIndex(row)
-        self.stack.currentWidget().activated()
+        view.activated()
+
+    def _build_view(self, title: str):
+        """Build a view (first use) and put it in its place in the stack."""
+        row = VIEW_TITLES.index(title)
+        view = view_class(title)(self.ctx)
+        placeholder = self.stack.widget(row)
+        self.stack.insertWidget(row, view)
+        self.stack.removeWidget(placeholder)
+        placeholder.deleteLater()
+        return view
 
     def show_view(self, title: str):
         """Switch to a view by its title and return it."""
-        titles = [cls.title for cls in VIEW_CLASSES]
-        self.nav.setCurrentRow(titles.index(title))
+        self.nav.setCurrentRow(VIEW_TITLES.index(title))
         return self.views[title]
 
     def current_view(self):
@@ -302,6 +311,8 @@ class MainWindow(QMainWindow):
         import pvlib
         import pyqtgraph
         import PySide6
+
+        from tiltyard.engine.jobs import model_references
         refs = "".join(f"<li><b>{k}</b>: {v}</li>" for k, v in model_references().items())
         return (
             f"<h3>Tiltyard {__version__}</h3>"
@@ -355,6 +366,30 @@ class MainWindow(QMainWindow):
         self.runner.shutdown()
         SiteDocument.clear_autosave()
         event.accept()
+
+
+class _LazyViews(Mapping):
+    """Title -> view, building each view the first time it is asked for."""
+
+    def __init__(self, window: MainWindow):
+        self._window = window
+        self._built: dict = {}
+
+    def __getitem__(self, title: str):
+        if title not in VIEW_TITLES:
+            raise KeyError(title)
+        if title not in self._built:
+            self._built[title] = self._window._build_view(title)
+        return self._built[title]
+
+    def __iter__(self):
+        return iter(VIEW_TITLES)
+
+    def __len__(self) -> int:
+        return len(VIEW_TITLES)
+
+    def built(self) -> list:
+        return list(self._built.values())
 
 
 def _slug(name: str) -> str:

@@ -18,7 +18,7 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from tiltyard.engine.jobs import CAUTION
+from tiltyard.engine.cautions import CAUTION
 from tiltyard.engine.site import SiteError
 
 

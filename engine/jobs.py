@@ -16,6 +16,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
+from .cautions import CAUTION
 from .horizon import HorizonShading, plane_shading
 from .plane import TRANSPOSITION_REFERENCES, poa_components
 from .site import Site
@@ -23,10 +24,6 @@ from .sky import CLEARSKY_REFERENCES, extraterrestrial_on_plane
 from .skyyear import IrradianceOptions, sky_year
 from .sun import day_path, sun_events
 from .timegrid import MIDPOINT_CONVENTION
-
-CAUTION = ("Preliminary feasibility estimate, not a design: structural, electrical and fire "
-           "safety and the sizing of any installation belong to local codes and licensed "
-           "installers.")
 
 
 def _iso(ts) -> str | None:
