@@ -20,7 +20,10 @@ WARM_UP_MODULES = ("tiltyard.engine.tilt", "tiltyard.engine.sunchart",
 def warm_up() -> None:
     """Import the engine modules the views will need (run in a background thread)."""
     from importlib import import_module
-    for name in WARM_UP_MODULES:
+
+    from .views import VIEW_SPECS
+    views = tuple(f"tiltyard.app.views.{module}" for _, module, _ in VIEW_SPECS)
+    for name in WARM_UP_MODULES + views:
         try:
             import_module(name)
         except Exception:  # noqa: BLE001 - a view will report the real error when it runs

@@ -62,6 +62,17 @@ def stall_run():
     w.show()
     app.processEvents()
     in_process_s = time.perf_counter() - t0
+    # as tiltyard.app.desktop.run does: load the engine and views in the background
+    import threading
+
+    from tiltyard.app.desktop import warm_up
+    t_warm = time.perf_counter()
+    loader = threading.Thread(target=warm_up)
+    loader.start()
+    while loader.is_alive():
+        app.processEvents()
+        time.sleep(0.005)
+    warm_s = time.perf_counter() - t_warm
 
     clock = QElapsedTimer()
     clock.start()
@@ -112,7 +123,7 @@ def stall_run():
     gaps = [b - a for a, b in zip(ticks, ticks[1:], strict=False)]
     w.runner.shutdown()
     w.close()
-    return in_process_s, gaps, steps, len(ticks)
+    return in_process_s, gaps, steps, len(ticks), warm_s
 
 
 def main():
@@ -120,10 +131,12 @@ def main():
     print(f"start-up to a usable window, fresh process ({STARTUP_RUNS} runs): median "
           f"{statistics.median(times):.2f} s (min {min(times):.2f}, max {max(times):.2f}); "
           "target under 2 s")
-    in_process_s, gaps, steps, n = stall_run()
+    in_process_s, gaps, steps, n, warm_s = stall_run()
     gaps_sorted = sorted(gaps)
     p99 = gaps_sorted[int(0.99 * (len(gaps_sorted) - 1))]
-    print(f"window construction and first show in process: {in_process_s * 1000:.0f} ms")
+    print(f"window construction and first show in process: {in_process_s * 1000:.0f} ms; "
+          f"background loading of the engine and views after show: {warm_s:.2f} s "
+          "(the drive below starts once it is done)")
     print(f"GUI heartbeat every {HEARTBEAT_MS} ms over {n} ticks while driving: "
           + "; ".join(steps))
     print(f"  longest event-loop stall: {max(gaps)} ms; 99th percentile gap {p99} ms; "
