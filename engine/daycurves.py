@@ -38,6 +38,7 @@ from .site import Site
 from .sky import clear_sky, extraterrestrial_normal, extraterrestrial_on_plane
 from .skyyear import IrradianceOptions, SkyYear, sky_year
 from .sun import evaluation_points
+from .tilt import periods_poa
 from .timegrid import MIDPOINT_CONVENTION, STEPS_MIN, TimeGrid
 
 #: Interval of a clear-sky day, minutes (smooth curves; 144 points a day).
@@ -363,13 +364,6 @@ def irradiance_day(site: Site, date, surface_tilt: float, surface_azimuth: float
 
 # -- yearly totals of compared options -------------------------------------------------
 
-def _day_of_year_index(year: int, mmdd: str) -> int:
-    try:
-        return int(pd.Timestamp(f"{year}-{mmdd}").day_of_year) - 1
-    except ValueError:
-        raise ValueError(f"period date = {mmdd!r}: must be MM-DD within {year}") from None
-
-
 @dataclass(frozen=True)
 class ScheduleIrradiation:
     """Plane-of-array irradiation of a tilt schedule over a year, with the horizon.
@@ -423,33 +417,24 @@ def schedule_irradiation(site: Site, schedule, options: IrradianceOptions | None
 
     References
     ----------
-    Per-interval arithmetic of :func:`tiltyard.engine.jobs.irradiance_year`
-    (Perez et al. 1990; Hay & Davies 1980; Liu & Jordan 1963, through pvlib);
-    each day counts on the plane of the period it falls in.
+    :func:`tiltyard.engine.tilt.periods_poa`, the per-interval arithmetic of
+    :func:`tiltyard.engine.jobs.irradiance_year` (Perez et al. 1990; Hay &
+    Davies 1980; Liu & Jordan 1963, through pvlib); each day counts on the
+    plane of the period it falls in.
     """
     if sky is None:
         sky = sky_year(site, options or IrradianceOptions())
-    opts = sky.options
-    whole = np.arange(len(sky.grid))
-    year_sky = _slice_year(sky, whole)
-    weight = sky.kwh_weight
-    day = sky.day_index
-    shaded = np.zeros(12)
-    open_ = np.zeros(12)
     for i, p in enumerate(schedule):
         if p.tilt_deg is None or p.azimuth_deg is None:
             raise ValueError(f"schedule[{i}] ({p.start} to {p.end}): has no fixed tilt and "
                              "azimuth (a tracking option); its plane changes all the time")
-        az = _check_plane(p.tilt_deg, p.azimuth_deg)
-        a, b = _day_of_year_index(opts.year, p.start), _day_of_year_index(opts.year, p.end)
-        inside = (day >= a) & (day <= b) if a <= b else (day >= a) | (day <= b)
-        shading = plane_shading(site, float(p.tilt_deg), az)
-        poa = _poa(year_sky, float(p.tilt_deg), az, opts.model, shading)
-        w = weight * inside
-        shaded += np.bincount(sky.month, weights=poa["poa_global"].to_numpy() * w,
-                              minlength=13)[1:]
-        open_ += np.bincount(sky.month, weights=poa["poa_global_open"].to_numpy() * w,
-                             minlength=13)[1:]
+        _check_plane(p.tilt_deg, p.azimuth_deg)
+    poa = periods_poa(sky, site, schedule)
+    k = sky.grid.step_h / 1000.0
+    shaded = np.bincount(sky.month, weights=poa["poa_global"].to_numpy() * k,
+                         minlength=13)[1:]
+    open_ = np.bincount(sky.month, weights=poa["poa_global_open"].to_numpy() * k,
+                        minlength=13)[1:]
     return ScheduleIrradiation(shaded, open_)
 
 

@@ -23,13 +23,13 @@ from __future__ import annotations
 import hashlib
 import io
 import json
-from dataclasses import dataclass, fields, replace
+from dataclasses import dataclass, fields
 
 import numpy as np
 import pandas as pd
 
 from .jobs import model_references
-from .site import HorizonProfile, Site, site_to_dict
+from .site import Site, site_to_dict
 from .skyyear import SkyYear, sky_year
 from .tilt import MONTH_NAMES, OPTION_KINDS, StudyOption, StudyOptions, TiltStudy, schedule_poa
 from .timegrid import MIDPOINT_CONVENTION
@@ -260,10 +260,10 @@ def option_horizon_loss(sky: SkyYear, site: Site, option: StudyOption) -> Option
 
     The schedule's interval plane-of-array irradiance
     (:func:`tiltyard.engine.tilt.schedule_poa`) summed with the site's
-    horizon and obstacles, and again with an open horizon: the same sky with
-    the sun counted as visible whenever it is up and each period's plane
-    seeing the open-sky view factor ``(1 + cos tilt) / 2`` — the open-horizon
-    terms of :func:`tiltyard.engine.plane.poa_components`, as
+    horizon and obstacles, and its open-horizon column (the sun counted as
+    visible whenever it is up, each period's plane seeing the open-sky view
+    factor ``(1 + cos tilt) / 2``) — the open-horizon terms of
+    :func:`tiltyard.engine.plane.poa_components`, as
     :func:`tiltyard.engine.jobs.irradiance_year` reports them for one plane.
 
     Parameters
@@ -288,10 +288,9 @@ def option_horizon_loss(sky: SkyYear, site: Site, option: StudyOption) -> Option
     Solar Engineering of Thermal Processes, 4th ed., sec. 2.15.
     """
     k = sky.grid.step_h / 1000.0
-    shaded = float(schedule_poa(sky, site, option)["poa_global"].sum()) * k
-    open_site = site.with_changes(horizon=HorizonProfile(), obstacles=())
-    open_sky = replace(sky, site=open_site, sun_visible=np.asarray(sky.sun_up_fraction) > 0)
-    open_ = float(schedule_poa(open_sky, open_site, option)["poa_global"].sum()) * k
+    poa = schedule_poa(sky, site, option)
+    shaded = float(poa["poa_global"].sum()) * k
+    open_ = float(poa["poa_global_open"].sum()) * k
     return OptionHorizonLoss(option.label, open_, shaded)
 
 

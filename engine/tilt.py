@@ -784,7 +784,38 @@ def schedule_poa(sky: SkyYear, site: Site, option: StudyOption) -> pd.DataFrame:
     pandas.DataFrame
         Indexed by interval start in the site's time zone; columns
         ``surface_tilt``, ``surface_azimuth``, ``poa_global``, ``poa_direct``,
-        ``poa_sky_diffuse``, ``poa_ground_diffuse``.
+        ``poa_sky_diffuse``, ``poa_ground_diffuse`` and ``poa_global_open``
+        (the same plane with an open horizon).
+
+    References
+    ----------
+    Transposition as :func:`tiltyard.engine.plane.poa_components` (pvlib;
+    Perez et al. 1990, Hay & Davies 1980, Liu & Jordan 1963).
+    """
+    return periods_poa(sky, site, None if option.kind == "two-axis" else option.schedule)
+
+
+def periods_poa(sky: SkyYear, site: Site, schedule) -> pd.DataFrame:
+    """Interval plane-of-array irradiance of a schedule of periods, W/m².
+
+    The arithmetic of :func:`schedule_poa`: each day counts on the plane of
+    the period it falls in (``start``..``end`` inclusive, "MM-DD", a period
+    may run over the new year; days outside every period count 0), with that
+    plane's horizon shading. ``schedule=None`` is two-axis tracking.
+
+    Parameters
+    ----------
+    sky : SkyYear
+        A sky year for ``site``.
+    site : Site
+        The site (horizon).
+    schedule : sequence of Period or None
+        Periods with ``tilt_deg`` and ``azimuth_deg``; None follows the sun.
+
+    Returns
+    -------
+    pandas.DataFrame
+        As :func:`schedule_poa`.
 
     References
     ----------
@@ -798,15 +829,16 @@ def schedule_poa(sky: SkyYear, site: Site, option: StudyOption) -> pd.DataFrame:
     zen = pos["apparent_zenith"].to_numpy()
     saz = pos["azimuth"].to_numpy()
     n = len(frac)
-    cols = ("poa_global", "poa_direct", "poa_sky_diffuse", "poa_ground_diffuse")
+    cols = ("poa_global", "poa_direct", "poa_sky_diffuse", "poa_ground_diffuse",
+            "poa_global_open")
     out = {c: np.zeros(n) for c in cols}
     tilt = np.zeros(n)
     azim = np.zeros(n)
     albedo = np.broadcast_to(np.asarray(sky.albedo, dtype=float), (n,))
-    if option.kind == "two-axis":
+    if schedule is None:
         masks = [(np.ones(n, dtype=bool), None)]
     else:
-        masks = [(_period_mask(sky.day_index, p, sky.options.year), p) for p in option.schedule]
+        masks = [(_period_mask(sky.day_index, p, sky.options.year), p) for p in schedule]
     for mask, period in masks:
         m = mask & (frac > 0)
         if not m.any():
@@ -951,5 +983,5 @@ def _two_axis(sky: SkyYear, site: Site, month_of_day: np.ndarray) -> StudyOption
 
 __all__ = ["KLEIN_METHOD", "OPTION_KINDS", "MonthlyMethodOption", "OptionRows", "OptionYield",
            "Period", "StudyOption", "StudyOptions", "TiltStudy", "monthly_method_comparison",
-           "schedule_poa", "tilt_study"]
+           "periods_poa", "schedule_poa", "tilt_study"]
 
