@@ -39,7 +39,7 @@ from .sky import clear_sky, extraterrestrial_normal, extraterrestrial_on_plane
 from .skyyear import IrradianceOptions, SkyYear, sky_year
 from .sun import evaluation_points
 from .tilt import periods_poa
-from .timegrid import MIDPOINT_CONVENTION, STEPS_MIN, TimeGrid
+from .timegrid import MIDPOINT_CONVENTION, STEPS_MIN, TimeGrid, local_date
 
 #: Interval of a clear-sky day, minutes (smooth curves; 144 points a day).
 DAY_STEP_MIN = 10
@@ -176,25 +176,12 @@ def day_grid(site: Site, date, step_min: int = DAY_STEP_MIN) -> TimeGrid:
     if step_min not in STEPS_MIN:
         raise ValueError(f"step_min = {step_min!r}: must be one of "
                          f"{', '.join(map(str, STEPS_MIN))}")
-    day = _parse_date(date)
+    day = local_date(date)
     tz = ZoneInfo(site.timezone)
     start = _local_midnight_utc(day, tz)
     end = _local_midnight_utc(day + pd.Timedelta(days=1), tz)
     idx = pd.date_range(start, end, freq=f"{step_min}min", inclusive="left")
     return TimeGrid(int(day.year), int(step_min), site.timezone, idx)
-
-
-def _parse_date(date) -> pd.Timestamp:
-    try:
-        ts = pd.Timestamp(date)
-    except (TypeError, ValueError):
-        raise ValueError(f"date = {date!r}: must be a calendar date such as "
-                         "'2023-06-21'") from None
-    if pd.isna(ts):
-        raise ValueError(f"date = {date!r}: must be a calendar date such as '2023-06-21'")
-    if ts.tz is not None:
-        ts = ts.tz_localize(None)
-    return ts.normalize()
 
 
 @dataclass(frozen=True)
@@ -304,7 +291,7 @@ def irradiance_day(site: Site, date, surface_tilt: float, surface_azimuth: float
     """
     options = options or IrradianceOptions()
     surface_azimuth = _check_plane(surface_tilt, surface_azimuth)
-    day = _parse_date(date)
+    day = local_date(date)
     if options.sky == "clear":
         step = DAY_STEP_MIN if step_min is None else step_min
         sky = _clear_day(site, day_grid(site, day, step), options)

@@ -38,7 +38,7 @@ from scipy.optimize import brentq, minimize_scalar
 
 from .site import Site
 from .sun import RISE_SET_ELEVATION_DEG, delta_t_s, solar_position, sun_events
-from .timegrid import REFERENCE_YEAR
+from .timegrid import REFERENCE_YEAR, local_date
 
 #: Latitude of the tropics, degrees: the obliquity of the ecliptic, about
 #: 23 deg 26' (Meeus, Astronomical Algorithms, 1998, ch. 22). Between the
@@ -421,17 +421,7 @@ def row_layout(site: Site, tilt_deg: float, azimuth_deg: float | None = None, *,
     if design_date is None:
         day, rule = default_design_date(site, az)
     else:
-        try:
-            day = pd.Timestamp(design_date)
-        except (TypeError, ValueError):
-            raise ValueError(f"design_date = {design_date!r}: must be a date such as "
-                             "'2023-12-21'") from None
-        if pd.isna(day):
-            raise ValueError(f"design_date = {design_date!r}: must be a date such as "
-                             "'2023-12-21'")
-        if day.tzinfo is not None:
-            day = day.tz_convert(site.timezone).tz_localize(None)
-        day = day.normalize()
+        day = local_date(design_date, "design_date", "2023-12-21", site.timezone)
         rule = "given by the user"
 
     ev = sun_events(site, [day]).table.iloc[0]

@@ -39,7 +39,7 @@ from .sun import (
     standard_path_dates,
     sun_events,
 )
-from .timegrid import TIME_BASES, apparent_solar_time_h, standard_timezone
+from .timegrid import TIME_BASES, apparent_solar_time_h, local_date, standard_timezone
 
 #: Days between the points of an hour line.
 HOUR_LINE_DAY_STEP = 3
@@ -528,17 +528,10 @@ def _summary(row: pd.Series) -> DaySummary:
 
 
 def _parse_date(date) -> pd.Timestamp:
-    try:
-        d = pd.Timestamp(date)
-    except (ValueError, TypeError) as exc:
-        raise ValueError(f"date = {date!r}: not a date ({exc})") from None
-    if pd.isna(d):
-        raise ValueError(f"date = {date!r}: not a date")
-    if d.tzinfo is not None:
-        d = d.tz_localize(None)
+    d = local_date(date)
     if not 1900 <= d.year <= 2100:
         raise ValueError(f"date = {date!r}: the year must be between 1900 and 2100")
-    return d.normalize()
+    return d
 
 
 # -- entry point --------------------------------------------------------------------

@@ -194,3 +194,45 @@ def to_display(times_utc: pd.DatetimeIndex, timezone: str, basis: str = "clock",
         return t.tz_convert(standard_timezone(timezone, year))
     raise ValueError(f"basis = {basis!r}: must be 'clock' or 'standard' "
                      "(solar time is given by apparent_solar_time_h)")
+
+
+def local_date(value, field: str = "date", example: str = "2023-06-21",
+               timezone: str | None = None) -> pd.Timestamp:
+    """A typed calendar date as a naive local midnight.
+
+    Parameters
+    ----------
+    value : str, date, datetime or Timestamp
+        What was given.
+    field : str
+        Name used in the error message.
+    example : str
+        A valid value shown in the error message.
+    timezone : str, optional
+        A timezone-aware value is first converted to this zone; without it
+        its own wall-clock date is kept.
+
+    Returns
+    -------
+    pandas.Timestamp
+        Naive midnight of the date.
+
+    Raises
+    ------
+    ValueError
+        Naming ``field``, the value and an example.
+
+    Notes
+    -----
+    Gregorian calendar dates (common practice, no source).
+    """
+    try:
+        day = pd.Timestamp(value)
+    except (TypeError, ValueError):
+        raise ValueError(f"{field} = {value!r}: must be a calendar date such as "
+                         f"'{example}'") from None
+    if pd.isna(day):
+        raise ValueError(f"{field} = {value!r}: must be a calendar date such as '{example}'")
+    if day.tzinfo is not None:
+        day = (day.tz_convert(timezone) if timezone else day).tz_localize(None)
+    return day.normalize()
