@@ -665,7 +665,7 @@ def main(argv: list[str] | None = None) -> int:
     """Run the command line; returns the exit status (also for usage errors,
     ``--help`` and ``--version``, which argparse reports by raising SystemExit)."""
     argv = sys.argv[1:] if argv is None else argv
-    if not argv or (not argv[0].startswith("-") and argv[0] not in _command_names()):
+    if not argv or (not argv[0].startswith("-") and argv[0] not in COMMANDS):
         return _open_app(argv[0] if argv else None)
     parser = build_parser()
     try:
@@ -690,10 +690,6 @@ def main(argv: list[str] | None = None) -> int:
         sys.stderr.write(f"tiltyard: internal fault: {type(err).__name__}: {_one_line(err)} "
                          "(run again with --verbose and report it)\n")
         return EXIT_FAULT
-
-
-def _command_names() -> set:
-    return set(COMMANDS)
 
 
 def _open_app(site_arg: str | None) -> int:

@@ -388,9 +388,6 @@ class _LazyViews(Mapping):
     def __len__(self) -> int:
         return len(VIEW_TITLES)
 
-    def built(self) -> list:
-        return list(self._built.values())
-
 
 def _slug(name: str) -> str:
     keep = "".join(c.lower() if c.isalnum() else "-" for c in name).strip("-")

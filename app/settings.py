@@ -64,11 +64,3 @@ def add_recent_file(path: str) -> list[str]:
     s.setValue("recent_files", items[:MAX_RECENT])
     s.sync()
     return items[:MAX_RECENT]
-
-
-def remove_recent_file(path: str) -> list[str]:
-    items = [p for p in recent_files() if p != path]
-    s = _settings()
-    s.setValue("recent_files", items)
-    s.sync()
-    return items

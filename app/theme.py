@@ -43,7 +43,7 @@ def series_pen(i: int, width: float = 2.0, dashed: bool = True):
     """Pen for the i-th categorical series (colour and, for i >= 1, a dash pattern)."""
     pen = pg.mkPen(SERIES[i % len(SERIES)], width=width)
     if dashed:
-        pen.setStyle(DASHES[(i // 1) % len(DASHES)] if i < len(DASHES) else DASHES[0])
+        pen.setStyle(DASHES[i % len(DASHES)])
     return pen
 
 

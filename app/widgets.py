@@ -194,7 +194,7 @@ class ValidatedField(QWidget):
 
     @property
     def message(self) -> str:
-        return self.error.text() if self.error.isVisible() or self.error.text() else ""
+        return self.error.text()
 
 
 def _reason(exc: Exception) -> str:
