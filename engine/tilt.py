@@ -641,17 +641,13 @@ def tilt_study(site: Site, opts: StudyOptions | None = None,
         warnings.append("No useful daylight in " + ", ".join(inactive) + " (polar night or "
                         "near it): those months are left out of the worst-month objective.")
     report(0.9, "rows and indicative yield")
-    rows = tuple(_option_rows(site, o, opts) for o in options)
+    layouts = _RowLayouts(site, opts)     # options sharing a plane share its layout
+    rows = tuple(_option_rows(o, layouts) for o in options)
     row_tilt = opts.row_tilt_deg
     fixed_opt = next(o for o in options if o.kind == "fixed-optimal").schedule[0]
     if row_tilt is None:
         row_tilt = fixed_opt.tilt_deg
-    from .rows import row_layout
-    try:
-        chosen_rows = row_layout(site, row_tilt, fixed_opt.azimuth_deg, **_row_kw(opts))
-        row_note = ""
-    except ValueError as exc:
-        chosen_rows, row_note = None, str(exc)
+    chosen_rows, row_note = layouts.get(row_tilt, fixed_opt.azimuth_deg)
     yields = tuple(_option_yield(sky, site, o, opts) for o in options)
     monthly_method = None
     if opts.irradiance.sky == "monthly":
@@ -871,17 +867,34 @@ def _row_kw(opts: StudyOptions) -> dict:
     return kw
 
 
-def _option_rows(site: Site, opt: StudyOption, opts: StudyOptions) -> OptionRows:
-    from .rows import irradiation_per_ground_m2, row_layout
+class _RowLayouts:
+    """Row layouts of one study by plane, each computed once: (layout or None, message)."""
+
+    def __init__(self, site: Site, opts: StudyOptions):
+        self._site, self._kw, self._done = site, _row_kw(opts), {}
+
+    def get(self, tilt_deg: float, azimuth_deg: float) -> tuple:
+        from .rows import row_layout
+
+        key = (float(tilt_deg), float(azimuth_deg))
+        if key not in self._done:
+            try:
+                self._done[key] = (row_layout(self._site, *key, **self._kw), "")
+            except ValueError as exc:
+                self._done[key] = (None, str(exc))
+        return self._done[key]
+
+
+def _option_rows(opt: StudyOption, layouts: _RowLayouts) -> OptionRows:
+    from .rows import irradiation_per_ground_m2
 
     if opt.kind == "two-axis":
         return OptionRows(opt.label, opt.kind, None, None,
                           "trackers need their own spacing study; not laid out")
     steep = max(opt.schedule, key=lambda p: p.tilt_deg)
-    try:
-        layout = row_layout(site, steep.tilt_deg, steep.azimuth_deg, **_row_kw(opts))
-    except ValueError as exc:
-        return OptionRows(opt.label, opt.kind, None, None, str(exc))
+    layout, message = layouts.get(steep.tilt_deg, steep.azimuth_deg)
+    if layout is None:
+        return OptionRows(opt.label, opt.kind, None, None, message)
     per_ground = float(irradiation_per_ground_m2(opt.annual_kwh_m2, layout.gcr))
     note = ("spaced for the steepest period of the schedule"
             if len(opt.schedule) > 1 else "")
