@@ -664,6 +664,8 @@ def _one_line(text) -> str:
 def main(argv: list[str] | None = None) -> int:
     """Run the command line; returns the exit status (also for usage errors,
     ``--help`` and ``--version``, which argparse reports by raising SystemExit)."""
+    import multiprocessing
+    multiprocessing.freeze_support()    # a frozen app's engine worker processes start here
     argv = sys.argv[1:] if argv is None else argv
     if not argv or (not argv[0].startswith("-") and argv[0] not in COMMANDS):
         return _open_app(argv[0] if argv else None)

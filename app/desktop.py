@@ -47,7 +47,7 @@ def run(site_arg: str | None = None, argv: list[str] | None = None) -> int:
     """Open the app and run its event loop; returns the exit status."""
     from PySide6.QtWidgets import QApplication
 
-    from . import settings, theme
+    from . import engine_process, settings, theme
     app = QApplication.instance() or QApplication(argv or sys.argv[:1])
     app.setOrganizationName(settings.ORGANISATION)
     app.setApplicationName(settings.APPLICATION)
@@ -55,7 +55,9 @@ def run(site_arg: str | None = None, argv: list[str] | None = None) -> int:
     window = create_window(site_arg)
     window.show()
     window.offer_recovery()
-    # load the engine (pvlib, scipy, pandas) while the user reads the first view
+    # start the engine's worker processes and load the engine (pvlib, scipy, pandas)
+    # here too, while the user reads the first view
+    engine_process.start_pool()
     threading.Thread(target=warm_up, name="tiltyard-warm-up", daemon=True).start()
     if os.environ.get(SMOKE_ENV):
         # smoke tests and the start-up benchmark: say when the window is usable, then quit
@@ -67,4 +69,8 @@ def run(site_arg: str | None = None, argv: list[str] | None = None) -> int:
             window.close()
             app.quit()
         QTimer.singleShot(int(os.environ.get(SMOKE_ENV) or 0), ready)
-    return app.exec()
+    try:
+        return app.exec()
+    finally:
+        window.runner.shutdown()
+        engine_process.shutdown_pool()

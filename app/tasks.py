@@ -7,6 +7,12 @@ still arrive, is dropped. Engine functions that take a ``progress`` callable
 get one that reports to the status bar and raises :class:`Cancelled` once the
 task has been cancelled, so long work stops at its next stage.
 
+Engine computations go through :meth:`TaskRunner.submit_call` and run in
+worker processes (:mod:`tiltyard.app.engine_process`): the thread that waits
+for them holds no lock the GUI thread needs. Work that needs Qt (laying out
+and rendering the sheet) or is light goes through :meth:`TaskRunner.submit`
+and runs in a thread.
+
 Errors in a worker are caught and delivered as a message with the traceback
 kept for reporting; nothing is raised into Qt's event loop.
 """
@@ -23,12 +29,12 @@ from PySide6.QtCore import QObject, QRunnable, QThreadPool, QTimer, Signal
 
 from tiltyard.engine.site import SiteError
 
+from .engine_process import Cancelled, EngineCall, run_call
+
+__all__ = ["Cancelled", "DEBOUNCE_MS", "EngineCall", "TaskRunner"]
+
 #: Debounce between the last edit and the start of the computation, ms.
 DEBOUNCE_MS = 150
-
-
-class Cancelled(Exception):
-    """Raised inside a worker when its task has been cancelled."""
 
 
 @dataclass
@@ -138,6 +144,12 @@ class TaskRunner(QObject):
             self._timers[channel] = timer
         timer.start(max(0, int(debounce_ms)))
         self._emit_busy()
+
+    def submit_call(self, channel: str, call: EngineCall, on_result: Callable | None = None,
+                    label: str | None = None, debounce_ms: int = DEBOUNCE_MS) -> None:
+        """As :meth:`submit`, for an engine call run in a worker process."""
+        self.submit(channel, lambda progress: run_call(call, progress), on_result, label,
+                    debounce_ms)
 
     def cancel(self, channel: str | None = None) -> None:
         """Cancel the pending and running task of a channel (all channels if None)."""

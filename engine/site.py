@@ -54,6 +54,10 @@ class SiteError(ValueError):
         self.file = file
         super().__init__(self._text())
 
+    def __reduce__(self):
+        # picklable with its fields (the app runs engine calls in worker processes)
+        return (type(self), (self.field, self.value, self.reason, self.file))
+
     def _text(self) -> str:
         where = f"{self.file}: " if self.file else ""
         shown = _short_repr(self.value)

@@ -40,6 +40,7 @@ from tiltyard.engine.horizon_loss import DEFAULT_STEP_MIN, horizon_loss
 from tiltyard.engine.site import HorizonProfile, Obstacle, SiteError
 
 from .. import theme
+from ..engine_process import EngineCall
 from ..widgets import CopyableTable, ValidatedField, View
 
 #: Elevations a profile point may be dragged to, degrees (the range
@@ -488,14 +489,14 @@ class HorizonView(View):
             self.loss_note.setText(f"Cannot compute the horizon loss: {exc}")
             return
         self.loss_note.setText("Updating…")
-        self.ctx.runner.submit(self.channel("loss"),
-                               lambda progress: horizon_loss(site, options, progress),
-                               self._show_loss, label="Horizon loss")
+        self.ctx.runner.submit_call(self.channel("loss"),
+                                    EngineCall(horizon_loss, (site, options)),
+                                    self._show_loss, label="Horizon loss")
 
     def _submit_line(self, site) -> None:
-        self.ctx.runner.submit(self.channel("line"),
-                               lambda progress: merged_profile(site, 1.0),
-                               self._show_line, label="Effective horizon")
+        self.ctx.runner.submit_call(self.channel("line"),
+                                    EngineCall(merged_profile, (site, 1.0), progress_arg=None),
+                                    self._show_line, label="Effective horizon")
 
     def _show_line(self, profile: HorizonProfile) -> None:
         self._merged = profile

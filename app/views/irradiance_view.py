@@ -42,6 +42,7 @@ from tiltyard.engine.daycurves import compare_options, irradiance_day
 from tiltyard.engine.timegrid import REFERENCE_YEAR
 
 from .. import theme
+from ..engine_process import EngineCall
 from ..weather_dialog import WeatherDialog, finding_text, summary_text
 from ..widgets import CopyableTable, View
 
@@ -497,16 +498,16 @@ class IrradianceView(View):
             label, tilt, az = self._selected_plane()
             d = self.date_edit.date()
             date = f"{opts.year:04d}-{d.month():02d}-{d.day():02d}"
-            self.ctx.runner.submit(
+            self.ctx.runner.submit_call(
                 self.channel("day"),
-                lambda progress: irradiance_day(site, date, tilt, az, opts),
+                EngineCall(irradiance_day, (site, date, tilt, az, opts), progress_arg=None),
                 lambda result, name=label: self._show_day(result, name),
                 label="Irradiance: day curves")
         if year:
             study = self._study_for_site()
-            self.ctx.runner.submit(
+            self.ctx.runner.submit_call(
                 self.channel("year"),
-                lambda progress: compare_options(site, opts, study, progress),
+                EngineCall(compare_options, (site, opts, study)),
                 self._show_rows, label="Irradiance: monthly and annual totals")
 
     # -- drawing --------------------------------------------------------------------------

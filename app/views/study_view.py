@@ -35,6 +35,7 @@ from tiltyard.engine.tilt import StudyOptions, tilt_study
 from tiltyard.engine.timegrid import REFERENCE_YEAR
 
 from .. import theme
+from ..engine_process import EngineCall
 from ..study_model import (
     COL_OBJECTIVE,
     MONTH_ABBR,
@@ -527,9 +528,9 @@ class StudyView(View):
         self._year = irr.year
         opts = replace(self._options, irradiance=irr)
         self.status.setText("computing…")
-        self.ctx.runner.submit(self.channel("study"),
-                               lambda progress: tilt_study(site, opts, progress=progress),
-                               self._show_study, label="Tilt study")
+        self.ctx.runner.submit_call(self.channel("study"),
+                                    EngineCall(tilt_study, (site, opts)),
+                                    self._show_study, label="Tilt study")
 
     def _show_study(self, study) -> None:
         self.study = study

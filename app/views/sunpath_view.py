@@ -39,6 +39,7 @@ from PySide6.QtWidgets import (
 from tiltyard.engine.sunchart import sun_chart
 
 from .. import theme
+from ..engine_process import EngineCall
 from ..widgets import CopyableTable, View
 
 #: Time bases offered, with the words used in the Preferences dialog.
@@ -405,9 +406,9 @@ class SunPathView(View):
         date = self.date_edit.date().toPython()
         basis = self.basis.currentData()
         self._show_site_label(site)
-        self.ctx.runner.submit(self.channel("chart"),
-                               lambda progress: sun_chart(site, date, basis, progress=progress),
-                               self._show_chart, label="Sun path")
+        self.ctx.runner.submit_call(self.channel("chart"),
+                                    EngineCall(sun_chart, (site, date, basis)),
+                                    self._show_chart, label="Sun path")
 
     # -- drawing ----------------------------------------------------------------------
     def _show_chart(self, chart) -> None:

@@ -62,10 +62,13 @@ def stall_run():
     w.show()
     app.processEvents()
     in_process_s = time.perf_counter() - t0
-    # as tiltyard.app.desktop.run does: load the engine and views in the background
+    # as tiltyard.app.desktop.run does: start the engine's worker processes and load the
+    # engine and views in the background
     import threading
 
+    from tiltyard.app import engine_process
     from tiltyard.app.desktop import warm_up
+    engine_process.start_pool()
     t_warm = time.perf_counter()
     loader = threading.Thread(target=warm_up)
     loader.start()
@@ -123,6 +126,7 @@ def stall_run():
     gaps = [b - a for a, b in zip(ticks, ticks[1:], strict=False)]
     w.runner.shutdown()
     w.close()
+    engine_process.shutdown_pool()
     return in_process_s, gaps, steps, len(ticks), warm_s
 
 
