@@ -19,6 +19,7 @@ kept for reporting; nothing is raised into Qt's event loop.
 
 from __future__ import annotations
 
+import inspect
 import itertools
 import threading
 import traceback
@@ -171,9 +172,10 @@ class TaskRunner(QObject):
         """Run GUI-side drawing ``steps`` one per event-loop turn.
 
         A result that takes long to draw is split so the event loop (input,
-        repaints) gets a turn between steps. A newer call for the same
-        ``owner`` abandons the rest of an older one. The runner counts as busy
-        until the last step has run.
+        repaints) gets a turn between steps. A step that returns a generator
+        is split further: each of its ``yield`` points ends a turn. A newer
+        call for the same ``owner`` abandons the rest of an older one. The
+        runner counts as busy until the last step has run.
         """
         gen = self._stage_gen.get(owner, 0) + 1
         self._stage_gen[owner] = gen
@@ -181,19 +183,32 @@ class TaskRunner(QObject):
         self._drawing += 1
         self._emit_busy()
 
-        def run(i):
+        def advance(i, pending):
+            """Run one turn: the next part of a split step, or step i."""
+            if pending is not None:
+                try:
+                    next(pending)
+                    return i, pending
+                except StopIteration:
+                    return i + 1, None
+            out = steps[i]()
+            if inspect.isgenerator(out):
+                return advance(i, out)
+            return i + 1, None
+
+        def run(i, pending=None):
             try:
                 if self._closed or self._stage_gen.get(owner) != gen or i >= len(steps):
                     return self._done_drawing()
                 try:
-                    steps[i]()
+                    i, pending = advance(i, pending)
                 except Exception as exc:  # noqa: BLE001 - a view fault must not kill the app
                     self.error.emit(owner, f"could not show the result: {exc}",
                                     traceback.format_exc())
                     return self._done_drawing()
-                if i + 1 >= len(steps):
+                if i >= len(steps):
                     return self._done_drawing()
-                QTimer.singleShot(0, lambda: run(i + 1))
+                QTimer.singleShot(0, lambda: run(i, pending))
             except RuntimeError:       # the runner was deleted while steps were queued
                 return None
 

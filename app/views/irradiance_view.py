@@ -572,6 +572,12 @@ class IrradianceView(View):
 
     def _show_rows(self, rows) -> None:
         self.rows = tuple(rows)
+        # bars, notes and table in separate event-loop turns: the GUI stays responsive
+        self.ctx.runner.run_in_stages(self.channel("rows"), (
+            self._draw_bars, self._show_row_notes, self._fill_table))
+
+    def _draw_bars(self):
+        """The monthly bars, a few options per event-loop turn (a generator)."""
         for item in self.bar_items:
             self.bars_plot.removeItem(item)
         self.bar_items = []
@@ -581,6 +587,8 @@ class IrradianceView(View):
         width = group / max(n, 1)
         top = 0.0
         for i, r in enumerate(self.rows):
+            if i and i % 4 == 0:
+                yield
             x = np.arange(1, 13) - group / 2 + width * (i + 0.5)
             h = r.mean_daily_kwh_m2_day
             top = max(top, float(np.max(h)))
@@ -593,6 +601,8 @@ class IrradianceView(View):
             self.bars_legend.add(_short(r.label), brush=_bar_brush(i), outline=outline)
         self.bars_legend.finish()
         self.bars_plot.setYRange(0, max(top, 0.1) * 1.06, padding=0.0)
+
+    def _show_row_notes(self) -> None:
         own = [r.sky_label for r in self.rows if not r.from_study]
         studied = [r.sky_label for r in self.rows if r.from_study]
         basis = own[0] if own else ""
@@ -609,7 +619,6 @@ class IrradianceView(View):
         else:
             self.study_note.setText("")
         self.study_note.setVisible(bool(self.study_note.text()))
-        self._fill_table()
 
     def _fill_table(self) -> None:
         m = self.table_model

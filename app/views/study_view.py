@@ -619,7 +619,9 @@ class StudyView(View):
             cp.addItem(line)
             self._curve_overlay.append(line)
 
-    def _draw_map(self, study) -> None:
+    def _draw_map(self, study):
+        """The tilt x azimuth map, its contours and markers (a generator: it pauses
+        between contour levels so the event loop gets its turns)."""
         mp = self.map_plot.getPlotItem()
         for item in self._map_overlay:
             mp.removeItem(item)
@@ -646,6 +648,7 @@ class StudyView(View):
         ticks = [(a, _COMPASS_8[((a % 360) // 45) % 8] + f" {a % 360}°")
                  for a in range(start, start + 361, 45)]
         mp.getAxis("bottom").setTicks([ticks[::2], ticks[1::2]])
+        yield
 
         # contour levels, in the grid's own pixels (centres at index + 0.5)
         for level, width in ((80.0, 1.0), (90.0, 1.0), (95.0, 1.3), (98.0, 1.6)):
@@ -671,6 +674,7 @@ class StudyView(View):
             tx.setPos(xs[k], ys[k])
             mp.addItem(tx)
             self._map_overlay.append(tx)
+            yield
 
         g_tilt, g_az, _ = study.grid_optimum
         opt_x = float(_azimuth_x(g_az, eq))

@@ -59,6 +59,8 @@ LABEL_FILL = (255, 255, 255, 190)     # behind hour and ring labels, so lines do
 NEAR_ZENITH_LABEL_R = 28.0
 #: How near (pixels) the pointer must be to a path for the readout to show it.
 PICK_RADIUS_PX = 40.0
+#: Chart items created or updated per event-loop turn while a result is drawn.
+PER_TURN = 6
 
 
 # -- small formatting helpers (no physics) -------------------------------------------
@@ -425,10 +427,15 @@ class SunPathView(View):
         return _pen(color, 2.6 if curve.kind in ("solstice", "equinox") else 1.3)
 
     def _draw_paths(self, plot, items, chart, mapper, pick_mapper):
-        """Day paths (solstices and equinoxes above the 21sts) and the pick lists."""
+        """Day paths (solstices and equinoxes above the 21sts) and the pick lists.
+
+        A generator: drawing pauses every few items (see ``run_in_stages``).
+        """
         shown = {}
         pick = [(chart.day, *pick_mapper(chart.day.azimuth_deg, chart.day.elevation_deg))]
-        for curve in chart.paths:
+        for n, curve in enumerate(chart.paths):
+            if n and n % PER_TURN == 0:
+                yield
             item = self._item(plot, items, ("path", curve.label),
                               3 if curve.kind == "month" else 4, self._path_pen(curve))
             self._set(item, *mapper(curve.azimuth_deg, curve.elevation_deg))
@@ -437,9 +444,14 @@ class SunPathView(View):
         return shown, pick
 
     def _draw_hours(self, plot, items, texts, chart, mapper, place_label):
-        """Hour lines and their labels; lines of hours not in this chart are emptied."""
+        """Hour lines and their labels; lines of hours not in this chart are emptied.
+
+        A generator, like :meth:`_draw_paths`.
+        """
         shown = {}
-        for line in chart.hour_lines:
+        for n, line in enumerate(chart.hour_lines):
+            if n and n % PER_TURN == 0:
+                yield
             item = self._item(plot, items, ("hour", line.hour), 1, _pen(HOUR_LINE_COLOR, 1.0))
             self._set(item, *mapper(line.azimuth_deg, line.elevation_deg))
             text = self._text(plot, texts, ("hour", line.hour), 12)
@@ -479,6 +491,7 @@ class SunPathView(View):
         if hx[-1] < hi:
             hx, hy = np.append(hx, hi), np.append(hy, hy[0])
         self._set(self.horizon_item, hx, hy)
+        yield
 
         def split(az, el):
             return split_at_edges(az, el, centre)
@@ -488,7 +501,7 @@ class SunPathView(View):
             text.setPos(float(chart_x(line.label_azimuth_deg, centre)),
                         line.label_elevation_deg)
 
-        self.hour_items = self._draw_hours(p, self._cart_items, self._cart_texts, chart,
+        self.hour_items = yield from self._draw_hours(p, self._cart_items, self._cart_texts, chart,
                                            split, place)
 
     def _draw_cartesian_paths(self, chart) -> None:
@@ -501,7 +514,7 @@ class SunPathView(View):
         def split(az, el):
             return split_at_edges(az, el, centre)
 
-        self.path_items, self._pick["cart"] = self._draw_paths(
+        self.path_items, self._pick["cart"] = yield from self._draw_paths(
             p, self._cart_items, chart, split, lambda az, el: (chart_x(az, centre), el))
         self._set_day(self._cart_items, chart.day, split)
 
@@ -550,9 +563,10 @@ class SunPathView(View):
             text.setAnchor((0.5 - 0.6 * ux, 0.5 + 0.6 * uy))
             text.setPos(r * math.sin(br), r * math.cos(br))
 
-        self.polar_hour_items = self._draw_hours(p, self._polar_items, self._polar_texts,
+        yield
+        self.polar_hour_items = yield from self._draw_hours(p, self._polar_items, self._polar_texts,
                                                  chart, polar_xy, place)
-        self.polar_path_items, self._pick["polar"] = self._draw_paths(
+        self.polar_path_items, self._pick["polar"] = yield from self._draw_paths(
             p, self._polar_items, chart, polar_xy, polar_xy)
         self._set_day(self._polar_items, chart.day, polar_xy)
 
