@@ -40,6 +40,7 @@ from tiltyard.engine.sunchart import sun_chart
 
 from .. import theme
 from ..engine_process import EngineCall
+from ..plot_labels import Label, LabelLayer
 from ..widgets import CopyableTable, View
 
 #: Time bases offered, with the words used in the Preferences dialog.
@@ -166,10 +167,10 @@ class SunPathView(View):
     def __init__(self, ctx, parent=None):
         super().__init__(ctx, parent)
         self.chart = None                  # the last SunChart shown
-        self.path_items: dict[str, pg.PlotDataItem] = {}
-        self.polar_path_items: dict[str, pg.PlotDataItem] = {}
-        self.hour_items: dict[int, tuple] = {}
-        self.polar_hour_items: dict[int, tuple] = {}
+        self.path_items: dict[str, pg.PlotCurveItem] = {}
+        self.polar_path_items: dict[str, pg.PlotCurveItem] = {}
+        self.hour_labels: dict[int, Label] = {}
+        self.polar_hour_labels: dict[int, Label] = {}
         self._pick: dict[str, list] = {"cart": [], "polar": []}
 
         outer = QVBoxLayout(self)
@@ -286,10 +287,10 @@ class SunPathView(View):
     # Plot items are made once and then only given new data: every pyqtgraph
     # item added or removed costs several signal emissions, so redrawing by
     # clearing the plots would be needlessly heavy.
-    def _item(self, plot, store: dict, key, z: float, pen=None) -> pg.PlotDataItem:
+    def _item(self, plot, store: dict, key, z: float, pen=None) -> pg.PlotCurveItem:
         item = store.get(key)
         if item is None:
-            item = pg.PlotDataItem(pen=pen)
+            item = pg.PlotCurveItem(pen=pen)
             item.setZValue(z)
             plot.addItem(item)
             store[key] = item
@@ -303,7 +304,7 @@ class SunPathView(View):
         if last is not None and np.array_equal(last[0], x, equal_nan=True) \
                 and np.array_equal(last[1], y, equal_nan=True):
             return
-        item.setData(x, y, connect="finite")
+        item.setData(x=x, y=y, connect="finite")
         item._shown = (x, y)
 
     def _text(self, plot, store: dict, key, z: float, size: float = 8.5,
@@ -317,13 +318,21 @@ class SunPathView(View):
             store[key] = item
         return item
 
+    @staticmethod
+    def _label_layer(plot) -> LabelLayer:
+        """The hour labels of one chart, drawn together above the lines."""
+        layer = LabelLayer(theme.plot_font(8.5), HOUR_TEXT_COLOR, LABEL_FILL)
+        layer.setZValue(12)
+        plot.addItem(layer)
+        return layer
+
     def _setup_cartesian(self) -> None:
         p = self.cart.getPlotItem()
         theme.style_plot(p, "Elevation (°)", "Azimuth (° clockwise from north)")
         p.getAxis("bottom").setHeight(42)
         p.getAxis("left").setWidth(44)
         self._cart_items: dict = {}
-        self._cart_texts: dict = {}
+        self._cart_labels = self._label_layer(p)
         self.horizon_item = self._item(p, self._cart_items, "horizon", 5,
                                        _pen(theme.HORIZON_LINE, 1.4))
         self.horizon_item.setFillLevel(-100.0)
@@ -359,6 +368,7 @@ class SunPathView(View):
                    size="10pt")
         self._polar_items: dict = {}
         self._polar_texts: dict = {}
+        self._polar_labels = self._label_layer(p)
         # horizon: between the outer ring (0° elevation) and the horizon line
         self._polar_outer = pg.PlotCurveItem(pen=pg.mkPen(None))
         self._polar_horizon = pg.PlotCurveItem(pen=_pen(theme.HORIZON_LINE, 1.4))
@@ -443,27 +453,23 @@ class SunPathView(View):
             pick.append((curve, *pick_mapper(curve.azimuth_deg, curve.elevation_deg)))
         return shown, pick
 
-    def _draw_hours(self, plot, items, texts, chart, mapper, place_label):
-        """Hour lines and their labels; lines of hours not in this chart are emptied.
+    def _draw_hours(self, plot, items, layer, chart, mapper, place_label):
+        """All hour lines as one curve (NaN between hours) and their labels on ``layer``.
 
-        A generator, like :meth:`_draw_paths`.
+        ``place_label(line)`` gives the label's (x, y, anchor_x, anchor_y).
+        Returns {hour: Label}.
         """
-        shown = {}
-        for n, line in enumerate(chart.hour_lines):
-            if n and n % PER_TURN == 0:
-                yield
-            item = self._item(plot, items, ("hour", line.hour), 1, _pen(HOUR_LINE_COLOR, 1.0))
-            self._set(item, *mapper(line.azimuth_deg, line.elevation_deg))
-            text = self._text(plot, texts, ("hour", line.hour), 12)
-            text.setText(f"{line.hour}")
-            place_label(text, line)
-            text.setVisible(True)
-            shown[line.hour] = (item, text)
-        for key, item in items.items():
-            if key[0] == "hour" and key[1] not in shown:
-                self._set(item, [], [])
-                texts[key].setVisible(False)
-        return shown
+        xs, ys, labels = [], [], {}
+        for line in chart.hour_lines:
+            x, y = mapper(line.azimuth_deg, line.elevation_deg)
+            xs += [np.asarray(x, dtype=float), [np.nan]]
+            ys += [np.asarray(y, dtype=float), [np.nan]]
+            lx, ly, ax, ay = place_label(line)
+            labels[line.hour] = Label(float(lx), float(ly), f"{line.hour}", ax, ay)
+        item = self._item(plot, items, "hours", 1, _pen(HOUR_LINE_COLOR, 1.0))
+        self._set(item, np.concatenate(xs) if xs else [], np.concatenate(ys) if ys else [])
+        layer.set_labels(labels.values())
+        return labels
 
     def _draw_cartesian(self, chart) -> None:
         p = self.cart.getPlotItem()
@@ -496,13 +502,12 @@ class SunPathView(View):
         def split(az, el):
             return split_at_edges(az, el, centre)
 
-        def place(text, line):
-            text.setAnchor((0.5, 1.1) if line.label_on_top else (0.5, -0.1))
-            text.setPos(float(chart_x(line.label_azimuth_deg, centre)),
-                        line.label_elevation_deg)
+        def place(line):
+            return (float(chart_x(line.label_azimuth_deg, centre)), line.label_elevation_deg,
+                    0.5, 1.1 if line.label_on_top else -0.1)
 
-        self.hour_items = yield from self._draw_hours(p, self._cart_items, self._cart_texts, chart,
-                                           split, place)
+        self.hour_labels = self._draw_hours(p, self._cart_items, self._cart_labels, chart,
+                                            split, place)
 
     def _draw_cartesian_paths(self, chart) -> None:
         """Second half of the cartesian chart: day paths, the chosen day, the range."""
@@ -547,25 +552,22 @@ class SunPathView(View):
         zen.setAnchor((0.5, 1.2) if pole == 0.0 else (0.5, -0.2))
         zen.setPos(0.0, 0.0)
 
-        def place(text, line):
+        def place(line):
             br = math.radians(line.label_azimuth_deg)
             r = 90.0 - line.label_elevation_deg
             if r < NEAR_ZENITH_LABEL_R:
                 # close to the zenith the label points of several hours meet: write the
                 # hour further out along its own bearing, where the line runs on
-                text.setAnchor((0.5, 0.5))
-                text.setPos(NEAR_ZENITH_LABEL_R * math.sin(br),
-                            NEAR_ZENITH_LABEL_R * math.cos(br))
-                return
+                return (NEAR_ZENITH_LABEL_R * math.sin(br), NEAR_ZENITH_LABEL_R * math.cos(br),
+                        0.5, 0.5)
             # towards the zenith when the label sits above its point on the other chart
             sign = -1.0 if line.label_on_top else 1.0
             ux, uy = sign * math.sin(br), sign * math.cos(br)
-            text.setAnchor((0.5 - 0.6 * ux, 0.5 + 0.6 * uy))
-            text.setPos(r * math.sin(br), r * math.cos(br))
+            return r * math.sin(br), r * math.cos(br), 0.5 - 0.6 * ux, 0.5 + 0.6 * uy
 
         yield
-        self.polar_hour_items = yield from self._draw_hours(p, self._polar_items, self._polar_texts,
-                                                 chart, polar_xy, place)
+        self.polar_hour_labels = self._draw_hours(p, self._polar_items, self._polar_labels,
+                                                  chart, polar_xy, place)
         self.polar_path_items, self._pick["polar"] = yield from self._draw_paths(
             p, self._polar_items, chart, polar_xy, polar_xy)
         self._set_day(self._polar_items, chart.day, polar_xy)

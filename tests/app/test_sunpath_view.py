@@ -85,19 +85,20 @@ def test_switching_time_basis_relabels_the_hour_lines(qtbot, make_ctx, idle):
     ctx = make_ctx("larkmoor-dairy")
     view = _open(qtbot, ctx, idle, date=(2023, 6, 21))
     assert view.basis.currentData() == ctx.prefs.time_basis == "clock"
-    clock_pos = {h: (t.pos().x(), t.pos().y()) for h, (_, t) in view.hour_items.items()}
+    clock_pos = {h: (lb.x, lb.y) for h, lb in view.hour_labels.items()}
     clock_caption = view.table_caption.text()
     assert "clock time" in view.legend.text()
     view.basis.setCurrentIndex(view.basis.findData("solar"))
     idle(ctx.runner)
-    solar_pos = {h: (t.pos().x(), t.pos().y()) for h, (_, t) in view.hour_items.items()}
+    solar_pos = {h: (lb.x, lb.y) for h, lb in view.hour_labels.items()}
     # at 12:00 apparent solar time the sun is due south (definition of solar
     # time, Duffie & Beckman 2013 sec. 1.5): the "12" label sits on azimuth 180,
     # within 0.2 deg; on the clock (BST, 13:00 is near solar noon at 2.48 W) it
     # sits well east of south.
     assert solar_pos[12][0] == pytest.approx(180.0, abs=0.2)
     assert clock_pos[12][0] < 170.0
-    assert view.hour_items[12][1].toPlainText() == "12"
+    assert view.hour_labels[12].text == "12"
+    assert view._cart_labels.label("12") == view.hour_labels[12]
     assert "solar time" in view.legend.text() and "solar time" in view.table_caption.text()
     assert view.table_caption.text() != clock_caption
     assert view.events_model.horizontalHeaderItem(1).text() == "Sunrise\n(hh:mm)"
@@ -182,4 +183,4 @@ def test_render_screenshots(qtbot, make_ctx, idle, artefacts_dir, demo, date):
     path = os.path.join(artefacts_dir, f"sunpath_{demo}.png")
     assert view.grab().save(path)
     assert os.path.getsize(path) > 10_000
-    assert len(view.path_items) == 16 and view.hour_items
+    assert len(view.path_items) == 16 and view.hour_labels

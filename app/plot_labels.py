@@ -1,0 +1,92 @@
+"""Many small text labels on a pyqtgraph plot as one painted item.
+
+A pyqtgraph ``TextItem`` is three graphics items with Python-side bounding
+and transform code; a chart with dozens of them (the hour labels of a sun
+path) spends most of each redraw, after every data or range change, in that
+bookkeeping. :class:`LabelLayer` keeps the labels as plain data and draws
+them all in one ``paint`` call, at a fixed screen size, each anchored to a
+point in data coordinates the way ``TextItem`` anchors are read.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import pyqtgraph as pg
+from PySide6.QtCore import QPointF, QRectF, Qt
+from PySide6.QtGui import QColor, QFont, QFontMetricsF
+
+
+@dataclass(frozen=True)
+class Label:
+    """One label: ``text`` at data point (``x``, ``y``); the anchor is the fraction
+    of the label box's width and height that sits on the point ((0.5, 1.0):
+    centred above it; values outside 0..1 leave a gap)."""
+
+    x: float
+    y: float
+    text: str
+    anchor_x: float = 0.5
+    anchor_y: float = 0.5
+
+
+class LabelLayer(pg.GraphicsObject):
+    """All of a chart's small labels, drawn in one pass on a translucent fill."""
+
+    PAD_PX = 2.0
+
+    def __init__(self, font: QFont, color, fill=(255, 255, 255, 190)):
+        super().__init__()
+        self._font = QFont(font)
+        self._color = pg.mkColor(color)
+        self._fill = QColor(*fill) if isinstance(fill, tuple) else pg.mkColor(fill)
+        self._labels: tuple[Label, ...] = ()
+        self._metrics = QFontMetricsF(self._font)
+
+    # -- data -------------------------------------------------------------------------
+    @property
+    def labels(self) -> tuple[Label, ...]:
+        return self._labels
+
+    def set_labels(self, labels) -> None:
+        labels = tuple(labels)
+        if labels == self._labels:
+            return
+        self._labels = labels
+        self.update()
+
+    def label(self, text: str) -> Label | None:
+        """The first label reading ``text`` (None if there is none)."""
+        return next((lb for lb in self._labels if lb.text == text), None)
+
+    # -- pyqtgraph / QGraphicsItem ----------------------------------------------------
+    def dataBounds(self, ax, frac=1.0, orthoRange=None):
+        return None                       # labels never widen the auto range
+
+    def boundingRect(self) -> QRectF:
+        r = self.viewRect()
+        return QRectF() if r is None else r
+
+    def viewRangeChanged(self) -> None:
+        self.prepareGeometryChange()
+        self.update()
+
+    def paint(self, p, *args) -> None:
+        if not self._labels:
+            return
+        tr = p.transform()                # item to device coordinates while painting
+        fm = self._metrics
+        h = fm.height()
+        p.save()
+        p.resetTransform()
+        p.setFont(self._font)
+        p.setPen(self._color)
+        pad = self.PAD_PX
+        for lb in self._labels:
+            pt = tr.map(QPointF(lb.x, lb.y))
+            w = fm.horizontalAdvance(lb.text) + 2 * pad
+            box = QRectF(pt.x() - lb.anchor_x * w, pt.y() - lb.anchor_y * h, w, h)
+            if self._fill.alpha():
+                p.fillRect(box, self._fill)
+            p.drawText(box, Qt.AlignmentFlag.AlignCenter, lb.text)
+        p.restore()
