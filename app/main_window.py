@@ -18,6 +18,7 @@ from PySide6.QtWidgets import (
     QMessageBox,
     QProgressBar,
     QPushButton,
+    QSizePolicy,
     QStackedWidget,
     QVBoxLayout,
     QWidget,
@@ -90,6 +91,13 @@ class MainWindow(QMainWindow):
         self.cancel_button = QPushButton("Cancel")
         self.cancel_button.setToolTip("Stop the computations in progress")
         self.cancel_button.clicked.connect(lambda: self.runner.cancel(None))
+        # hiding the progress bar and the button, or new status text, must not re-lay out
+        # the status bar (it costs a turn of the event loop each time)
+        for w in (self.progress, self.cancel_button):
+            policy = w.sizePolicy()
+            policy.setRetainSizeWhenHidden(True)
+            w.setSizePolicy(policy)
+        self.status_label.setSizePolicy(QSizePolicy.Policy.Ignored, QSizePolicy.Policy.Preferred)
         sb.addWidget(self.status_label, 1)
         sb.addPermanentWidget(self.progress)
         sb.addPermanentWidget(self.cancel_button)
@@ -343,10 +351,14 @@ class MainWindow(QMainWindow):
 
     def _on_progress(self, label: str, fraction: float, stage: str) -> None:
         value = int(round(100 * max(0.0, min(1.0, fraction))))
-        # QProgressBar repaints synchronously on setValue: only big steps are worth it
-        if abs(value - self.progress.value()) >= 10 or value in (0, 100):
-            if value != self.progress.value():
-                self.progress.setValue(value)
+        # QProgressBar.setValue repaints at once, and a synchronous repaint flushes every
+        # pending repaint of the window (all the charts) in this turn: with updates off
+        # the value is only stored, and turning them back on schedules a normal repaint
+        if value != self.progress.value() and (abs(value - self.progress.value()) >= 10
+                                               or value in (0, 100)):
+            self.progress.setUpdatesEnabled(False)
+            self.progress.setValue(value)
+            self.progress.setUpdatesEnabled(True)
         text = f"{label}: {stage}" if stage else label
         if text != self.status_label.text():
             self.status_label.setText(text)

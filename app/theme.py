@@ -15,7 +15,7 @@ from __future__ import annotations
 import pyqtgraph as pg
 from PySide6.QtCore import Qt
 from PySide6.QtGui import QColor, QFont, QPalette
-from PySide6.QtWidgets import QApplication
+from PySide6.QtWidgets import QApplication, QGraphicsItem
 
 ACCENT = "#2f6d8c"          # slate blue: selection, bold day path, recommended option
 ACCENT_SOFT = "#dfeaf1"
@@ -122,3 +122,16 @@ def style_plot(plot: pg.PlotItem, left: str, bottom: str) -> None:
         ax.setPen(pg.mkPen(MUTED))
         ax.setTextPen(pg.mkPen(TEXT))
         ax.setTickFont(plot_font(9))
+    cache_axes(plot)
+
+
+def cache_axes(plot: pg.PlotItem) -> None:
+    """Keep each axis's rendering in a pixmap that Qt reuses until the axis changes.
+
+    An axis replays its recorded ticks, labels and grid lines on every repaint
+    that touches it (with a grid, that is any change in the plot); replaying
+    text is slow. The cache is for the screen only: the sheet draws its own
+    charts.
+    """
+    for name in ("left", "bottom", "right", "top"):
+        plot.getAxis(name).setCacheMode(QGraphicsItem.CacheMode.DeviceCoordinateCache)

@@ -23,7 +23,9 @@ from __future__ import annotations
 import hashlib
 import io
 import json
+from collections.abc import Callable
 from dataclasses import dataclass, fields
+from typing import TYPE_CHECKING
 
 import numpy as np
 import pandas as pd
@@ -33,6 +35,9 @@ from .site import Site, site_to_dict
 from .skyyear import SkyYear, sky_year
 from .tilt import MONTH_NAMES, OPTION_KINDS, StudyOption, StudyOptions, TiltStudy, schedule_poa
 from .timegrid import MIDPOINT_CONVENTION
+
+if TYPE_CHECKING:
+    from .sunchart import SunChart
 
 #: Month abbreviations used as CSV row labels.
 MONTH_ABBR = tuple(m[:3] for m in MONTH_NAMES)
@@ -535,8 +540,75 @@ def sheet_figures(study: TiltStudy, sky: SkyYear | None = None) -> SheetFigures:
         digest=input_digest(site, opts), version=tool_version())
 
 
-__all__ = ["MODEL_NAMES", "MONTH_ABBR", "SHEET_CAUTIONS", "check_option_kinds", "OptionHorizonLoss", "SheetFigures",
+__all__ = ["MODEL_NAMES", "MONTH_ABBR", "SHEET_CAUTIONS", "check_option_kinds", "OptionHorizonLoss",
+           "SUN_STEP_MIN", "SheetData", "SheetFigures", "sheet_data",
            "hourly_csv_text", "hourly_poa_table", "input_digest",
            "monthly_csv_text", "monthly_table", "option_horizon_loss", "options_csv_text",
            "options_table", "options_to_dict", "select_options", "sheet_figures",
            "study_document", "study_json_text", "tool_version"]
+
+
+#: Sampling step of the sun-path chart's day paths on paper, minutes.
+SUN_STEP_MIN = 10.0
+
+
+@dataclass(frozen=True)
+class SheetData:
+    """The engine's part of one sheet: the study, its sky, the figures and the sun chart."""
+
+    study: TiltStudy
+    sky: SkyYear
+    figures: SheetFigures
+    sun: SunChart
+
+
+def sheet_data(site: Site, study: TiltStudy | StudyOptions | None = None,
+               time_basis: str = "clock", sun_step_min: float = SUN_STEP_MIN,
+               progress: Callable[[float, str], None] | None = None) -> SheetData:
+    """Compute everything a feasibility sheet prints, short of laying out the pages.
+
+    Parameters
+    ----------
+    site : Site
+    study : TiltStudy or StudyOptions, optional
+        A finished study of ``site`` to use as it is, or the options to run one
+        with (default options when None).
+    time_basis : {"clock", "solar"}
+        Hour lines of the sun chart (:func:`tiltyard.engine.sunchart.sun_chart`).
+    sun_step_min : float
+        Sampling step of the sun chart's day paths, minutes.
+    progress : callable, optional
+        ``progress(fraction, stage)``; may raise to cancel.
+
+    Returns
+    -------
+    SheetData
+
+    Notes
+    -----
+    Composes :func:`tiltyard.engine.tilt.tilt_study`, :func:`sky_year`,
+    :func:`sheet_figures` and :func:`tiltyard.engine.sunchart.sun_chart`, whose
+    docstrings give the methods and their references; the sun chart is drawn for
+    21 June of the study's reference year.
+    """
+    from .sunchart import sun_chart
+    from .tilt import tilt_study
+
+    def report(fraction, stage):
+        if progress is not None:
+            progress(fraction, stage)
+
+    if not isinstance(study, TiltStudy):
+        opts = study if isinstance(study, StudyOptions) else StudyOptions()
+        study = tilt_study(site, opts, progress=lambda f, st: report(0.75 * f, st))
+    elif study.site != site:
+        raise ValueError("the study given is of another site (or of an earlier version of it)")
+    report(0.77, "sky for the hourly figures")
+    sky = sky_year(site, study.options_used.irradiance)
+    report(0.86, "sheet figures")
+    figures = sheet_figures(study, sky)
+    report(0.93, "sun path")
+    sun = sun_chart(site, f"{study.options_used.irradiance.year}-06-21", basis=time_basis,
+                    step_min=sun_step_min)
+    report(1.0, "done")
+    return SheetData(study, sky, figures, sun)

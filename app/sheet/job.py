@@ -1,7 +1,9 @@
 """The sheet from a site, end to end: study, sky, figures, sun chart, layout.
 
-:func:`compute_sheet` is what the command line runs and what the Sheet view
-submits to the task runner; it only calls engine functions and the layout.
+:func:`compute_sheet` is what the command line runs: the engine's
+:func:`tiltyard.engine.exports.sheet_data`, then :func:`lay_out`. The Sheet
+view runs the two apart: the engine part in a worker process, the layout
+(which needs Qt) in a thread.
 """
 
 from __future__ import annotations
@@ -9,17 +11,14 @@ from __future__ import annotations
 from collections.abc import Callable
 from dataclasses import dataclass
 
-from tiltyard.engine.exports import SheetFigures, sheet_figures
+from tiltyard.engine.exports import SUN_STEP_MIN, SheetData, SheetFigures, sheet_data
 from tiltyard.engine.site import Site
-from tiltyard.engine.skyyear import SkyYear, sky_year
-from tiltyard.engine.sunchart import SunChart, sun_chart
-from tiltyard.engine.tilt import StudyOptions, TiltStudy, tilt_study
+from tiltyard.engine.skyyear import SkyYear
+from tiltyard.engine.sunchart import SunChart
+from tiltyard.engine.tilt import StudyOptions, TiltStudy
 
 from .content import SheetMeta
 from .pages import SheetDocument, build_sheet
-
-#: Sampling step of the sun-path chart's day paths on paper, minutes.
-SUN_STEP_MIN = 10.0
 
 
 @dataclass(frozen=True)
@@ -31,6 +30,13 @@ class SheetResult:
     figures: SheetFigures
     sun: SunChart
     document: SheetDocument
+
+
+def lay_out(data: SheetData, meta: SheetMeta | None = None, paper: str = "a4") -> SheetResult:
+    """Lay out the pages of the sheet on the engine's :class:`SheetData`."""
+    meta = meta or SheetMeta()
+    document = build_sheet(data.figures, data.sun, meta, paper)
+    return SheetResult(data.study, data.sky, data.figures, data.sun, document)
 
 
 def compute_sheet(site: Site, study: TiltStudy | StudyOptions | None = None,
@@ -55,22 +61,12 @@ def compute_sheet(site: Site, study: TiltStudy | StudyOptions | None = None,
         if progress is not None:
             progress(fraction, stage)
 
-    if not isinstance(study, TiltStudy):
-        opts = study if isinstance(study, StudyOptions) else StudyOptions()
-        study = tilt_study(site, opts, progress=lambda f, st: report(0.7 * f, st))
-    elif study.site != site:
-        raise ValueError("the study given is of another site (or of an earlier version of it)")
-    report(0.72, "sky for the hourly figures")
-    sky = sky_year(site, study.options_used.irradiance)
-    report(0.8, "sheet figures")
-    figures = sheet_figures(study, sky)
-    report(0.86, "sun path")
-    sun = sun_chart(site, f"{study.options_used.irradiance.year}-06-21", basis=meta.time_basis,
-                    step_min=SUN_STEP_MIN)
+    data = sheet_data(site, study, meta.time_basis, SUN_STEP_MIN,
+                      progress=lambda f, st: report(0.93 * f, st))
     report(0.93, "laying out the pages")
-    document = build_sheet(figures, sun, meta, paper)
+    result = lay_out(data, meta, paper)
     report(1.0, "done")
-    return SheetResult(study, sky, figures, sun, document)
+    return result
 
 
-__all__ = ["SUN_STEP_MIN", "SheetResult", "compute_sheet"]
+__all__ = ["SUN_STEP_MIN", "SheetResult", "compute_sheet", "lay_out"]

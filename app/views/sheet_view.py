@@ -37,16 +37,20 @@ from PySide6.QtWidgets import (
 )
 
 from tiltyard.engine.exports import (
+    SUN_STEP_MIN,
     hourly_csv_text,
     monthly_csv_text,
     options_csv_text,
+    sheet_data,
     study_json_text,
 )
 from tiltyard.engine.site import write_bytes_atomically
 from tiltyard.engine.tilt import StudyOptions, TiltStudy
 
-from ..sheet import PAPERS, SheetMeta, build_sheet, compute_sheet, page_image, pdf_bytes
+from ..engine_process import EngineCall
+from ..sheet import PAPERS, SheetMeta, build_sheet, page_image, pdf_bytes
 from ..sheet.content import option_name
+from ..sheet.job import lay_out
 from ..sheet.pdf import page_layout, paint_to
 from ..study_model import short_name
 from ..widgets import View
@@ -286,13 +290,25 @@ class SheetView(View):
         self.status.setText("computing the sheet…" if not isinstance(study, TiltStudy)
                             else "laying out the sheet…")
 
-        def job(progress):
-            result = compute_sheet(site, study, meta, paper, progress)
-            images = tuple(page_image(result.document, i, dpi)
-                           for i in range(result.document.page_count))
-            return _Preview(result, result.document, images, dpi)
+        # the engine's part in a worker process (it holds no lock the window needs), then
+        # the layout and the preview images, which need Qt, in a thread
+        def lay_out_job(data):
+            if isinstance(study, TiltStudy):      # keep the published study, not its copy
+                data = replace(data, study=study)
 
-        self.ctx.runner.submit(self.channel("sheet"), job, self._show, label="Sheet")
+            def job(progress):
+                progress(0.5, "laying out the pages")
+                result = lay_out(data, meta, paper)
+                images = tuple(page_image(result.document, i, dpi)
+                               for i in range(result.document.page_count))
+                return _Preview(result, result.document, images, dpi)
+            self.ctx.runner.submit(self.channel("sheet"), job, self._show, label="Sheet",
+                                   debounce_ms=0)
+
+        self.ctx.runner.submit_call(
+            self.channel("sheet"),
+            EngineCall(sheet_data, (site, study, meta.time_basis, SUN_STEP_MIN)),
+            lay_out_job, label="Sheet")
 
     def _relayout(self) -> None:
         """New paper or preferences on the same figures: lay out and render again."""
