@@ -30,6 +30,30 @@ def warm_up() -> None:
             return
 
 
+def prepare_ahead(window) -> threading.Thread:
+    """After the window is shown: load the engine and the views' modules in a thread,
+    then, on the GUI thread one short turn at a time, make the charts and build the
+    views the user has not opened yet. Returns the loading thread."""
+    from PySide6.QtCore import QTimer
+
+    from . import plots
+
+    loader = threading.Thread(target=warm_up, name="tiltyard-warm-up", daemon=True)
+    loader.start()
+    poll = QTimer(window)
+    poll.setInterval(50)
+
+    def check() -> None:
+        if loader.is_alive():
+            return
+        poll.stop()
+        if not window.runner.closed:
+            plots.prepare(then=window.build_views_ahead)
+    poll.timeout.connect(check)
+    poll.start()
+    return loader
+
+
 def create_window(site_arg: str | None = None):
     """Build the main window on SITE (a file or a demo name), or the default demo.
 
@@ -47,7 +71,7 @@ def run(site_arg: str | None = None, argv: list[str] | None = None) -> int:
     """Open the app and run its event loop; returns the exit status."""
     from PySide6.QtWidgets import QApplication
 
-    from . import engine_process, settings, theme
+    from . import engine_process, plots, settings, theme
     app = QApplication.instance() or QApplication(argv or sys.argv[:1])
     app.setOrganizationName(settings.ORGANISATION)
     app.setApplicationName(settings.APPLICATION)
@@ -58,7 +82,7 @@ def run(site_arg: str | None = None, argv: list[str] | None = None) -> int:
     # start the engine's worker processes and load the engine (pvlib, scipy, pandas)
     # here too, while the user reads the first view
     engine_process.start_pool()
-    threading.Thread(target=warm_up, name="tiltyard-warm-up", daemon=True).start()
+    prepare_ahead(window)
     if os.environ.get(SMOKE_ENV):
         # smoke tests and the start-up benchmark: say when the window is usable, then quit
         from PySide6.QtCore import QTimer
@@ -74,3 +98,4 @@ def run(site_arg: str | None = None, argv: list[str] | None = None) -> int:
     finally:
         window.runner.shutdown()
         engine_process.shutdown_pool()
+        plots.discard()

@@ -31,7 +31,7 @@ from tiltyard.engine.site import Site, SiteError, demo_site_names
 from . import settings
 from .context import AppContext
 from .document import SiteDocument
-from .tasks import TaskRunner
+from .tasks import TURN_MS, TaskRunner
 from .views import VIEW_TITLES, view_class
 from .widgets import CautionLabel, MessageBanner
 
@@ -134,6 +134,23 @@ class MainWindow(QMainWindow):
         self.stack.removeWidget(placeholder)
         placeholder.deleteLater()
         return view
+
+    def build_views_ahead(self) -> None:
+        """Build the views not built yet, one per event-loop turn, in navigation order.
+
+        The app calls this once start-up is done (and charts are made ahead, see
+        :mod:`tiltyard.app.plots`), so a view is ready before it is first shown.
+        """
+        def step() -> None:
+            if self.runner.closed:
+                return
+            for title in VIEW_TITLES:
+                if not self.views.is_built(title):
+                    self.views[title]
+                    QTimer.singleShot(TURN_MS, step)
+                    return
+
+        QTimer.singleShot(TURN_MS, step)
 
     def show_view(self, title: str):
         """Switch to a view by its title and return it."""
@@ -393,6 +410,9 @@ class _LazyViews(Mapping):
         if title not in self._built:
             self._built[title] = self._window._build_view(title)
         return self._built[title]
+
+    def is_built(self, title: str) -> bool:
+        return title in self._built
 
     def __iter__(self):
         return iter(VIEW_TITLES)

@@ -37,6 +37,11 @@ __all__ = ["Cancelled", "DEBOUNCE_MS", "EngineCall", "TaskRunner"]
 #: Debounce between the last edit and the start of the computation, ms.
 DEBOUNCE_MS = 150
 
+#: Delay between two drawing steps, ms. Not 0: a zero-delay single shot is a posted
+#: event, and Qt delivers every posted event (those posted meanwhile too) before it
+#: looks at timers and input again, so zero-delay steps would all run in one turn.
+TURN_MS = 1
+
 
 @dataclass
 class _Task:
@@ -165,6 +170,11 @@ class TaskRunner(QObject):
                 task.cancel_event.set()
         self._emit_busy()
 
+    @property
+    def closed(self) -> bool:
+        """True once :meth:`shutdown` has been called."""
+        return self._closed
+
     def is_busy(self) -> bool:
         return bool(self._pending) or bool(self._running) or self._drawing > 0
 
@@ -208,7 +218,7 @@ class TaskRunner(QObject):
                     return self._done_drawing()
                 if i >= len(steps):
                     return self._done_drawing()
-                QTimer.singleShot(0, lambda: run(i, pending))
+                QTimer.singleShot(TURN_MS, lambda: run(i, pending))
             except RuntimeError:       # the runner was deleted while steps were queued
                 return None
 

@@ -12,6 +12,8 @@
 
 from __future__ import annotations
 
+import functools
+
 import pyqtgraph as pg
 from PySide6.QtCore import Qt
 from PySide6.QtGui import QColor, QFont, QPalette
@@ -51,14 +53,19 @@ def series_color(i: int) -> QColor:
     return QColor(SERIES[i % len(SERIES)])
 
 
+@functools.cache
+def _viridis():
+    return pg.colormap.get("viridis")
+
+
 def month_color(month: int) -> QColor:
     """Colour of month 1..12 on the trimmed viridis ramp."""
-    cmap = pg.colormap.get("viridis")
-    return cmap.map(0.05 + 0.80 * (month - 1) / 11.0, mode="qcolor")
+    return _viridis().map(0.05 + 0.80 * (month - 1) / 11.0, mode="qcolor")
 
 
+@functools.cache
 def percent_colormap():
-    """Sequential map for 'percent of the optimum' grids."""
+    """Sequential map for 'percent of the optimum' grids (read once from pyqtgraph's files)."""
     return pg.colormap.get("cividis")
 
 

@@ -39,7 +39,7 @@ from tiltyard.engine.horizon_io import read_horizon_csv, write_horizon_csv
 from tiltyard.engine.horizon_loss import DEFAULT_STEP_MIN, horizon_loss
 from tiltyard.engine.site import HorizonProfile, Obstacle, SiteError
 
-from .. import theme
+from .. import plots, theme
 from ..engine_process import EngineCall
 from ..widgets import CopyableTable, ValidatedField, View
 
@@ -240,7 +240,7 @@ class HorizonView(View):
         chart_box = QWidget()
         cl = QVBoxLayout(chart_box)
         cl.setContentsMargins(0, 0, 0, 0)
-        self.plot_widget = pg.PlotWidget()
+        self.plot_widget = plots.plot_widget()
         self.plot_widget.setMinimumHeight(300)
         self.plot = self.plot_widget.getPlotItem()
         theme.style_plot(self.plot, "Elevation (°)", "Azimuth (° clockwise from true north)")

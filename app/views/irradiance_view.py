@@ -41,7 +41,7 @@ from PySide6.QtWidgets import (
 from tiltyard.engine.daycurves import compare_options, irradiance_day
 from tiltyard.engine.timegrid import REFERENCE_YEAR
 
-from .. import theme
+from .. import plots, theme
 from ..engine_process import EngineCall
 from ..weather_dialog import WeatherDialog, finding_text, summary_text
 from ..widgets import CopyableTable, View
@@ -264,7 +264,8 @@ class IrradianceView(View):
         self.day_title.setStyleSheet("font-weight: 600;")
         left.addWidget(self.day_title)
         self.day_widget = pg.GraphicsLayoutWidget()
-        self.day_plot = self.day_widget.addPlot(row=0, col=0)
+        self.day_plot = plots.plot_item()
+        self.day_widget.addItem(self.day_plot, row=0, col=0)
         theme.style_plot(self.day_plot, "Irradiance (W/m²)", "Local clock time (h)")
         self.day_plot.getAxis("left").setWidth(62)     # room for "1400" beside the label
         self.day_plot.setMouseEnabled(x=False, y=False)
@@ -293,7 +294,8 @@ class IrradianceView(View):
         self.bars_title.setStyleSheet("font-weight: 600;")
         right.addWidget(self.bars_title)
         self.bars_widget = pg.GraphicsLayoutWidget()
-        self.bars_plot = self.bars_widget.addPlot(row=0, col=0)
+        self.bars_plot = plots.plot_item()
+        self.bars_widget.addItem(self.bars_plot, row=0, col=0)
         theme.style_plot(self.bars_plot, "Mean daily irradiation (kWh/m²/day)", "Month")
         self.bars_plot.getAxis("left").setWidth(62)    # room for "4.5" beside the label
         self.bars_plot.setMouseEnabled(x=False, y=False)

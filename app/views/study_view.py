@@ -34,7 +34,7 @@ from PySide6.QtWidgets import (
 from tiltyard.engine.tilt import StudyOptions, tilt_study
 from tiltyard.engine.timegrid import REFERENCE_YEAR
 
-from .. import theme
+from .. import plots, theme
 from ..engine_process import EngineCall
 from ..study_model import (
     COL_OBJECTIVE,
@@ -67,6 +67,16 @@ _OPTIMUM_WORDS = {"annual": "fixed optimum", "worst-month": "worst-month optimum
                   "months": "chosen-months optimum"}
 
 _COMPASS_8 = ("N", "NE", "E", "SE", "S", "SW", "W", "NW")
+
+
+def _colour_bar() -> pg.ColorBarItem:
+    """The map's colour scale (a plot of its own: made ahead, see :mod:`..plots`)."""
+    return pg.ColorBarItem(values=(50, 100), colorMap=theme.percent_colormap(),
+                           label="% of optimum", interactive=False, width=14, pen=theme.MUTED)
+
+
+COLOUR_BAR = "tilt study colour bar"
+plots.register(COLOUR_BAR, _colour_bar)
 
 
 def _float(text: str, what: str) -> float:
@@ -313,7 +323,7 @@ class StudyView(View):
         lay.setContentsMargins(0, 0, 0, 0)
         lay.setSpacing(6)
 
-        self.curve_plot = pg.PlotWidget()
+        self.curve_plot = plots.plot_widget()
         cp = self.curve_plot.getPlotItem()
         theme.style_plot(cp, "Annual irradiation (kWh/m²)", "Tilt (°)")
         cp.setTitle("Annual irradiation vs tilt", size="9.5pt")
@@ -327,7 +337,7 @@ class StudyView(View):
         cp.getAxis("bottom").setTicks([[(t, f"{t}") for t in range(0, 91, 15)]])
         lay.addWidget(self.curve_plot, 3)
 
-        self.map_plot = pg.PlotWidget()
+        self.map_plot = plots.plot_widget()
         mp = self.map_plot.getPlotItem()
         theme.style_plot(mp, "Tilt (°)", "Azimuth (° from north, clockwise)")
         mp.setTitle("Tilt × azimuth, % of the best plane", size="9.5pt")
@@ -336,14 +346,12 @@ class StudyView(View):
         mp.hideButtons()
         self.map_image = pg.ImageItem(axisOrder="row-major")
         mp.addItem(self.map_image)
-        self.map_bar = pg.ColorBarItem(values=(50, 100), colorMap=theme.percent_colormap(),
-                                       label="% of optimum", interactive=False, width=14,
-                                       pen=theme.MUTED)
+        self.map_bar = plots.take(COLOUR_BAR)
         self.map_bar.setImageItem(self.map_image, insert_in=mp)
         mp.getAxis("left").setTicks([[(t, f"{t}") for t in range(0, 91, 15)]])
         lay.addWidget(self.map_plot, 4)
 
-        self.timeline_plot = pg.PlotWidget()
+        self.timeline_plot = plots.plot_widget()
         tp = self.timeline_plot.getPlotItem()
         theme.style_plot(tp, "", "Month (block labels: tilt)")
         tp.setTitle("Schedules across the year", size="9.5pt")

@@ -38,7 +38,7 @@ from PySide6.QtWidgets import (
 
 from tiltyard.engine.sunchart import sun_chart
 
-from .. import theme
+from .. import plots, theme
 from ..engine_process import EngineCall
 from ..plot_labels import Label, LabelLayer
 from ..widgets import CopyableTable, View
@@ -208,8 +208,8 @@ class SunPathView(View):
         cl = QHBoxLayout(charts)
         cl.setContentsMargins(0, 0, 0, 0)
         cl.setSpacing(6)
-        self.cart = pg.PlotWidget()
-        self.polar = pg.PlotWidget()
+        self.cart = plots.plot_widget()
+        self.polar = plots.plot_widget()
         for w in (self.cart, self.polar):
             w.setBackground("w")
             w.setMinimumHeight(260)

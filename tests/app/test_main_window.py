@@ -40,6 +40,53 @@ def test_opens_on_the_demo_site_with_every_view(window):
         assert w.show_view(t) is w.current_view()
 
 
+def test_views_and_charts_are_made_ahead_after_start_up(window, qtbot, idle):
+    """What ``tiltyard`` does after show: the hidden views are built a turn at a time
+    from plots made ahead, and a view built ahead still computes when first shown."""
+    from tiltyard.app import plots
+    from tiltyard.app.desktop import prepare_ahead
+    from tiltyard.app.main_window import VIEW_TITLES
+
+    plots.discard()
+    w = window()
+    assert [t for t in VIEW_TITLES if w.views.is_built(t)] == ["Site"]
+    loader = prepare_ahead(w)
+    qtbot.waitUntil(lambda: all(w.views.is_built(t) for t in VIEW_TITLES), timeout=60000)
+    assert not loader.is_alive()
+    assert plots.ready_count("plot") == 0          # the eight made ahead were all taken
+    assert w.current_view() is w.views["Site"]      # nothing else was shown meanwhile
+    sun = w.show_view("Sun path")
+    idle(w.runner)
+    assert sun.chart is not None and sun.chart.site_name == w.document.site.name
+    assert len(sun.polar_hour_labels) > 0
+
+
+def test_drawing_steps_let_timers_run_between_them(qtbot):
+    """A zero-delay single shot would run every step in one turn; TURN_MS steps do not."""
+    from PySide6.QtCore import QTimer
+
+    from tiltyard.app.tasks import TaskRunner
+
+    runner = TaskRunner()
+    order = []
+    beat = QTimer()
+    beat.setInterval(0)
+    beat.timeout.connect(lambda: order.append("beat"))
+
+    def step(name):
+        return lambda: order.append(name)
+
+    beat.start()
+    runner.run_in_stages("test", [step(f"s{i}") for i in range(4)])
+    qtbot.waitUntil(lambda: not runner.is_busy(), timeout=5000)
+    beat.stop()
+    runner.shutdown()
+    steps = [i for i, x in enumerate(order) if x != "beat"]
+    assert [order[i] for i in steps] == ["s0", "s1", "s2", "s3"]
+    # the heartbeat got a turn between every two steps
+    assert all(b - a > 1 for a, b in zip(steps, steps[1:], strict=False))
+
+
 def test_save_reopen_gives_the_same_site(window, tmp_path, qtbot):
     w = window()
     site_view = w.show_view("Site")
