@@ -6,6 +6,7 @@ Nothing here computes irradiation: the rows are the figures of an engine
 
 from __future__ import annotations
 
+import functools
 import math
 from datetime import date, timedelta
 
@@ -186,12 +187,7 @@ class StudyTableModel(QAbstractTableModel):
                 return int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
             return int(Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignVCenter)
         if role == Qt.ItemDataRole.FontRole:
-            f = QFont()
-            if row["recommended"]:
-                f.setBold(True)
-            if row["ceiling"]:
-                f.setItalic(True)
-            return f
+            return _font(row["recommended"], row["ceiling"])
         if role == Qt.ItemDataRole.BackgroundRole and row["recommended"]:
             return QColor(theme.ACCENT_SOFT)
         if role == Qt.ItemDataRole.ForegroundRole:
@@ -203,6 +199,14 @@ class StudyTableModel(QAbstractTableModel):
 
     def is_recommended(self, row: int) -> bool:
         return bool(self._rows[row]["recommended"])
+
+
+@functools.cache
+def _font(bold: bool, italic: bool) -> QFont:
+    f = QFont()
+    f.setBold(bold)
+    f.setItalic(italic)
+    return f
 
 
 def _pct(v) -> str:

@@ -21,6 +21,8 @@ from PySide6.QtWidgets import (
 from tiltyard.engine.cautions import CAUTION
 from tiltyard.engine.site import SiteError
 
+from .tasks import TURN_MS
+
 
 class MessageBanner(QFrame):
     """A non-modal message strip above the views; closes on request."""
@@ -84,7 +86,53 @@ class View(QWidget):
         super().__init__(parent)
         self.ctx = ctx
         self._stale = True
+        self._deferred: dict[str, list] = {}
         ctx.document.site_changed.connect(self._on_site_changed)
+
+    def draw_in_stages(self, owner: str, steps) -> None:
+        """Draw a result through the runner's ``run_in_stages``, now if the view is
+        visible, else once it is next shown.
+
+        Drawing into a hidden view would pile up repaints that all fall due in
+        the turn the view is shown; instead the view is shown as it was, and the
+        newest result kept for it is drawn over the following turns.
+        """
+        steps = [*steps, self.cache_chart_items]
+        if self.isVisible():
+            self._deferred.pop(owner, None)
+            self.ctx.runner.run_in_stages(owner, steps)
+        else:
+            self._deferred[owner] = steps
+            self.ctx.runner.run_in_stages(owner, ())    # abandon an older drawing
+
+    def cache_chart_items(self) -> None:
+        """Keep each drawn curve, bar set, image and marker set of this view's charts as
+        a device pixmap that Qt reuses until the item changes.
+
+        Stroking wide antialiased curves is most of what a chart costs to repaint, and
+        a view repaints all of its charts whenever it is shown again; text items keep
+        no cache (they follow the view's scale).
+        """
+        import pyqtgraph as pg
+        from PySide6.QtWidgets import QGraphicsItem
+
+        kinds = (pg.PlotCurveItem, pg.IsocurveItem, pg.BarGraphItem, pg.ImageItem,
+                 pg.ScatterPlotItem)
+        cached = QGraphicsItem.CacheMode.DeviceCoordinateCache
+        for view in self.findChildren(pg.GraphicsView):
+            for item in view.scene().items():
+                if isinstance(item, kinds) and item.cacheMode() != cached:
+                    item.setCacheMode(cached)
+
+    def showEvent(self, event) -> None:  # noqa: N802 - Qt override
+        super().showEvent(event)
+        for owner, steps in list(self._deferred.items()):
+            def start(owner=owner, steps=steps) -> None:
+                # only if no newer result has been drawn or kept meanwhile
+                if self._deferred.get(owner) is steps:
+                    del self._deferred[owner]
+                    self.ctx.runner.run_in_stages(owner, steps)
+            QTimer.singleShot(TURN_MS, start)     # after the view's first paint
 
     def _on_site_changed(self, site) -> None:
         self._stale = True

@@ -575,7 +575,7 @@ class IrradianceView(View):
     def _show_rows(self, rows) -> None:
         self.rows = tuple(rows)
         # bars, notes and table in separate event-loop turns: the GUI stays responsive
-        self.ctx.runner.run_in_stages(self.channel("rows"), (
+        self.draw_in_stages(self.channel("rows"), (
             self._draw_bars, self._show_row_notes, self._fill_table))
 
     def _draw_bars(self):

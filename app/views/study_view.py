@@ -555,7 +555,7 @@ class StudyView(View):
         self._fit_headers()
         self.table.setColumnHidden(COL_OBJECTIVE, study.options_used.objective == "annual")
         self._show_recommendation(study)
-        self.ctx.runner.run_in_stages(self.channel("draw"), (
+        self.draw_in_stages(self.channel("draw"), (
             lambda: self._draw_curve(study),
             lambda: self._draw_map(study),
             lambda: self._draw_timeline(study),

@@ -151,7 +151,8 @@ def polar_xy(azimuth_deg, elevation_deg):
 def _pen(color, width: float, style=Qt.PenStyle.SolidLine):
     pen = pg.mkPen(color, width=width)
     pen.setStyle(style)
-    pen.setCapStyle(Qt.PenCapStyle.RoundCap)
+    pen.setCapStyle(Qt.PenCapStyle.FlatCap)
+    pen.setJoinStyle(Qt.PenJoinStyle.BevelJoin)
     return pen
 
 
@@ -425,7 +426,7 @@ class SunPathView(View):
     # -- drawing ----------------------------------------------------------------------
     def _show_chart(self, chart) -> None:
         self.chart = chart
-        self.ctx.runner.run_in_stages(self.channel("draw"), (
+        self.draw_in_stages(self.channel("draw"), (
             lambda: self._draw_cartesian(chart),
             lambda: self._draw_cartesian_paths(chart),
             lambda: self._draw_polar(chart),
