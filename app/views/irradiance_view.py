@@ -515,6 +515,12 @@ class IrradianceView(View):
     # -- drawing --------------------------------------------------------------------------
     def _show_day(self, day, plane_label: str) -> None:
         self.day = day
+        self.draw_in_stages(self.channel("day drawing"), (
+            lambda: self._draw_day_curves(day, plane_label),
+            lambda: self._draw_day_notes(day)))
+
+    def _draw_day_curves(self, day, plane_label: str):
+        """The day's curves; a generator that pauses after each curve (``run_in_stages``)."""
         s = day.series
         x = day.clock_hours
         up = day.sun_up
@@ -540,6 +546,15 @@ class IrradianceView(View):
             else:
                 item.setData([], [])
             item.setVisible(show)
+            yield
+
+    def _draw_day_notes(self, day) -> None:
+        """Shading where the horizon hides the sun, the range, title, legend, totals."""
+        s = day.series
+        up = day.sun_up
+        data = {k: s[c] for k, c in (("poa", "poa_global"), ("ghi", "ghi"), ("dni", "dni"),
+                                      ("dhi", "dhi"), ("ghi_clear", "ghi_clear"),
+                                      ("dni_extra", "dni_extra"))}
         for r in self._shades:
             self.day_plot.removeItem(r)
         self._shades = []
