@@ -500,6 +500,9 @@ class HorizonView(View):
 
     def _show_line(self, profile: HorizonProfile) -> None:
         self._merged = profile
+        self.draw_in_stages(self.channel("line drawing"), (lambda: self._draw_line(profile),))
+
+    def _draw_line(self, profile: HorizonProfile) -> None:
         az = np.asarray(profile.azimuth_deg, dtype=float)
         el = np.asarray(profile.elevation_deg, dtype=float)
         if az.size == 0:
@@ -518,6 +521,9 @@ class HorizonView(View):
         self.horizon_curve.setFillLevel(self._y_range[0] - 100.0)
 
     def _show_loss(self, result) -> None:
+        self.draw_in_stages(self.channel("loss drawing"), (lambda: self._fill_loss(result),))
+
+    def _fill_loss(self, result) -> None:
         self.loss_model.setRowCount(0)
         for p in result.planes:
             name = "Horizontal" if p is result.horizontal else p.label
@@ -555,7 +561,7 @@ class HorizonView(View):
 
     # -- showing the site ----------------------------------------------------------
     def _on_site_changed(self, site) -> None:
-        self.show_site(site)
+        self.draw_in_stages(self.channel("site drawing"), (lambda: self.show_site(site),))
         super()._on_site_changed(site)
 
     def show_site(self, site) -> None:

@@ -542,6 +542,14 @@ class StudyView(View):
 
     def _show_study(self, study) -> None:
         self.study = study
+        self.draw_in_stages(self.channel("draw"), (
+            lambda: self._show_table(study),
+            lambda: self._draw_curve(study),
+            lambda: self._draw_map(study),
+            lambda: self._draw_timeline(study),
+            lambda: self.ctx.publish_study(study)))
+
+    def _show_table(self, study) -> None:
         self.status.setText("")
         irr = study.options_used.irradiance
         note = study.sky_note
@@ -555,11 +563,6 @@ class StudyView(View):
         self._fit_headers()
         self.table.setColumnHidden(COL_OBJECTIVE, study.options_used.objective == "annual")
         self._show_recommendation(study)
-        self.draw_in_stages(self.channel("draw"), (
-            lambda: self._draw_curve(study),
-            lambda: self._draw_map(study),
-            lambda: self._draw_timeline(study),
-            lambda: self.ctx.publish_study(study)))
 
     def _show_recommendation(self, study) -> None:
         rec = study.recommended

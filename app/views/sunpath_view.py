@@ -430,7 +430,9 @@ class SunPathView(View):
             lambda: self._draw_cartesian(chart),
             lambda: self._draw_cartesian_paths(chart),
             lambda: self._draw_polar(chart),
-            lambda: (self._show_legend(chart), self._show_day(chart), self._show_events(chart))))
+            lambda: self._show_legend(chart),
+            lambda: self._show_day(chart),
+            lambda: self._show_events(chart)))
 
     @staticmethod
     def _path_pen(curve):
@@ -645,8 +647,11 @@ class SunPathView(View):
                  "Day length\n(h)", "Elevation\nat noon (°)", "Sun clears\nhorizon\n(hh:mm)",
                  "Sun behind\nhorizon\n(hh:mm)", "Direct sun\n(h)"]
         m = self.events_model
-        m.clear()
-        m.setHorizontalHeaderLabels(heads)
+        hdr = self.table.horizontalHeader()
+        # fixed sections while filling: fitting a column to its contents after every
+        # appended row makes the fill quadratic
+        hdr.setSectionResizeMode(QHeaderView.ResizeMode.Fixed)
+        rows_in = []
         for r in chart.events.itertuples():
             polar = r.polar
             if polar in ("day", "night"):
@@ -673,8 +678,11 @@ class SunPathView(View):
                     it.setTextAlignment(Qt.AlignmentFlag.AlignRight
                                         | Qt.AlignmentFlag.AlignVCenter)
                 items.append(it)
+            rows_in.append(items)
+        m.clear()
+        m.setHorizontalHeaderLabels(heads)
+        for items in rows_in:
             m.appendRow(items)
-        hdr = self.table.horizontalHeader()
         hdr.setSectionResizeMode(QHeaderView.ResizeMode.Stretch)
         hdr.setSectionResizeMode(0, QHeaderView.ResizeMode.ResizeToContents)
         # room for all twelve months without scrolling
