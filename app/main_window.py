@@ -135,8 +135,9 @@ class MainWindow(QMainWindow):
         placeholder.deleteLater()
         return view
 
-    def build_views_ahead(self) -> None:
-        """Build the views not built yet, one per event-loop turn, in navigation order.
+    def build_views_ahead(self, then=None) -> None:
+        """Build the views not built yet, one per event-loop turn, in navigation order,
+        then call ``then`` (if given).
 
         The app calls this once start-up is done (and charts are made ahead, see
         :mod:`tiltyard.app.plots`), so a view is ready before it is first shown.
@@ -149,6 +150,8 @@ class MainWindow(QMainWindow):
                     self.views[title]
                     QTimer.singleShot(TURN_MS, step)
                     return
+            if then is not None:
+                then()
 
         QTimer.singleShot(TURN_MS, step)
 
