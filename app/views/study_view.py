@@ -117,6 +117,63 @@ def _azimuth_x(az_deg, equator_az: float):
     return a
 
 
+class StudyCharts(QWidget):
+    """The study's three charts (made ahead of need, see :mod:`..plots`)."""
+
+    def __init__(self):
+        super().__init__()
+        lay = QHBoxLayout(self)
+        lay.setContentsMargins(0, 0, 0, 0)
+        lay.setSpacing(6)
+
+        self.curve_plot = plots.plot_widget()
+        cp = self.curve_plot.getPlotItem()
+        theme.style_plot(cp, "Annual irradiation (kWh/m²)", "Tilt (°)")
+        cp.setTitle("Annual irradiation vs tilt", size="9.5pt")
+        cp.setMenuEnabled(False)
+        cp.hideButtons()
+        self.curve = cp.plot([], [], pen=theme.series_pen(0, dashed=False))
+        self.curve_opt = pg.ScatterPlotItem(size=11, symbol="o", brush=pg.mkBrush(theme.ACCENT),
+                                            pen=pg.mkPen("w", width=1.5))
+        cp.addItem(self.curve_opt)
+        cp.setXRange(-2, 96, padding=0)
+        cp.getAxis("bottom").setTicks([[(t, f"{t}") for t in range(0, 91, 15)]])
+        lay.addWidget(self.curve_plot, 3)
+
+        self.map_plot = plots.plot_widget()
+        mp = self.map_plot.getPlotItem()
+        theme.style_plot(mp, "Tilt (°)", "Azimuth (° from north, clockwise)")
+        mp.setTitle("Tilt × azimuth, % of the best plane", size="9.5pt")
+        mp.showGrid(x=False, y=False)
+        mp.setMenuEnabled(False)
+        mp.hideButtons()
+        self.map_image = pg.ImageItem(axisOrder="row-major")
+        mp.addItem(self.map_image)
+        self.map_bar = plots.take(COLOUR_BAR)
+        self.map_bar.setImageItem(self.map_image, insert_in=mp)
+        mp.getAxis("left").setTicks([[(t, f"{t}") for t in range(0, 91, 15)]])
+        lay.addWidget(self.map_plot, 4)
+
+        self.timeline_plot = plots.plot_widget()
+        tp = self.timeline_plot.getPlotItem()
+        theme.style_plot(tp, "", "Month (block labels: tilt)")
+        tp.setTitle("Schedules across the year", size="9.5pt")
+        tp.showGrid(x=False, y=False)
+        tp.setMenuEnabled(False)
+        tp.hideButtons()
+        tp.invertY(True)
+        tp.getAxis("left").setWidth(124)
+        tp.getAxis("left").setStyle(tickLength=0)
+        tp.getAxis("bottom").setStyle(tickLength=0)
+        for p in (tp, mp, cp):
+            p.getViewBox().setMouseEnabled(x=False, y=False)
+        lay.addWidget(self.timeline_plot, 5)
+
+
+CHARTS = "tilt study charts"
+plots.register(CHARTS, StudyCharts)
+
+
 class StudyView(View):
     title = "Tilt study"
 
@@ -318,54 +375,11 @@ class StudyView(View):
         return w
 
     def _build_charts(self) -> QWidget:
-        w = QWidget()
-        lay = QHBoxLayout(w)
-        lay.setContentsMargins(0, 0, 0, 0)
-        lay.setSpacing(6)
-
-        self.curve_plot = plots.plot_widget()
-        cp = self.curve_plot.getPlotItem()
-        theme.style_plot(cp, "Annual irradiation (kWh/m²)", "Tilt (°)")
-        cp.setTitle("Annual irradiation vs tilt", size="9.5pt")
-        cp.setMenuEnabled(False)
-        cp.hideButtons()
-        self.curve = cp.plot([], [], pen=theme.series_pen(0, dashed=False))
-        self.curve_opt = pg.ScatterPlotItem(size=11, symbol="o", brush=pg.mkBrush(theme.ACCENT),
-                                            pen=pg.mkPen("w", width=1.5))
-        cp.addItem(self.curve_opt)
-        cp.setXRange(-2, 96, padding=0)
-        cp.getAxis("bottom").setTicks([[(t, f"{t}") for t in range(0, 91, 15)]])
-        lay.addWidget(self.curve_plot, 3)
-
-        self.map_plot = plots.plot_widget()
-        mp = self.map_plot.getPlotItem()
-        theme.style_plot(mp, "Tilt (°)", "Azimuth (° from north, clockwise)")
-        mp.setTitle("Tilt × azimuth, % of the best plane", size="9.5pt")
-        mp.showGrid(x=False, y=False)
-        mp.setMenuEnabled(False)
-        mp.hideButtons()
-        self.map_image = pg.ImageItem(axisOrder="row-major")
-        mp.addItem(self.map_image)
-        self.map_bar = plots.take(COLOUR_BAR)
-        self.map_bar.setImageItem(self.map_image, insert_in=mp)
-        mp.getAxis("left").setTicks([[(t, f"{t}") for t in range(0, 91, 15)]])
-        lay.addWidget(self.map_plot, 4)
-
-        self.timeline_plot = plots.plot_widget()
-        tp = self.timeline_plot.getPlotItem()
-        theme.style_plot(tp, "", "Month (block labels: tilt)")
-        tp.setTitle("Schedules across the year", size="9.5pt")
-        tp.showGrid(x=False, y=False)
-        tp.setMenuEnabled(False)
-        tp.hideButtons()
-        tp.invertY(True)
-        tp.getAxis("left").setWidth(124)
-        tp.getAxis("left").setStyle(tickLength=0)
-        tp.getAxis("bottom").setStyle(tickLength=0)
-        for p in (tp, mp, cp):
-            p.getViewBox().setMouseEnabled(x=False, y=False)
-        lay.addWidget(self.timeline_plot, 5)
-        return w
+        charts = plots.take(CHARTS)
+        for name in ("curve_plot", "curve", "curve_opt", "map_plot", "map_image", "map_bar",
+                     "timeline_plot"):
+            setattr(self, name, getattr(charts, name))
+        return charts
 
     def _fit_table(self, rows: int) -> None:
         """Make the table exactly as tall as its rows (the charts get the rest)."""
