@@ -10,8 +10,8 @@ import functools
 import math
 from datetime import date, timedelta
 
-from PySide6.QtCore import QAbstractTableModel, QSortFilterProxyModel, Qt
-from PySide6.QtGui import QColor, QFont
+from PySide6.QtCore import QSortFilterProxyModel, Qt
+from PySide6.QtGui import QColor, QFont, QStandardItem, QStandardItemModel
 
 from . import theme
 
@@ -110,21 +110,54 @@ COLUMNS = ("Option", "Schedule", "Annual (kWh/m²)", "Objective", "Gain vs horiz
 COL_OBJECTIVE = 3
 
 
-class StudyTableModel(QAbstractTableModel):
-    """One row per compared option of a :class:`TiltStudy` (in the engine's order)."""
+class StudyTableModel(QStandardItemModel):
+    """One row per compared option of a :class:`TiltStudy` (in the engine's order).
+
+    Every cell's text, sort key, tooltip, alignment, font and colours are set once
+    per study, so the table answers its view from C++ (a Python ``data()`` is
+    called hundreds of times for each repaint).
+    """
 
     def __init__(self, parent=None):
-        super().__init__(parent)
+        super().__init__(0, len(COLUMNS), parent)
         self._rows: list[dict] = []
-        self._objective_header = "Objective (kWh/m²)"
+        self._set_headers("Objective (kWh/m²)")
+
+    def _set_headers(self, objective_header: str) -> None:
+        self.setHorizontalHeaderLabels([objective_header if i == COL_OBJECTIVE else c
+                                        for i, c in enumerate(COLUMNS)])
 
     def set_study(self, study) -> None:
         self.beginResetModel()
-        self._rows = self._build(study) if study is not None else []
-        self._objective_header = OBJECTIVE_HEADERS.get(study.options_used.objective,
-                                                       "Objective (kWh/m²)") \
-            if study is not None else "Objective (kWh/m²)"
-        self.endResetModel()
+        try:
+            self.blockSignals(True)
+            self._rows = self._build(study) if study is not None else []
+            self.setRowCount(0)
+            self._set_headers(OBJECTIVE_HEADERS.get(study.options_used.objective,
+                                                    "Objective (kWh/m²)")
+                              if study is not None else "Objective (kWh/m²)")
+            for row in self._rows:
+                self.appendRow([self._cell(row, c) for c in range(len(COLUMNS))])
+        finally:
+            self.blockSignals(False)
+            self.endResetModel()
+
+    @staticmethod
+    def _cell(row: dict, c: int) -> QStandardItem:
+        it = QStandardItem(row["text"][c])
+        it.setEditable(False)
+        it.setData(row["sort"][c], SORT_ROLE)
+        it.setData(row["kind"], KIND_ROLE)
+        it.setToolTip(row["note"] + "\n" + row["text"][1])
+        it.setTextAlignment((Qt.AlignmentFlag.AlignRight if c >= 2 else Qt.AlignmentFlag.AlignLeft)
+                            | Qt.AlignmentFlag.AlignVCenter)
+        it.setFont(_font(row["recommended"], row["ceiling"]))
+        if row["recommended"]:
+            it.setBackground(QColor(theme.ACCENT_SOFT))
+            it.setForeground(QColor(theme.ACCENT))
+        elif row["ceiling"]:
+            it.setForeground(QColor(theme.MUTED))
+        return it
 
     @staticmethod
     def _build(study) -> list[dict]:
@@ -154,48 +187,6 @@ class StudyTableModel(QAbstractTableModel):
                          1e6 if opt.kind == "two-axis" else opt.adjustments_per_year],
             })
         return rows
-
-    # -- Qt model API ---------------------------------------------------------
-    def rowCount(self, parent=None):  # noqa: N802 - Qt API
-        return 0 if parent is not None and parent.isValid() else len(self._rows)
-
-    def columnCount(self, parent=None):  # noqa: N802 - Qt API
-        return 0 if parent is not None and parent.isValid() else len(COLUMNS)
-
-    def headerData(self, section, orientation, role=Qt.ItemDataRole.DisplayRole):  # noqa: N802
-        if orientation != Qt.Orientation.Horizontal:
-            return None
-        if role == Qt.ItemDataRole.DisplayRole:
-            return self._objective_header if section == COL_OBJECTIVE else COLUMNS[section]
-        return None
-
-    def data(self, index, role=Qt.ItemDataRole.DisplayRole):
-        if not index.isValid():
-            return None
-        row = self._rows[index.row()]
-        c = index.column()
-        if role == Qt.ItemDataRole.DisplayRole:
-            return row["text"][c]
-        if role == SORT_ROLE:
-            return row["sort"][c]
-        if role == KIND_ROLE:
-            return row["kind"]
-        if role == Qt.ItemDataRole.ToolTipRole:
-            return row["note"] + "\n" + row["text"][1]
-        if role == Qt.ItemDataRole.TextAlignmentRole:
-            if c >= 2:
-                return int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
-            return int(Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignVCenter)
-        if role == Qt.ItemDataRole.FontRole:
-            return _font(row["recommended"], row["ceiling"])
-        if role == Qt.ItemDataRole.BackgroundRole and row["recommended"]:
-            return QColor(theme.ACCENT_SOFT)
-        if role == Qt.ItemDataRole.ForegroundRole:
-            if row["recommended"]:
-                return QColor(theme.ACCENT)
-            if row["ceiling"]:
-                return QColor(theme.MUTED)
-        return None
 
     def is_recommended(self, row: int) -> bool:
         return bool(self._rows[row]["recommended"])
