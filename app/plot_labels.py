@@ -28,6 +28,8 @@ class Label:
     text: str
     anchor_x: float = 0.5
     anchor_y: float = 0.5
+    color: str | None = None        # the layer's colour when None
+    font_pt: float | None = None    # the layer's font size when None
 
 
 class LabelLayer(pg.GraphicsObject):
@@ -75,14 +77,21 @@ class LabelLayer(pg.GraphicsObject):
         if not self._labels:
             return
         tr = p.transform()                # item to device coordinates while painting
-        fm = self._metrics
-        h = fm.height()
         p.save()
         p.resetTransform()
-        p.setFont(self._font)
-        p.setPen(self._color)
         pad = self.PAD_PX
+        font_pt = color = None
+        fm = self._metrics
         for lb in self._labels:
+            if lb.font_pt != font_pt:
+                font_pt = lb.font_pt
+                font = self._font if font_pt is None else self._sized(font_pt)
+                p.setFont(font)
+                fm = QFontMetricsF(font)
+            if lb.color != color or color is None:
+                color = lb.color
+                p.setPen(self._color if color is None else pg.mkColor(color))
+            h = fm.height()
             pt = tr.map(QPointF(lb.x, lb.y))
             w = fm.horizontalAdvance(lb.text) + 2 * pad
             box = QRectF(pt.x() - lb.anchor_x * w, pt.y() - lb.anchor_y * h, w, h)
@@ -90,3 +99,8 @@ class LabelLayer(pg.GraphicsObject):
                 p.fillRect(box, self._fill)
             p.drawText(box, Qt.AlignmentFlag.AlignCenter, lb.text)
         p.restore()
+
+    def _sized(self, size_pt: float) -> QFont:
+        f = QFont(self._font)
+        f.setPointSizeF(size_pt)
+        return f

@@ -36,6 +36,7 @@ from tiltyard.engine.timegrid import REFERENCE_YEAR
 
 from .. import plots, theme
 from ..engine_process import EngineCall
+from ..plot_labels import Label, LabelLayer
 from ..study_model import (
     COL_OBJECTIVE,
     MONTH_ABBR,
@@ -188,6 +189,7 @@ class StudyView(View):
         self._map_overlay = []
         self._curve_overlay = []
         self._timeline_items = []
+        self._timeline_labels = None
         self._month_lines = []
         self._month_lines_year = 0
         self.timeline_bars = []
@@ -783,6 +785,7 @@ class StudyView(View):
         n_days = (date(year + 1, 1, 1) - date(year, 1, 1)).days
         rec = study.recommended
         ticks = []
+        labels = []
         fm = QFontMetrics(theme.plot_font(9))
         for row, opt in enumerate(study.options):
             name = ("▶ " if opt is rec else "") + short_name(opt)
@@ -815,12 +818,15 @@ class StudyView(View):
                     continue
                 else:
                     txt = f"{t:.0f}°"
-                    colour = "w" if t > 40 else theme.TEXT
-                item = pg.TextItem(txt, color=colour, anchor=(0.5, 0.5))
-                item.setFont(theme.plot_font(7.5 if e - s < 40 else 8.5))
-                item.setPos((s + e) / 2.0, row)
-                tp.addItem(item)
-                self._timeline_items.append(item)
+                    colour = "#ffffff" if t > 40 else theme.TEXT
+                labels.append(Label((s + e) / 2.0, row, txt, color=colour,
+                                    font_pt=7.5 if e - s < 40 else 8.5))
+        if self._timeline_labels is None:
+            self._timeline_labels = LabelLayer(theme.plot_font(8.5), theme.TEXT,
+                                               fill=(0, 0, 0, 0))
+            self._timeline_labels.setZValue(5)
+            tp.addItem(self._timeline_labels)
+        self._timeline_labels.set_labels(labels)
         # month boundaries: drawn once per kind of year (they rarely change)
         if self._month_lines_year != n_days:
             for line in self._month_lines:
