@@ -21,7 +21,9 @@ from PySide6.QtWidgets import (
 from tiltyard.engine.cautions import CAUTION
 from tiltyard.engine.site import SiteError
 
-from .tasks import TURN_MS
+#: Delay between showing a view and drawing the result it was kept for, ms: long
+#: enough that the view's first paint has an event-loop turn to itself.
+SHOWN_SETTLE_MS = 20
 
 
 class MessageBanner(QFrame):
@@ -132,7 +134,7 @@ class View(QWidget):
                 if self._deferred.get(owner) is steps:
                     del self._deferred[owner]
                     self.ctx.runner.run_in_stages(owner, steps)
-            QTimer.singleShot(TURN_MS, start)     # after the view's first paint
+            QTimer.singleShot(SHOWN_SETTLE_MS, start)   # after the view's first paint
 
     def _on_site_changed(self, site) -> None:
         self._stale = True
