@@ -52,15 +52,36 @@ def main(argv: list[str] | None = None) -> int:
             app.processEvents()
         img = w.grab().toImage().scaledToWidth(WIDTH_PX,
                                                Qt.TransformationMode.SmoothTransformation)
-        # 256 colours are plenty for charts and forms and keep the files small
-        img = img.convertToFormat(QImage.Format.Format_Indexed8,
-                                  Qt.ImageConversionFlag.ThresholdDither)
+        # 256 colours, chosen from the image itself, are plenty for charts and forms
+        # and keep the files small (Qt's own 8-bit conversion uses a fixed colour cube,
+        # which bands the colour maps)
+        img = img.convertToFormat(QImage.Format.Format_Indexed8, _palette(img),
+                                  Qt.ImageConversionFlag.DiffuseDither)
         path = out / f"{title.lower().replace(' ', '-')}.png"
         img.save(str(path), "PNG", 80)
         print(f"wrote {path} ({path.stat().st_size // 1024} KiB)")
     w.runner.shutdown()
     w.close()
     return 0
+
+
+def _palette(img, size: int = 256) -> list[int]:
+    """The ``size`` most used colours of the QImage ``img``, binned at 5 bits a channel
+    (each the mean colour of its bin), as a Qt colour table."""
+    import numpy as np
+    from PySide6.QtGui import QImage
+
+    rgb = img.convertToFormat(QImage.Format.Format_RGB32)     # 4 bytes a pixel, no padding
+    a = np.frombuffer(rgb.constBits(), dtype=np.uint32)[: rgb.width() * rgb.height()]
+    r, g, b = (a >> 16) & 0xFF, (a >> 8) & 0xFF, a & 0xFF
+    key = ((r >> 3) << 10) | ((g >> 3) << 5) | (b >> 3)
+    counts = np.bincount(key, minlength=1 << 15)
+    top = np.argsort(counts)[::-1][:size]
+    top = top[counts[top] > 0]
+    means = [np.bincount(key, weights=c, minlength=1 << 15)[top] / counts[top]
+             for c in (r, g, b)]
+    return [0xFF000000 | (int(rr) << 16) | (int(gg) << 8) | int(bb)
+            for rr, gg, bb in zip(*means, strict=True)]
 
 
 if __name__ == "__main__":
