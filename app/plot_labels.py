@@ -80,15 +80,17 @@ class LabelLayer(pg.GraphicsObject):
         p.save()
         p.resetTransform()
         pad = self.PAD_PX
-        font_pt = color = None
+        p.setFont(self._font)
+        p.setPen(self._color)
+        font_pt = color = None            # None: the layer's own, as just set
         fm = self._metrics
         for lb in self._labels:
             if lb.font_pt != font_pt:
                 font_pt = lb.font_pt
                 font = self._font if font_pt is None else self._sized(font_pt)
                 p.setFont(font)
-                fm = QFontMetricsF(font)
-            if lb.color != color or color is None:
+                fm = self._metrics if font_pt is None else QFontMetricsF(font)
+            if lb.color != color:
                 color = lb.color
                 p.setPen(self._color if color is None else pg.mkColor(color))
             h = fm.height()
