@@ -21,6 +21,7 @@ from .tasks import TURN_MS
 #: Plots the views hold in all: sun path 2, horizon 1, irradiance 2, tilt study 3.
 PLOTS_NEEDED = 8
 
+
 class OpaqueGridAxisItem(pg.AxisItem):
     """An axis whose ticks and grid lines are drawn in opaque colours.
 
@@ -114,5 +115,5 @@ def discard() -> None:
 
 register("plot", new_plot, PLOTS_NEEDED)
 
-__all__ = ["PLOTS_NEEDED", "OpaqueGridAxisItem", "discard", "new_plot", "plot_item", "plot_widget", "prepare", "ready_count",
-           "register", "take"]
+__all__ = ["PLOTS_NEEDED", "OpaqueGridAxisItem", "discard", "new_plot", "plot_item",
+           "plot_widget", "prepare", "ready_count", "register", "take"]

@@ -180,6 +180,13 @@ class _Item(QStandardItem):
         self.setData(text if sort is None else sort, Qt.ItemDataRole.UserRole)
 
 
+def _day_columns(series) -> dict:
+    """The day's curves by their key in ``_DAY_STYLE``: the series' columns."""
+    return {"poa": series["poa_global"], "ghi": series["ghi"], "dni": series["dni"],
+            "dhi": series["dhi"], "ghi_clear": series["ghi_clear"],
+            "dni_extra": series["dni_extra"]}
+
+
 class IrradianceView(View):
     title = "Irradiance"
 
@@ -530,8 +537,7 @@ class IrradianceView(View):
         names = {"poa": f"Plane of array ({_short(plane_label)})", "ghi": ghi_name,
                  "dni": "DNI", "dhi": "DHI", "ghi_clear": "GHI, clear sky (reference)",
                  "dni_extra": "Extraterrestrial normal"}
-        data = {"poa": s["poa_global"], "ghi": s["ghi"], "dni": s["dni"], "dhi": s["dhi"],
-                "ghi_clear": s["ghi_clear"], "dni_extra": s["dni_extra"]}
+        data = _day_columns(s)
         self.day_legend.clear()
         symbol = "o" if day.step_min >= 30 else None
         for key, item in self.day_items.items():
@@ -552,9 +558,7 @@ class IrradianceView(View):
         """Shading where the horizon hides the sun, the range, title, legend, totals."""
         s = day.series
         up = day.sun_up
-        data = {k: s[c] for k, c in (("poa", "poa_global"), ("ghi", "ghi"), ("dni", "dni"),
-                                      ("dhi", "dhi"), ("ghi_clear", "ghi_clear"),
-                                      ("dni_extra", "dni_extra"))}
+        data = _day_columns(s)
         for r in self._shades:
             self.day_plot.removeItem(r)
         self._shades = []

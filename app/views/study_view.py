@@ -127,12 +127,8 @@ class StudyCharts(QWidget):
         lay.setContentsMargins(0, 0, 0, 0)
         lay.setSpacing(6)
 
-        self.curve_plot = plots.plot_widget()
-        cp = self.curve_plot.getPlotItem()
-        theme.style_plot(cp, "Annual irradiation (kWh/m²)", "Tilt (°)")
-        cp.setTitle("Annual irradiation vs tilt", size="9.5pt")
-        cp.setMenuEnabled(False)
-        cp.hideButtons()
+        self.curve_plot, cp = self._chart("Annual irradiation vs tilt",
+                                          "Annual irradiation (kWh/m²)", "Tilt (°)")
         self.curve = cp.plot([], [], pen=theme.series_pen(0, dashed=False))
         self.curve_opt = pg.ScatterPlotItem(size=11, symbol="o", brush=pg.mkBrush(theme.ACCENT),
                                             pen=pg.mkPen("w", width=1.5))
@@ -141,13 +137,8 @@ class StudyCharts(QWidget):
         cp.getAxis("bottom").setTicks([[(t, f"{t}") for t in range(0, 91, 15)]])
         lay.addWidget(self.curve_plot, 3)
 
-        self.map_plot = plots.plot_widget()
-        mp = self.map_plot.getPlotItem()
-        theme.style_plot(mp, "Tilt (°)", "Azimuth (° from north, clockwise)")
-        mp.setTitle("Tilt × azimuth, % of the best plane", size="9.5pt")
-        mp.showGrid(x=False, y=False)
-        mp.setMenuEnabled(False)
-        mp.hideButtons()
+        self.map_plot, mp = self._chart("Tilt × azimuth, % of the best plane", "Tilt (°)",
+                                        "Azimuth (° from north, clockwise)", grid=False)
         self.map_image = pg.ImageItem(axisOrder="row-major")
         mp.addItem(self.map_image)
         self.map_bar = plots.take(COLOUR_BAR)
@@ -155,20 +146,27 @@ class StudyCharts(QWidget):
         mp.getAxis("left").setTicks([[(t, f"{t}") for t in range(0, 91, 15)]])
         lay.addWidget(self.map_plot, 4)
 
-        self.timeline_plot = plots.plot_widget()
-        tp = self.timeline_plot.getPlotItem()
-        theme.style_plot(tp, "", "Month (block labels: tilt)")
-        tp.setTitle("Schedules across the year", size="9.5pt")
-        tp.showGrid(x=False, y=False)
-        tp.setMenuEnabled(False)
-        tp.hideButtons()
+        self.timeline_plot, tp = self._chart("Schedules across the year", "",
+                                             "Month (block labels: tilt)", grid=False)
         tp.invertY(True)
         tp.getAxis("left").setWidth(124)
         tp.getAxis("left").setStyle(tickLength=0)
         tp.getAxis("bottom").setStyle(tickLength=0)
-        for p in (tp, mp, cp):
-            p.getViewBox().setMouseEnabled(x=False, y=False)
         lay.addWidget(self.timeline_plot, 5)
+
+    @staticmethod
+    def _chart(title: str, left: str, bottom: str, grid: bool = True):
+        """A plot widget styled as every chart here: no menu, no buttons, no mouse."""
+        widget = plots.plot_widget()
+        plot = widget.getPlotItem()
+        theme.style_plot(plot, left, bottom)
+        plot.setTitle(title, size="9.5pt")
+        if not grid:
+            plot.showGrid(x=False, y=False)
+        plot.setMenuEnabled(False)
+        plot.hideButtons()
+        plot.getViewBox().setMouseEnabled(x=False, y=False)
+        return widget, plot
 
 
 CHARTS = "tilt study charts"
