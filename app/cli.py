@@ -14,6 +14,7 @@ import os
 import re
 import sys
 import traceback
+from dataclasses import replace
 from pathlib import Path
 
 from tiltyard import __version__
@@ -80,16 +81,18 @@ def build_parser() -> argparse.ArgumentParser:
     s.add_argument("--azimuth", type=float, required=True, metavar="DEG",
                    help="plane azimuth clockwise from north, 0-360 (south = 180)")
     _add_sky_options(s)
-    s.add_argument("--model", choices=TRANSPOSITION_MODELS, default="perez",
+    s.add_argument("--model", choices=TRANSPOSITION_MODELS, default=None,
                    help="sky diffuse model (default perez)")
-    s.add_argument("--clearsky", choices=CLEARSKY_MODELS, default="ineichen",
+    s.add_argument("--clearsky", choices=CLEARSKY_MODELS, default=None,
                    help="clear-sky model (default ineichen)")
-    s.add_argument("--solar-constant", type=float, default=SOLAR_CONSTANT_W_M2, metavar="W_M2",
+    s.add_argument("--solar-constant", type=float, default=None, metavar="W_M2",
                    help=f"solar constant in W/m2 (default {SOLAR_CONSTANT_W_M2:g})")
-    s.add_argument("--year", type=int, default=REFERENCE_YEAR,
+    s.add_argument("--year", type=int, default=None,
                    help=f"year (default {REFERENCE_YEAR}, a non-leap reference year)")
-    s.add_argument("--step", type=int, default=60, choices=STEPS_MIN, metavar="MIN",
-                   help="interval length in minutes: " + ", ".join(map(str, STEPS_MIN)))
+    s.add_argument("--step", type=int, default=None, choices=STEPS_MIN, metavar="MIN",
+                   help="interval of a clear or monthly sky in minutes: "
+                        + ", ".join(map(str, STEPS_MIN))
+                        + " (default 60; a weather file keeps its own interval)")
     s.add_argument("--json", action="store_true", help="write one JSON document to stdout")
 
     s = sub.add_parser("study", help="compare fixed, seasonal and monthly tilts (the tilt study)",
@@ -153,43 +156,58 @@ def build_parser() -> argparse.ArgumentParser:
 
 
 def _add_study_options(s) -> None:
-    """The tilt study's flags (study and sheet take the same ones)."""
+    """The tilt study's flags (study and sheet take the same ones). Flags left out keep the
+    site file's saved settings (its ``assessment`` section), else the defaults."""
     from tiltyard.engine.plane import TRANSPOSITION_MODELS
-    from tiltyard.engine.timegrid import REFERENCE_YEAR
+    from tiltyard.engine.site import MOUNTINGS
+    from tiltyard.engine.timegrid import REFERENCE_YEAR, STEPS_MIN
 
-    s.add_argument("--model", choices=TRANSPOSITION_MODELS, default="perez",
+    s.add_argument("--model", choices=TRANSPOSITION_MODELS, default=None,
                    help="sky diffuse model (default perez)")
-    s.add_argument("--objective", default="annual", metavar="OBJ",
+    s.add_argument("--objective", default=None, metavar="OBJ",
                    help="annual (default), worst-month, or months=11,12,1")
-    s.add_argument("--tilt-range", default="0:90", metavar="MIN:MAX",
+    s.add_argument("--mounting", choices=MOUNTINGS, default=None,
+                   help="how the panels are held: flush (on the roof, as it is), fixed-rack, "
+                        "adjustable (seasonal tilts), ground-rows, flat-roof-rows (default: the "
+                        "site's planes' mounting, flush for a roof plane; fixed-rack for a site "
+                        "without planes)")
+    s.add_argument("--max-positions", type=int, default=None, metavar="N",
+                   help="tilt positions a year an adjustable mounting allows: 2, 4 or 12 "
+                        "(default 12)")
+    s.add_argument("--tilt-range", default=None, metavar="MIN:MAX",
                    help="tilts the racking allows, degrees (default 0:90)")
-    s.add_argument("--tilt-step", type=float, default=1.0, metavar="DEG",
+    s.add_argument("--tilt-step", type=float, default=None, metavar="DEG",
                    help="tilt step of an adjustable rack, degrees (default 1)")
-    s.add_argument("--azimuth", default="free", metavar="free|DEG",
+    s.add_argument("--azimuth", default=None, metavar="free|DEG",
                    help="free (optimised) or a fixed azimuth, degrees clockwise from north")
-    s.add_argument("--min-days", type=int, default=30, metavar="DAYS",
+    s.add_argument("--min-days", type=int, default=None, metavar="DAYS",
                    help="minimum days between adjustments (default 30)")
     s.add_argument("--switch-dates", default=None, metavar="MM-DD,MM-DD",
                    help="fix the two-season switch dates instead of optimising them")
     s.add_argument("--row-tilt", type=float, default=None, metavar="DEG",
                    help="tilt of rows on a flat roof or field for the spacing figures "
                         "(default: the fixed optimum)")
-    s.add_argument("--row-length", type=float, default=1.0, metavar="M",
+    s.add_argument("--row-length", type=float, default=None, metavar="M",
                    help="slant length of one row's collector, m (default 1: figures per metre)")
     s.add_argument("--row-date", default=None, metavar="MM-DD",
                    help="design day for row spacing (default: winter solstice), noon +/- 3 h")
-    s.add_argument("--loss", type=float, default=0.14, metavar="FRACTION",
+    s.add_argument("--loss", type=float, default=None, metavar="FRACTION",
                    help="system loss fraction for the indicative specific yield (default 0.14)")
-    s.add_argument("--year", type=int, default=REFERENCE_YEAR,
+    s.add_argument("--year", type=int, default=None,
                    help=f"year (default {REFERENCE_YEAR}, a non-leap reference year)")
+    s.add_argument("--step", type=int, default=None, choices=STEPS_MIN, metavar="MIN",
+                   help="interval of a clear or monthly sky in minutes: "
+                        + ", ".join(map(str, STEPS_MIN))
+                        + " (default 60; a weather file keeps its own interval)")
 
 
 def _add_sky_options(s) -> None:
-    """--sky and the options for reading a weather CSV file (irradiance and study)."""
-    s.add_argument("--sky", default="clear", metavar="clear|monthly|FILE",
-                   help="sky basis: clear (clear-sky, an upper bound), monthly (the site's 12 "
-                        "monthly mean daily GHI values) or a weather file: TMY3, TMY2, EPW, "
-                        "or any CSV file with --columns and --time-label")
+    """--sky and the options for reading a weather CSV file (irradiance, study, sheet)."""
+    s.add_argument("--sky", default=None, metavar="auto|clear|monthly|FILE",
+                   help="sky basis: auto (default: the site's weather file if it names one, "
+                        "else its 12 monthly mean daily GHI values if it has them, else clear "
+                        "sky), clear (an upper bound), monthly, or a weather file: TMY3, TMY2, "
+                        "EPW, or any CSV file with --columns and --time-label")
     s.add_argument("--columns", default=None, metavar="KEY=NAME,...",
                    help="for a CSV weather file: which header names hold which quantity, "
                         "e.g. timestamp=Time,ghi=GHI,dni=DNI,dhi=DHI,temp_air=T2m,"
@@ -201,6 +219,10 @@ def _add_sky_options(s) -> None:
     s.add_argument("--time-zone", default=None, metavar="ZONE",
                    help="for a CSV weather file: zone of timestamps without a UTC offset, an "
                         "IANA name (Europe/London) or a fixed offset (+01:00)")
+    s.add_argument("--accept-weather-warnings", action="store_true",
+                   help="use a weather file even though it was recorded more than 50 km from "
+                        "the site or holds light with the sun down (the warning stays on every "
+                        "output)")
 
 
 #: Command-line option for each keyword of load_weather_for_site.
@@ -223,93 +245,143 @@ def _parse_columns(text: str) -> dict:
     return out
 
 
-def _irradiance_options(args, site, **kw):
-    """IrradianceOptions from --sky (clear, monthly or a weather file) and friends."""
-    from tiltyard.engine.skyyear import IrradianceOptions
-    from tiltyard.engine.weather import WeatherImportError
+def _sky_changes(args, a) -> dict:
+    """Assessment changes from --sky and the weather-file flags."""
+    from tiltyard.engine.assessment import WeatherSource
 
-    sky, weather = args.sky, None
-    csv_options = {"columns": args.columns, "timestamp_label": args.time_label,
-                   "timezone": args.time_zone}
-    if sky in ("clear", "monthly"):
-        for option, value in csv_options.items():
+    csv_flags = {"columns": args.columns, "timestamp_label": args.time_label,
+                 "timezone": args.time_zone}
+    changes = {}
+    sky = args.sky
+    if sky in (None, "auto", "clear", "monthly"):
+        for option, value in csv_flags.items():
             if value is not None:
                 raise UserError(f"{_WEATHER_FLAGS[option]} {value}: only for a weather file "
-                                f"(--sky FILE), not with --sky {sky}")
-    else:
-        from tiltyard.engine.allsky import WeatherOptionError, load_weather_for_site
-        if args.columns is not None:
-            csv_options["columns"] = _parse_columns(args.columns)
-        try:
-            weather = load_weather_for_site(sky, site, **csv_options)
-        except WeatherOptionError as err:
-            value = args.columns if err.option == "columns" else err.value
-            shown = "" if value is None else f" {value}"
-            raise UserError(f"--sky {sky}: {_WEATHER_FLAGS[err.option]}{shown}: "
-                            f"{err.reason}") from None
-        except (WeatherImportError, OSError) as err:
-            hint = ""
-            if isinstance(err, WeatherImportError) and "column mapping" in err.reason:
-                hint = " (options --columns, --time-label, --time-zone)"
-            raise UserError(f"--sky {sky}: {err}{hint}") from None
-        sky = "file"
+                                f"(--sky FILE), not with --sky {sky or 'auto'}")
+        if sky is not None:
+            changes["sky"] = sky
+        if args.accept_weather_warnings and a.weather is not None:
+            changes["weather"] = replace(a.weather, accept_warnings=True)
+        return changes
+    cols = _parse_columns(args.columns) if args.columns is not None else {}
     try:
-        return IrradianceOptions(sky=sky, weather=weather, **kw)
+        changes["weather"] = WeatherSource(os.path.abspath(sky), tuple(cols.items()),
+                                           args.time_label, args.time_zone,
+                                           accept_warnings=args.accept_weather_warnings)
     except ValueError as err:
-        raise UserError(str(err)) from None
+        raise UserError(f"--sky {sky}: {err}") from None
+    changes["sky"] = "file"
+    return changes
 
 
-def _study_options(args, site):
-    from tiltyard.engine.tilt import StudyOptions
+def _study_changes(args, a) -> dict:
+    """Assessment changes from the study flags; flags not given keep the saved settings."""
+    from tiltyard.engine.assessment import Mounting
 
-    irr = _irradiance_options(args, site, model=args.model, year=args.year)
-    obj, months = args.objective, ()
-    if obj.startswith("months="):
+    study, rows = {}, {}
+    if args.objective is not None:
+        obj, months = args.objective, ()
+        if obj.startswith("months="):
+            try:
+                months = tuple(int(x) for x in obj[len("months="):].split(",") if x.strip())
+            except ValueError:
+                raise UserError(f"--objective = {obj!r}: months must be numbers, e.g. "
+                                "months=11,12,1") from None
+            obj = "months"
+        study.update(objective=obj, months=months)
+    if args.tilt_range is not None:
         try:
-            months = tuple(int(x) for x in obj[len("months="):].split(",") if x.strip())
+            lo, hi = (float(x) for x in args.tilt_range.split(":"))
         except ValueError:
-            raise UserError(f"--objective = {obj!r}: months must be numbers, e.g. "
-                            "months=11,12,1") from None
-        obj = "months"
-    try:
-        lo, hi = (float(x) for x in args.tilt_range.split(":"))
-    except ValueError:
-        raise UserError(f"--tilt-range = {args.tilt_range!r}: expected MIN:MAX in degrees, "
-                        "e.g. 10:60") from None
-    azimuth = None
-    if args.azimuth != "free":
-        try:
-            azimuth = float(args.azimuth)
-        except ValueError:
-            raise UserError(f"--azimuth = {args.azimuth!r}: expected 'free' or degrees "
-                            "clockwise from north") from None
-    switch = None
+            raise UserError(f"--tilt-range = {args.tilt_range!r}: expected MIN:MAX in degrees, "
+                            "e.g. 10:60") from None
+        study.update(tilt_min_deg=lo, tilt_max_deg=hi)
+    if args.tilt_step is not None:
+        study["tilt_step_deg"] = args.tilt_step
+    if args.azimuth is not None:
+        azimuth = None
+        if args.azimuth != "free":
+            try:
+                azimuth = float(args.azimuth)
+            except ValueError:
+                raise UserError(f"--azimuth = {args.azimuth!r}: expected 'free' or degrees "
+                                "clockwise from north") from None
+        study["azimuth_deg"] = azimuth
+    if args.min_days is not None:
+        study["min_days_between"] = args.min_days
     if args.switch_dates:
-        switch = tuple(x.strip() for x in args.switch_dates.split(","))
+        study["switch_dates"] = tuple(x.strip() for x in args.switch_dates.split(","))
+    for flag, key in (("row_tilt", "row_tilt_deg"), ("row_length", "collector_length_m"),
+                      ("row_date", "row_design_date"), ("loss", "loss_fraction")):
+        if getattr(args, flag) is not None:
+            rows[key] = getattr(args, flag)
+    changes = {"study": replace(a.study, **study), "rows": replace(a.rows, **rows)}
+    if args.mounting is not None or args.max_positions is not None:
+        changes["mounting"] = Mounting(args.mounting or a.mounting.kind,
+                                       args.max_positions or a.mounting.max_positions)
+    for flag, key in (("model", "model"), ("year", "year"), ("step", "interval_min")):
+        if getattr(args, flag, None) is not None:
+            changes[key] = getattr(args, flag)
+    return changes
+
+
+def _assessment(args, study: bool = True):
+    """The SITE argument's assessment with the command line's flags applied."""
+    from tiltyard.engine.assessment import resolve_assessment
+
+    a = resolve_assessment(args.site)
+    changes = _sky_changes(args, a)
+    if study:
+        changes.update(_study_changes(args, replace(a, **changes)))
     try:
-        return StudyOptions(
-            irradiance=irr,
-            objective=obj, months=months, tilt_min_deg=lo, tilt_max_deg=hi,
-            tilt_step_deg=args.tilt_step, azimuth_deg=azimuth, min_days_between=args.min_days,
-            switch_dates=switch, row_tilt_deg=args.row_tilt, collector_length_m=args.row_length,
-            row_design_date=args.row_date, loss_fraction=args.loss)
+        return replace(a, **changes)
     except ValueError as err:
         raise UserError(str(err)) from None
 
 
-def _weather_report(weather, doc: dict, as_json: bool) -> None:
-    """Import findings of a weather file: into the JSON document, or one line each on stderr."""
-    if weather is None:
-        return
-    from tiltyard.engine.allsky import weather_json_dict
+def _assess(a):
+    """assess(a) with every bad-input failure as one line for the user."""
+    from tiltyard.engine.allsky import WeatherOptionError
+    from tiltyard.engine.assess import AssessmentError, assess
+    from tiltyard.engine.weather import WeatherImportError
 
-    if as_json:
-        doc["weather"] = weather_json_dict(weather)
+    where = f"--sky {a.weather.path}" if a.weather is not None else "--sky"
+    try:
+        return assess(a)
+    except WeatherOptionError as err:
+        value = dict(a.weather.columns) if err.option == "columns" else err.value
+        shown = "" if value is None else f" {value}"
+        raise UserError(f"{where}: {_WEATHER_FLAGS[err.option]}{shown}: {err.reason}") from None
+    except WeatherImportError as err:
+        hint = ""
+        if "column mapping" in err.reason:
+            hint = " (options --columns, --time-label, --time-zone)"
+        raise UserError(f"{where}: {err}{hint}") from None
+    except (AssessmentError, OSError) as err:
+        raise UserError(str(err)) from None
+    except ValueError as err:
+        raise UserError(str(err)) from None
+
+
+def _weather_report(result) -> None:
+    """Import findings and accepted site-fit warnings of a weather file, one line each on
+    stderr (the JSON document carries them instead)."""
+    weather = result.weather
+    if weather is None:
         return
     for f in weather.findings:
         where = f", line {f.line}" if f.line is not None else ""
         sys.stderr.write(f"tiltyard: {weather.source}{where}: {f.severity} ({f.kind}): "
                          f"{_one_line(f.message)}\n")
+    for w in result.weather_warnings:
+        sys.stderr.write(f"tiltyard: accepted weather warning: {_one_line(w)}\n")
+
+
+def _print_basis(result) -> None:
+    b = result.basis
+    print(f"  Sky basis: {b.words} ({b.reason}); mounting: {result.mounting}")
+    for w in result.weather_warnings:
+        print(f"  Warning (accepted): {w}")
 
 
 def _schedule_words(opt) -> str:
@@ -324,47 +396,46 @@ def _schedule_words(opt) -> str:
 def cmd_study(args) -> int:
     from tiltyard.engine.exports import study_json_text
     from tiltyard.engine.jobs import CAUTION
-    from tiltyard.engine.tilt import tilt_study
 
-    site = _load_site(args.site)
-    opts = _study_options(args, site)
+    result = _assess(_assessment(args))
     try:
-        st = tilt_study(site, opts)
+        st = result.study()
     except ValueError as err:
         raise UserError(str(err)) from None
     if args.json:
         # one shared builder: the sheet's --json-out and the app's export write the same text
-        sys.stdout.write(study_json_text(st))
+        sys.stdout.write(study_json_text(st, result))
         return EXIT_OK
-    _weather_report(opts.irradiance.weather, {}, False)
+    _weather_report(result)
+    site, opts = result.site, st.options_used
     d = st.to_json_dict()
     print(f"Tilt study for {site.name}  ({site.latitude_deg:.4f}, {site.longitude_deg:.4f})")
-    print(f"  sky: {opts.irradiance.sky}, model: {opts.irradiance.model}, year "
-          f"{opts.irradiance.year}; objective: {opts.objective_label}; tilts "
-          f"{opts.tilt_min_deg:g}-{opts.tilt_max_deg:g} by {opts.tilt_step_deg:g} deg; azimuth "
+    _print_basis(result)
+    print(f"  model: {opts.irradiance.model}, year {opts.irradiance.year}, "
+          f"{opts.irradiance.step_min}-min intervals; objective: {opts.objective_label} "
+          f"({d['objective_units']}); tilts {opts.tilt_min_deg:g}-{opts.tilt_max_deg:g} by "
+          f"{opts.tilt_step_deg:g} deg; azimuth "
           f"{'free' if opts.azimuth_deg is None else f'{opts.azimuth_deg:g} deg'}")
     print()
-    print(f"  {'option':52} {'annual':>8} {'objective':>9} {'vs hor':>7} {'vs fixed':>8} "
-          f"{'of track':>8} {'adj/yr':>6}")
-    print(f"  {'':52} {'kWh/m2':>8} {'kWh/m2':>9} {'%':>7} {'%':>8} {'%':>8} {'':>6}")
+    print(f"  {'option':52} {'objective':>9} {'vs hor':>7} {'vs best':>8} {'of track':>8} "
+          f"{'annual':>8} {'adj/yr':>6}")
+    print(f"  {'':52} {'kWh/m2':>9} {'%':>7} {'%':>8} {'%':>8} {'kWh/m2':>8} {'':>6}")
+
+    def pct(v, sign="+"):
+        return "-" if v is None else f"{v:{sign}.1f}"
     for row in d["options"]:
-        def pct(v):
-            return "-" if v is None else f"{v:+.1f}"
-        print(f"  {row['label'][:52]:52} {row['annual_kwh_m2']:8.1f} "
-              f"{row['objective_value_kwh_m2']:9.1f} {pct(row['gain_vs_horizontal_pct']):>7} "
+        print(f"  {row['label'][:52]:52} {row['objective_value_kwh_m2']:9.1f} "
+              f"{pct(row['gain_vs_horizontal_pct']):>7} "
               f"{pct(row['gain_vs_fixed_optimal_pct']):>8} "
-              f"{row['share_of_tracking_pct']:8.1f} {row['adjustments_per_year']:6d}")
+              f"{pct(row['share_of_tracking_pct'], ''):>8} {row['annual_kwh_m2']:8.1f} "
+              f"{row['adjustments_per_year']:6d}")
+    print(f"  (objective, gains and shares on the {opts.objective_label} objective; 'vs best': "
+          "over the best fixed plane for the site)")
     print()
     print("  Schedules:")
     for opt in st.options:
         print(f"    {opt.label[:40]:40} {_schedule_words(opt)}")
-    rec = st.recommended
-    print()
-    print(f"  Recommended: {rec.label} - {_schedule_words(rec)}")
-    print(f"  (rule: {st.recommendation_rule})")
-    go = d["grid_optimum"]
-    print(f"  Best plane on the tilt x azimuth grid: {go['tilt_deg']:g} deg, azimuth "
-          f"{go['azimuth_deg']:g} deg, {go['annual_kwh_m2']:.1f} kWh/m2 a year")
+    _print_recommendation(result, st, d)
     _print_rows_and_yield(st, d)
     for w in st.warnings:
         print(f"  Note: {w}")
@@ -372,9 +443,38 @@ def cmd_study(args) -> int:
     return EXIT_OK
 
 
+def _print_recommendation(result, st, d) -> None:
+    rec = st.recommended
+    print()
+    if st.mounting == "flush":
+        loss = result.option_horizon_loss(rec)
+        print(f"  This roof as it is: {rec.label} - {_schedule_words(rec)}: "
+              f"{rec.annual_kwh_m2:.0f} kWh/m2 a year, {st.share_pct(rec, 'fixed-optimal'):.0f} "
+              f"% of the best plane for the site on the {st.options_used.objective_label} "
+              f"objective, {loss.loss_pct:.1f} % lost to the horizon")
+    else:
+        print(f"  Recommended: {rec.label} - {_schedule_words(rec)}")
+    print(f"  (rule: {st.recommendation_rule})")
+    bound = result.clear_sky_bound()
+    if bound is not None:
+        print(f"  Clear-sky upper bound for it: {bound[rec.label]:.0f} kWh/m2 a year (not an "
+              "expected value)")
+    go = d["grid_optimum"]
+    print(f"  Best plane on the tilt x azimuth grid: {go['tilt_deg']:g} deg, azimuth "
+          f"{go['azimuth_deg']:g} deg, {go['objective_kwh_m2']:.1f} kWh/m2 "
+          f"({d['objective_units']})")
+
+
 def _print_rows_and_yield(st, d) -> None:
     rows, yld, mm = d["rows"], d["specific_yield"], d["monthly_method"]
+    by_kind = {(y["label"], y["kind"]): y for y in yld["options"]}
     print()
+    if st.mounting == "flush":      # panels follow the roof: no rows to lay out
+        print("  Indicative specific yield:")
+        for y in yld["options"]:
+            print(f"    {y['label'][:40]:40} {y['annual_kwh_kwp']:8.0f} kWh/kWp")
+        _print_yield_and_method(yld, mm)
+        return
     print("  Rows on flat ground (beam shading-free in the design window):")
     ch = rows["chosen"]
     if ch is None:
@@ -387,7 +487,6 @@ def _print_rows_and_yield(st, d) -> None:
               f"ground cover {ch['ground_cover_fraction']:.3f}")
     print(f"    {'option':40} {'pitch m':>8} {'GCR':>6} {'per m2 ground':>14} "
           f"{'yield kWh/kWp':>14}")
-    by_kind = {(y["label"], y["kind"]): y for y in yld["options"]}
     for r in rows["options"]:
         lay = r["layout"]
         y = by_kind.get((r["label"], r["kind"]))
@@ -398,6 +497,10 @@ def _print_rows_and_yield(st, d) -> None:
         print(f"    {r['label'][:40]:40} {pitch:>8} {gcr:>6} {ground:>14} {yv:>14}")
     print(f"    GCR: {rows['definitions']}")
     print(f"    {rows['limitation']}")
+    _print_yield_and_method(yld, mm)
+
+
+def _print_yield_and_method(yld, mm) -> None:
     print(f"    Yield: {yld['label']}; loss {100 * yld['loss_fraction']:g} %, temperature "
           f"model {yld['temperature_model']}; " + "; ".join(yld["notes"]))
     if mm is not None:
@@ -472,32 +575,44 @@ def cmd_sun(args) -> int:
 
 
 def cmd_irradiance(args) -> int:
-    from tiltyard.engine.jobs import CAUTION, irradiance_year
+    from tiltyard.engine.jobs import CAUTION
 
     if not 0 <= args.tilt <= 90:
         raise UserError(f"--tilt = {args.tilt:g}: must be between 0 and 90 deg")
     if not 0 <= args.azimuth <= 360:
         raise UserError(f"--azimuth = {args.azimuth:g}: must be between 0 and 360 deg "
                         "(clockwise from north)")
-    site = _load_site(args.site)
-    opts = _irradiance_options(args, site, model=args.model, clearsky_model=args.clearsky,
-                               solar_constant_w_m2=args.solar_constant, year=args.year,
-                               step_min=args.step)
+    a = _assessment(args, study=False)
+    changes = {key: getattr(args, flag) for flag, key in (
+        ("model", "model"), ("clearsky", "clearsky_model"),
+        ("solar_constant", "solar_constant_w_m2"), ("year", "year"), ("step", "interval_min"))
+        if getattr(args, flag) is not None}
     try:
-        res = irradiance_year(site, args.tilt, args.azimuth, opts)
+        a = replace(a, **changes)
     except ValueError as err:
         raise UserError(str(err)) from None
-    doc = {"irradiance": res.to_json_dict()}
-    _weather_report(opts.weather, doc, args.json)
+    result = _assess(a)
+    try:
+        res = result.irradiance(args.tilt, args.azimuth)
+    except ValueError as err:
+        raise UserError(str(err)) from None
+    site, opts = result.site, result.irradiance_options
+    doc = {"assessment": result.header(), "irradiance": res.to_json_dict()}
     if args.json:
+        if result.weather is not None:
+            from tiltyard.engine.allsky import weather_json_dict
+
+            doc["weather"] = weather_json_dict(result.weather)
         print(json.dumps(doc, indent=2, ensure_ascii=False))
         return EXIT_OK
+    _weather_report(result)
     print(f"Irradiation on a plane at {site.name}")
+    _print_basis(result)
     print(f"  tilt {res.surface_tilt:g} deg, azimuth {res.surface_azimuth:g} deg "
           "(clockwise from north)")
     sky_text = f"clear ({opts.clearsky_model})" if opts.sky == "clear" else opts.sky
     if opts.sky == "file":
-        sky_text = f"weather file {args.sky}"
+        sky_text = f"weather file {result.weather.source}"
     print(f"  sky: {sky_text}, transposition: {opts.model}, "
           f"solar constant {opts.solar_constant_w_m2:g} W/m2, year {opts.year}, "
           f"{opts.step_min}-min intervals")
@@ -544,6 +659,25 @@ def _check_output(flag: str, path: str) -> Path:
     if not os.access(folder, os.W_OK | os.X_OK):
         raise UserError(f"{flag} {path}: the folder {folder} is not writable")
     return p
+
+
+def _refuse_outputs_over_inputs(wanted, site_arg: str, assessment) -> None:
+    """Refuse, before any work, an output path that is one of the inputs (the site file, the
+    weather file), compared as files (device and inode, links followed), not as text."""
+    inputs = []
+    if os.path.exists(site_arg):
+        inputs.append(("the site file", site_arg))
+    if assessment.weather is not None:
+        inputs.append(("the weather file", assessment.weather.path))
+    for flag, path in wanted:
+        for what, source in inputs:
+            try:
+                same = os.path.exists(path) and os.path.samefile(path, source)
+            except OSError:
+                same = False
+            if same or os.path.realpath(path) == os.path.realpath(source):
+                raise UserError(f"{flag} {path}: is {what} ({source}); writing there would "
+                                "replace an input: choose another file name")
 
 
 def _ensure_gui_app():
@@ -609,26 +743,28 @@ def cmd_sheet(args) -> int:
             check_option_kinds(kinds)
         except ValueError as err:
             raise UserError(f"--hourly-options {args.hourly_options}: {err}") from None
-    site = _load_site(args.site)
-    opts = _study_options(args, site)
+    assessment = _assessment(args)
+    _refuse_outputs_over_inputs(wanted, args.site, assessment)
     prefs = None
     if None in (args.preparer, args.organisation, args.paper, args.times):
         prefs = _sheet_preferences()
     paper = args.paper or (prefs.paper if prefs is not None else "a4")
     basis = args.times or (prefs.time_basis if prefs is not None else "clock")
     _ensure_gui_app()
-    from tiltyard.app.sheet import SheetMeta, compute_sheet, pdf_bytes
+    from tiltyard.app.sheet import SheetMeta, lay_out, pdf_bytes
 
     meta = SheetMeta(
         preparer=args.preparer if args.preparer is not None else prefs.preparer,
         organisation=args.organisation if args.organisation is not None else prefs.organisation,
         prepared=args.prepared or datetime.date.today(), time_basis=basis)
+    assessed = _assess(assessment)
+    site = assessed.site
     try:
-        result = compute_sheet(site, opts, meta, paper)
+        result = lay_out(assessed.sheet_data(time_basis=basis), meta, paper)
         chosen = select_options(result.study, kinds)
     except ValueError as err:
         raise UserError(str(err)) from None
-    _weather_report(opts.irradiance.weather, {}, False)
+    _weather_report(assessed)
     # everything in memory first: a failure leaves no file behind and no file changed
     data = {}
     for flag, _path in wanted:
@@ -641,7 +777,7 @@ def cmd_sheet(args) -> int:
         elif flag == "--csv-hourly":
             data[flag] = hourly_csv_text(result.sky, site, chosen).encode("utf-8")
         else:
-            data[flag] = study_json_text(result.study).encode("utf-8")
+            data[flag] = study_json_text(result.study, assessed).encode("utf-8")
     for flag, path in wanted:
         try:
             write_bytes_atomically(path, data[flag])

@@ -50,7 +50,7 @@ from .geometry import MEAN_DAY_OF_MONTH, declination_cooper_deg, sunset_hour_ang
 from .monthly import ERBS_MONTHLY_KT_RANGE, erbs_monthly_diffuse_fraction
 from .site import Site, SiteError
 from .sky import extraterrestrial_on_plane
-from .timegrid import STEPS_MIN, TimeGrid, standard_offset
+from .timegrid import GRID_STEPS_MIN, TimeGrid, standard_offset
 from .weather import (
     ColumnMap,
     WeatherData,
@@ -83,6 +83,9 @@ class AllSky:
     temp_air, wind_speed : numpy.ndarray or None
         Air temperature (°C) and wind speed (m/s) per interval, NaN where the
         data have none; None when the basis has none at all.
+    sun_down_ghi_share : float
+        Share (0-1) of a weather series' GHI that falls in intervals with the
+        sun down at the site (a sign of wrong timestamps or another site).
     """
 
     ghi: np.ndarray
@@ -91,6 +94,7 @@ class AllSky:
     note: str
     temp_air: np.ndarray | None = None
     wind_speed: np.ndarray | None = None
+    sun_down_ghi_share: float = 0.0
 
 
 # -- Erbs split -------------------------------------------------------------------
@@ -483,9 +487,9 @@ def _month_list(mask) -> str:
 def check_weather_step(weather: WeatherData, step_min: int) -> None:
     """Raise ValueError unless the weather data's interval is ``step_min`` minutes."""
     if int(weather.step_min) != int(step_min):
-        hint = (f"set step_min = {weather.step_min}" if weather.step_min in STEPS_MIN else
-                f"{weather.step_min}-minute data are not supported (step_min must be one of "
-                f"{', '.join(map(str, STEPS_MIN))}); resample the file")
+        hint = (f"set step_min = {weather.step_min}" if weather.step_min in GRID_STEPS_MIN
+                else f"{weather.step_min}-minute data are not supported (the interval must "
+                f"divide an hour: {', '.join(map(str, GRID_STEPS_MIN))}); resample the file")
         raise ValueError(f"step_min = {step_min!r}: the weather data ({weather.source}) have "
                          f"{weather.step_min}-minute intervals; they must match: {hint}")
 
@@ -613,9 +617,11 @@ def weather_sky(weather: WeatherData, grid: TimeGrid, sun_up_fraction, zenith,
     step_h = grid.step_min / 60.0
     total_kwh = float(np.nansum(means["ghi"]) * step_h / 1000.0)
     dark = ~up & (means["ghi"] > 0)
+    sun_down_share = 0.0
     if dark.any():
         lost = float(means["ghi"][dark].sum() * step_h / 1000.0)
         pct = 100.0 * lost / total_kwh if total_kwh > 0 else 0.0
+        sun_down_share = pct / 100.0
         notes.append(f"{lost:.3g} kWh/m2 of measured GHI ({pct:.2g} %) in {int(dark.sum())} "
                      "intervals with the sun down, not used (check the timestamps)")
     inst = {}
@@ -671,7 +677,8 @@ def weather_sky(weather: WeatherData, grid: TimeGrid, sun_up_fraction, zenith,
     ghi, dni, dhi = (np.where(up, np.maximum(x, 0.0), 0.0) for x in (ghi, dni, dhi))
     extra = {c: (mapped[c].to_numpy(dtype=float) if c in mapped else None)
              for c in ("temp_air", "wind_speed")}
-    return AllSky(ghi, dni, dhi, "; ".join(notes), extra["temp_air"], extra["wind_speed"])
+    return AllSky(ghi, dni, dhi, "; ".join(notes), extra["temp_air"], extra["wind_speed"],
+                  sun_down_share)
 
 
 class WeatherOptionError(ValueError):

@@ -32,14 +32,14 @@ import numpy as np
 import pandas as pd
 
 from .horizon import HorizonShading, plane_shading, sun_visible
-from .jobs import irradiance_year
+from .jobs import irradiance_on_plane
 from .plane import poa_components
 from .site import Site
 from .sky import clear_sky, extraterrestrial_normal, extraterrestrial_on_plane
 from .skyyear import IrradianceOptions, SkyYear, sky_year
 from .sun import evaluation_points
 from .tilt import periods_poa
-from .timegrid import MIDPOINT_CONVENTION, STEPS_MIN, TimeGrid, local_date
+from .timegrid import MIDPOINT_CONVENTION, TimeGrid, check_step_min, local_date
 
 #: Interval of a clear-sky day, minutes (smooth curves; 144 points a day).
 DAY_STEP_MIN = 10
@@ -161,7 +161,7 @@ def day_grid(site: Site, date, step_min: int = DAY_STEP_MIN) -> TimeGrid:
     date : date-like
         Local calendar date.
     step_min : int, default 10
-        Interval length, one of :data:`tiltyard.engine.timegrid.STEPS_MIN`.
+        Interval length, one of :data:`tiltyard.engine.timegrid.GRID_STEPS_MIN`.
 
     Returns
     -------
@@ -173,9 +173,7 @@ def day_grid(site: Site, date, step_min: int = DAY_STEP_MIN) -> TimeGrid:
     The same cut as :func:`tiltyard.engine.timegrid.year_grid` restricted to
     one date (common practice, no source).
     """
-    if step_min not in STEPS_MIN:
-        raise ValueError(f"step_min = {step_min!r}: must be one of "
-                         f"{', '.join(map(str, STEPS_MIN))}")
+    step_min = check_step_min(step_min)
     day = local_date(date)
     tz = ZoneInfo(site.timezone)
     start = _local_midnight_utc(day, tz)
@@ -238,7 +236,7 @@ def _poa(sky: _Sky, surface_tilt: float, surface_azimuth: float, model: str,
 
 def irradiance_day(site: Site, date, surface_tilt: float, surface_azimuth: float,
                    options: IrradianceOptions | None = None,
-                   step_min: int | None = None) -> DayCurves:
+                   step_min: int | None = None, *, sky: SkyYear | None = None) -> DayCurves:
     """Irradiance curves and totals for one local date on one plane.
 
     Parameters
@@ -258,6 +256,9 @@ def irradiance_day(site: Site, date, surface_tilt: float, surface_azimuth: float
         Interval of a clear-sky day, minutes (:data:`DAY_STEP_MIN` by
         default). The ``monthly`` and ``file`` bases have the interval of
         their year (``options.step_min``); another value is refused.
+    sky : SkyYear, optional
+        The year's sky for ``site`` under ``options`` when the caller has it
+        (the ``monthly`` and ``file`` bases slice their day from it).
 
     Returns
     -------
@@ -303,7 +304,7 @@ def irradiance_day(site: Site, date, surface_tilt: float, surface_azimuth: float
         if day.year != options.year:
             raise ValueError(f"date = {day.date().isoformat()}: the {options.sky!r} basis is "
                              f"built for the year {options.year}; choose a date in that year")
-        year = sky_year(site, options)
+        year = sky if sky is not None else sky_year(site, options)
         rows = np.flatnonzero(year.day_index == day.day_of_year - 1)
         sky = _slice_year(year, rows)
         step = options.step_min
@@ -494,7 +495,8 @@ _SITE_KINDS = ("horizontal", "plane")
 
 
 def compare_options(site: Site, options: IrradianceOptions | None = None, study=None,
-                    progress: Callable[[float, str], None] | None = None) -> tuple:
+                    progress: Callable[[float, str], None] | None = None, *,
+                    sky: SkyYear | None = None) -> tuple:
     """Yearly figures of the horizontal, the site's planes and a tilt study's options.
 
     Parameters
@@ -509,6 +511,8 @@ def compare_options(site: Site, options: IrradianceOptions | None = None, study=
         basis the study used), their horizon loss evaluated on the study's sky.
     progress : callable, optional
         ``progress(fraction, stage)``, may raise to cancel.
+    sky : SkyYear, optional
+        The year's sky for ``site`` under ``options``, when the caller has it.
 
     Returns
     -------
@@ -524,13 +528,15 @@ def compare_options(site: Site, options: IrradianceOptions | None = None, study=
     """
     options = options or IrradianceOptions()
     report = progress or (lambda fraction, stage: None)
+    if sky is None:
+        sky = sky_year(site, options)
     label = sky_basis_label(options)
     planes = [("Horizontal", "horizontal", 0.0, site.equator_azimuth_deg)]
     planes += [(pl.label, "plane", pl.tilt_deg, pl.azimuth_deg) for pl in site.planes]
     out = []
     for i, (name, kind, tilt, az) in enumerate(planes):
         report(0.8 * i / len(planes), f"year on {name}")
-        r = irradiance_year(site, tilt, az, options)
+        r = irradiance_on_plane(sky, tilt, az)
         monthly = r.monthly["poa_kwh_m2"].to_numpy(dtype=float)
         out.append(OptionTotals(name, kind, monthly, float(monthly.sum()),
                                 float(r.horizon_loss_pct), label, options.year, False,
@@ -539,7 +545,7 @@ def compare_options(site: Site, options: IrradianceOptions | None = None, study=
         report(0.8, "tilt study options")
         s_opts = study.options_used.irradiance
         s_label = sky_basis_label(s_opts)
-        s_sky = sky_year(study.site, s_opts)
+        s_sky = study.sky if study.sky is not None else sky_year(study.site, s_opts)
         for opt in study.options:
             if opt.kind in _SITE_KINDS:
                 continue

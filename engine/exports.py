@@ -56,15 +56,27 @@ SHEET_CAUTIONS = (
 
 # -- the JSON document -------------------------------------------------------------------
 
-def study_document(study: TiltStudy) -> dict:
+def study_document(study: TiltStudy, result=None) -> dict:
     """The JSON document of ``tiltyard study --json`` for ``study``.
 
     ``{"study": study.to_json_dict()}``, plus ``"weather"`` (source, interval,
     labelling and every import finding, see
     :func:`tiltyard.engine.allsky.weather_json_dict`) when the sky basis is a
-    weather file.
+    weather file; with the assessment ``result`` (an
+    :class:`tiltyard.engine.assess.AssessmentResult`), also ``"assessment"``
+    (:meth:`~tiltyard.engine.assess.AssessmentResult.header`: the basis used and
+    why, the mounting, the settings) and ``"clear_sky_bound_kwh_m2"`` (each
+    option's annual clear-sky irradiation, the upper bound; null on the clear
+    basis).
     """
-    doc = {"study": study.to_json_dict()}
+    doc = {}
+    if result is not None:
+        doc["assessment"] = result.header()
+    doc["study"] = study.to_json_dict()
+    if result is not None:
+        bound = result.clear_sky_bound()
+        doc["clear_sky_bound_kwh_m2"] = None if bound is None else {
+            k: round(v, 3) for k, v in bound.items()}
     weather = study.options_used.irradiance.weather
     if weather is not None:
         from .allsky import weather_json_dict
@@ -73,9 +85,9 @@ def study_document(study: TiltStudy) -> dict:
     return doc
 
 
-def study_json_text(study: TiltStudy) -> str:
+def study_json_text(study: TiltStudy, result=None) -> str:
     """:func:`study_document` as the exact text ``tiltyard study --json`` prints."""
-    return json.dumps(study_document(study), indent=2, ensure_ascii=False) + "\n"
+    return json.dumps(study_document(study, result), indent=2, ensure_ascii=False) + "\n"
 
 
 # -- tables --------------------------------------------------------------------------------
@@ -381,6 +393,14 @@ class SheetFigures:
         :func:`input_digest` (hex).
     version : str
         Tiltyard's version.
+    basis_words : str
+        The sky basis as a headline says it ("on the site's monthly
+        irradiation values", "clear sky: upper bound only"...).
+    clear_sky_bound_kwh_m2 : float or None
+        The recommended schedule's annual irradiation under a clear sky (the
+        upper bound), when the basis is not the clear sky.
+    weather_warnings : tuple of str
+        Site-fit warnings of a weather file the user accepted.
     """
 
     study: TiltStudy
@@ -396,6 +416,9 @@ class SheetFigures:
     turbidity_source: str
     digest: str
     version: str
+    basis_words: str = ""
+    clear_sky_bound_kwh_m2: float | None = None
+    weather_warnings: tuple = ()
 
     @property
     def short_digest(self) -> str:
@@ -477,7 +500,7 @@ def _models_text(opts: StudyOptions, study: TiltStudy) -> list[tuple[str, str]]:
     return out
 
 
-def sheet_figures(study: TiltStudy, sky: SkyYear | None = None) -> SheetFigures:
+def sheet_figures(study: TiltStudy, sky: SkyYear | None = None, result=None) -> SheetFigures:
     """Gather every figure and statement the feasibility sheet prints.
 
     Parameters
@@ -487,6 +510,8 @@ def sheet_figures(study: TiltStudy, sky: SkyYear | None = None) -> SheetFigures:
     sky : SkyYear, optional
         The study's sky (``sky_year(study.site, study.options_used.irradiance)``);
         computed when not given.
+    result : tiltyard.engine.assess.AssessmentResult, optional
+        The assessment: its basis, accepted weather warnings and clear-sky bound.
 
     Returns
     -------
@@ -502,7 +527,7 @@ def sheet_figures(study: TiltStudy, sky: SkyYear | None = None) -> SheetFigures:
     site = study.site
     opts = study.options_used
     if sky is None:
-        sky = sky_year(site, opts.irradiance)
+        sky = study.sky if study.sky is not None else sky_year(site, opts.irradiance)
     doc = study_document(study)
     d = doc["study"]
     rec = next(r for r in d["options"] if r["label"] == d["recommended"])
@@ -532,12 +557,26 @@ def sheet_figures(study: TiltStudy, sky: SkyYear | None = None) -> SheetFigures:
                   + study.recommendation_rule.replace(" deg", "°")),
     ]
     notes = tuple(w for w in study.warnings)
+    basis_words, bound, fit = _basis_words(irr.sky), None, ()
+    if result is not None:
+        basis_words = result.basis.words
+        fit = tuple(result.weather_warnings)
+        notes = fit + notes
+        b = result.clear_sky_bound()
+        bound = None if b is None else b.get(study.recommended.label)
+        assumptions.insert(1, ("Why this basis", result.basis.reason))
     return SheetFigures(
         study=study, document=doc, recommended=rec, gains_over_planes=planes,
         horizon_loss=loss, options=options_table(study), monthly=monthly_table(study),
         assumptions=tuple(assumptions), cautions=SHEET_CAUTIONS,
         notes=notes, turbidity_source=sky.turbidity_source,
-        digest=input_digest(site, opts), version=tool_version())
+        digest=input_digest(site, opts), version=tool_version(), basis_words=basis_words,
+        clear_sky_bound_kwh_m2=bound, weather_warnings=fit)
+
+
+def _basis_words(sky: str) -> str:
+    return {"clear": "clear sky: upper bound only", "monthly": "on the site's monthly "
+            "irradiation values", "file": "on the weather file"}[sky]
 
 
 __all__ = ["MODEL_NAMES", "MONTH_ABBR", "SHEET_CAUTIONS", "check_option_kinds", "OptionHorizonLoss",
@@ -560,11 +599,13 @@ class SheetData:
     sky: SkyYear
     figures: SheetFigures
     sun: SunChart
+    result: object | None = None      # the AssessmentResult the sheet was made from
 
 
 def sheet_data(site: Site, study: TiltStudy | StudyOptions | None = None,
                time_basis: str = "clock", sun_step_min: float = SUN_STEP_MIN,
-               progress: Callable[[float, str], None] | None = None) -> SheetData:
+               progress: Callable[[float, str], None] | None = None,
+               result=None) -> SheetData:
     """Compute everything a feasibility sheet prints, short of laying out the pages.
 
     Parameters
@@ -579,6 +620,9 @@ def sheet_data(site: Site, study: TiltStudy | StudyOptions | None = None,
         Sampling step of the sun chart's day paths, minutes.
     progress : callable, optional
         ``progress(fraction, stage)``; may raise to cancel.
+    result : tiltyard.engine.assess.AssessmentResult, optional
+        The assessment the study belongs to: its basis, weather warnings and
+        clear-sky bound go on the sheet.
 
     Returns
     -------
@@ -604,11 +648,11 @@ def sheet_data(site: Site, study: TiltStudy | StudyOptions | None = None,
     elif study.site != site:
         raise ValueError("the study given is of another site (or of an earlier version of it)")
     report(0.77, "sky for the hourly figures")
-    sky = sky_year(site, study.options_used.irradiance)
+    sky = study.sky if study.sky is not None else sky_year(site, study.options_used.irradiance)
     report(0.86, "sheet figures")
-    figures = sheet_figures(study, sky)
+    figures = sheet_figures(study, sky, result)
     report(0.93, "sun path")
     sun = sun_chart(site, f"{study.options_used.irradiance.year}-06-21", basis=time_basis,
                     step_min=sun_step_min)
     report(1.0, "done")
-    return SheetData(study, sky, figures, sun)
+    return SheetData(study, sky, figures, sun, result)

@@ -24,7 +24,7 @@ import numpy as np
 from .horizon import plane_shading
 from .plane import poa_components
 from .site import Site
-from .skyyear import IrradianceOptions, sky_year
+from .skyyear import IrradianceOptions, SkyYear, sky_year
 
 #: Interval length used when no options are given, minutes (an hourly year).
 DEFAULT_STEP_MIN = 60
@@ -189,7 +189,29 @@ def horizon_loss(site: Site, options: IrradianceOptions | None = None,
     options = options or IrradianceOptions(step_min=DEFAULT_STEP_MIN)
     if progress is not None:
         progress(0.0, "sky over the year")
-    sky = sky_year(site, options)
+    return horizon_loss_of_sky(sky_year(site, options), progress)
+
+
+def horizon_loss_of_sky(sky: SkyYear,
+                        progress: Callable[[float, str], None] | None = None) -> HorizonLoss:
+    """:func:`horizon_loss` on a sky year already evaluated (same arithmetic).
+
+    Parameters
+    ----------
+    sky : SkyYear
+        The year's sky at the site.
+    progress : callable, optional
+        As for :func:`horizon_loss`.
+
+    Returns
+    -------
+    HorizonLoss
+
+    References
+    ----------
+    As :func:`horizon_loss`.
+    """
+    site, options = sky.site, sky.options
     pos = sky.position
     app_zen = pos["apparent_zenith"].to_numpy()
     saz = pos["azimuth"].to_numpy()
@@ -226,4 +248,5 @@ def horizon_loss(site: Site, options: IrradianceOptions | None = None,
     return HorizonLoss(site.name, options, tuple(out), sky.turbidity_source, notes)
 
 
-__all__ = ["DEFAULT_STEP_MIN", "HorizonLoss", "PlaneHorizonLoss", "horizon_loss"]
+__all__ = ["DEFAULT_STEP_MIN", "HorizonLoss", "PlaneHorizonLoss", "horizon_loss",
+           "horizon_loss_of_sky"]

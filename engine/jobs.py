@@ -21,7 +21,7 @@ from .horizon import HorizonShading, plane_shading
 from .plane import TRANSPOSITION_REFERENCES, poa_components
 from .site import Site
 from .sky import CLEARSKY_REFERENCES, extraterrestrial_on_plane
-from .skyyear import IrradianceOptions, sky_year
+from .skyyear import IrradianceOptions, SkyYear, sky_year
 from .sun import day_path, sun_events
 from .timegrid import MIDPOINT_CONVENTION
 
@@ -205,13 +205,39 @@ def irradiance_year(site: Site, surface_tilt: float, surface_azimuth: float,
     (1990); Hay & Davies (1980); Liu & Jordan (1963); implementations in pvlib
     (Holmgren, Hansen & Mikofski 2018, JOSS 3(29), 884).
     """
-    options = options or IrradianceOptions()
+    return irradiance_on_plane(sky_year(site, options or IrradianceOptions()), surface_tilt,
+                               surface_azimuth)
+
+
+def irradiance_on_plane(sky: SkyYear, surface_tilt: float,
+                        surface_azimuth: float) -> IrradianceResult:
+    """A year of irradiance on one plane, on a sky year already evaluated.
+
+    The arithmetic of :func:`irradiance_year` (which evaluates the sky first):
+    transposition with components kept apart and the site horizon applied,
+    extraterrestrial irradiance on the plane, monthly and annual sums.
+
+    Parameters
+    ----------
+    sky : SkyYear
+        The year's sky at the site (:func:`tiltyard.engine.skyyear.sky_year`).
+    surface_tilt, surface_azimuth : float
+        Plane tilt (0-90°) and azimuth (clockwise from north).
+
+    Returns
+    -------
+    IrradianceResult
+
+    References
+    ----------
+    As :func:`irradiance_year`.
+    """
+    site, options = sky.site, sky.options
     if not 0.0 <= float(surface_tilt) <= 90.0:
         raise ValueError(f"surface_tilt = {surface_tilt!r}: must be between 0 and 90 deg")
     if not 0.0 <= float(surface_azimuth) <= 360.0:
         raise ValueError(f"surface_azimuth = {surface_azimuth!r}: must be between 0 and 360 deg")
     surface_azimuth = float(surface_azimuth) % 360.0
-    sky = sky_year(site, options)
     grid, pos, frac = sky.grid, sky.position, sky.sun_up_fraction
     ghi, dni, dhi, dni_extra = sky.ghi, sky.dni, sky.dhi, sky.dni_extra
     app_zen = pos["apparent_zenith"].to_numpy()
@@ -282,6 +308,7 @@ def model_references() -> dict:
     return refs
 
 
-__all__ = ["CAUTION", "IrradianceOptions", "IrradianceResult", "SunDay", "irradiance_year",
+__all__ = ["CAUTION", "IrradianceOptions", "IrradianceResult", "SunDay", "irradiance_on_plane",
+           "irradiance_year",
            "model_references", "sun_day"]
 

@@ -26,7 +26,13 @@ from typing import Any
 from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 
 FORMAT_NAME = "tiltyard-site"
-FORMAT_VERSION = 1
+#: Version 2 added a plane's ``mounting`` and the ``assessment`` section (sky basis,
+#: weather file, models, study settings, mounting; see :mod:`tiltyard.engine.assessment`).
+#: Version 1 files load as they are and are written as version 2.
+FORMAT_VERSION = 2
+
+#: How panels are held (see :data:`tiltyard.engine.tilt.MOUNTINGS` for what each allows).
+MOUNTINGS = ("flush", "fixed-rack", "adjustable", "ground-rows", "flat-roof-rows")
 
 #: Name of the demo site the quick start and the app open by default.
 DEFAULT_DEMO = "larkmoor-dairy"
@@ -151,16 +157,24 @@ class Obstacle:
 
 @dataclass(frozen=True)
 class Plane:
-    """A candidate or existing panel plane."""
+    """A candidate or existing panel plane.
+
+    ``mounting`` is how panels on it are held (one of :data:`MOUNTINGS`); a
+    site's own planes are roof planes with the panels ``flush`` on them unless
+    the file says otherwise.
+    """
 
     label: str
     tilt_deg: float
     azimuth_deg: float
+    mounting: str = "flush"
 
     def __post_init__(self):
         object.__setattr__(self, "tilt_deg", _number("tilt_deg", self.tilt_deg, 0, 90, "deg"))
         object.__setattr__(self, "azimuth_deg",
                            _number("azimuth_deg", self.azimuth_deg, 0, 360, "deg") % 360.0)
+        if self.mounting not in MOUNTINGS:
+            raise SiteError("mounting", self.mounting, "must be one of " + ", ".join(MOUNTINGS))
 
 
 @dataclass(frozen=True)
@@ -320,7 +334,8 @@ def _plane_from_dict(d: dict, i: int) -> Plane:
         if key not in d:
             raise SiteError(f"{prefix}.{key}", None, "is required")
     try:
-        return Plane(str(d.get("label", f"plane {i + 1}")), d["tilt_deg"], d["azimuth_deg"])
+        return Plane(str(d.get("label", f"plane {i + 1}")), d["tilt_deg"], d["azimuth_deg"],
+                     d.get("mounting", "flush"))
     except SiteError as err:
         raise SiteError(f"{prefix}.{err.field}", err.value, err.reason) from None
 
@@ -399,8 +414,8 @@ def site_to_dict(site: Site) -> dict:
         "obstacles": [{"label": o.label, "bearing_deg": o.bearing_deg, "width_deg": o.width_deg,
                        "distance_m": o.distance_m, "height_m": o.height_m}
                       for o in site.obstacles],
-        "planes": [{"label": p.label, "tilt_deg": p.tilt_deg, "azimuth_deg": p.azimuth_deg}
-                   for p in site.planes],
+        "planes": [{"label": p.label, "tilt_deg": p.tilt_deg, "azimuth_deg": p.azimuth_deg,
+                    "mounting": p.mounting} for p in site.planes],
         "linke_turbidity": list(site.linke_turbidity) if site.linke_turbidity else None,
         "notes": site.notes,
     }
@@ -409,14 +424,14 @@ def site_to_dict(site: Site) -> dict:
     return d
 
 
-def load_site(path: str | os.PathLike) -> Site:
-    """Read a site file.
+def load_site_document(path: str | os.PathLike) -> dict:
+    """Read a site file's JSON document (not yet validated).
 
     Raises
     ------
     SiteError
-        With ``file`` set, naming the field and the reason (also for unreadable
-        files and malformed JSON, where the field is the line and column).
+        With ``file`` set, for unreadable files and malformed JSON (the field
+        is the line and column).
     """
     path = Path(path)
     try:
@@ -428,17 +443,30 @@ def load_site(path: str | os.PathLike) -> Site:
     except OSError as err:
         raise SiteError("(file)", str(path), f"cannot be read ({err.strerror})", str(path)) from None
     try:
-        data = json.loads(text)
+        return json.loads(text)
     except json.JSONDecodeError as err:
         lines = text.splitlines()
         # the error may sit just past the last line (a file cut short)
         shown = lines[err.lineno - 1].strip()[:40] if 0 < err.lineno <= len(lines) else ""
         raise SiteError(f"line {err.lineno}, column {err.colno}", shown,
                         f"is not valid JSON ({err.msg})", str(path)) from None
+
+
+def load_site(path: str | os.PathLike) -> Site:
+    """Read a site file (its ``assessment`` section, if any, is read by
+    :func:`tiltyard.engine.assessment.load_assessment`).
+
+    Raises
+    ------
+    SiteError
+        With ``file`` set, naming the field and the reason (also for unreadable
+        files and malformed JSON, where the field is the line and column).
+    """
+    data = load_site_document(path)
     try:
         return site_from_dict(data)
     except SiteError as err:
-        raise err.in_file(path) from None
+        raise err.in_file(Path(path)) from None
 
 
 def atomic_write_text(path: str | os.PathLike, text: str) -> None:

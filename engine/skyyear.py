@@ -20,7 +20,7 @@ from .plane import TRANSPOSITION_MODELS
 from .site import Site
 from .sky import CLEARSKY_MODELS, SOLAR_CONSTANT_W_M2, clear_sky, extraterrestrial_normal
 from .sun import evaluation_points
-from .timegrid import REFERENCE_YEAR, STEPS_MIN, TimeGrid, year_grid
+from .timegrid import REFERENCE_YEAR, TimeGrid, check_step_min, year_grid
 from .weather import WeatherData
 
 #: Sky bases: the clear sky; a synthetic year from the site's monthly mean
@@ -73,9 +73,7 @@ class IrradianceOptions:
         if not 1000.0 <= float(self.solar_constant_w_m2) <= 1500.0:
             raise ValueError(f"solar_constant_w_m2 = {self.solar_constant_w_m2!r}: must be "
                              "between 1000 and 1500 W/m2")
-        if self.step_min not in STEPS_MIN:
-            raise ValueError(f"step_min = {self.step_min!r}: must be one of "
-                             f"{', '.join(map(str, STEPS_MIN))}")
+        check_step_min(self.step_min)
         if not 1900 <= int(self.year) <= 2100:
             raise ValueError(f"year = {self.year!r}: must be between 1900 and 2100")
         if self.sky == "file":
@@ -123,6 +121,9 @@ class SkyYear:
     temp_air, wind_speed : numpy.ndarray or None
         Air temperature (°C) and wind speed (m/s) per interval from the
         weather data (NaN where missing); None if the basis has none.
+    sun_down_ghi_share : float
+        Share of a weather series' GHI recorded while the sun is down at the
+        site (0 for the clear and monthly bases).
     """
 
     site: Site
@@ -143,6 +144,7 @@ class SkyYear:
     note: str
     temp_air: np.ndarray | None = None
     wind_speed: np.ndarray | None = None
+    sun_down_ghi_share: float = 0.0
 
     @property
     def n_days(self) -> int:
@@ -191,10 +193,12 @@ def sky_year(site: Site, options: IrradianceOptions | None = None) -> SkyYear:
     month = local.month.to_numpy()
     day_index = local.day_of_year.to_numpy() - 1
     temp_air = wind_speed = None
+    sun_down = 0.0
     if options.sky == "file":
         sky = weather_sky(options.weather, grid, frac, zenith, dni_extra)
         ghi, dni, dhi = sky.ghi, sky.dni, sky.dhi
         temp_air, wind_speed = sky.temp_air, sky.wind_speed
+        sun_down = sky.sun_down_ghi_share
         turbidity_source, note = "not used (measured weather)", sky.note
     else:
         cs = clear_sky(ep.times_utc, pos, site, options.clearsky_model, dni_extra)
@@ -214,4 +218,4 @@ def sky_year(site: Site, options: IrradianceOptions | None = None) -> SkyYear:
     albedo = np.asarray(site.albedo_by_month(), dtype=float)[month - 1]
     return SkyYear(site, options, grid, ep.times_utc, frac, pos, ghi, dni, dhi,
                    dni_extra, vis, albedo, month, day_index,
-                   turbidity_source, note, temp_air, wind_speed)
+                   turbidity_source, note, temp_air, wind_speed, sun_down)

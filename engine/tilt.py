@@ -25,11 +25,21 @@ import pandas as pd
 
 from .manyplane import many_plane_daily, many_plane_terms
 from .plane import poa_components
-from .site import Site
+from .site import MOUNTINGS, Site
 from .skyyear import IrradianceOptions, SkyYear, sky_year
 
 OPTION_KINDS = ("horizontal", "plane", "rule-of-thumb", "fixed-optimal", "two-season",
                 "four-season", "monthly", "two-axis")
+
+#: How the panels are held, and so which options a study may list and recommend:
+#: ``flush`` on the roof (the roof's own tilt and azimuth; no seasonal option),
+#: ``fixed-rack`` (tilt free within limits, azimuth free or fixed), ``adjustable``
+#: (seasonal schedules, up to ``max_positions`` positions a year), ``ground-rows`` and
+#: ``flat-roof-rows`` (fixed racks in rows, with pitch and ground coverage).
+
+#: Option kinds each mounting allows besides the references (horizontal, the site's
+#: planes as they are, the fixed optimum as the best plane, the two-axis ceiling).
+SEASONAL_KINDS = (("two-season", 2), ("four-season", 4), ("monthly", 12))
 
 MONTH_NAMES = ("January", "February", "March", "April", "May", "June", "July", "August",
                "September", "October", "November", "December")
@@ -72,6 +82,11 @@ class StudyOptions:
     loss_fraction : float
         System loss fraction for the indicative specific yield (default 0.14,
         common practice, no source).
+    mounting : str
+        One of :data:`MOUNTINGS`: which options are listed and recommended.
+    max_positions : int
+        Most tilt positions a year of an ``adjustable`` mounting (2, 4 or 12
+        allow the two-season, four-season and monthly schedules).
     """
 
     irradiance: IrradianceOptions = field(default_factory=IrradianceOptions)
@@ -88,6 +103,8 @@ class StudyOptions:
     row_design_date: str | None = None
     row_half_width_h: float = 3.0
     loss_fraction: float = 0.14
+    mounting: str = "adjustable"
+    max_positions: int = 12
 
     def __post_init__(self):
         if self.objective not in ("annual", "worst-month", "months"):
@@ -126,6 +143,30 @@ class StudyOptions:
                              "and at most 6 h")
         if not 0.0 <= self.loss_fraction <= 0.9:
             raise ValueError(f"loss_fraction = {self.loss_fraction!r}: must be between 0 and 0.9")
+        if self.mounting not in MOUNTINGS:
+            raise ValueError(f"mounting = {self.mounting!r}: must be one of "
+                             f"{', '.join(MOUNTINGS)}")
+        if isinstance(self.max_positions, bool) or not isinstance(self.max_positions, int) \
+                or not 1 <= self.max_positions <= 12:
+            raise ValueError(f"max_positions = {self.max_positions!r}: must be a whole number "
+                             "from 1 to 12")
+
+    def allows(self, kind: str) -> bool:
+        """Whether the mounting allows an option of ``kind`` to be recommended and listed.
+
+        The references (horizontal, the site's planes, the fixed optimum as the
+        best plane for the site, the two-axis ceiling) are always listed; the
+        rule of thumb needs a rack; a seasonal schedule needs an ``adjustable``
+        mounting with at least as many positions as the schedule has periods.
+        """
+        if kind in ("horizontal", "plane", "fixed-optimal", "two-axis"):
+            return True
+        if kind == "rule-of-thumb":
+            return self.mounting != "flush"
+        need = dict(SEASONAL_KINDS).get(kind)
+        if need is None:
+            raise ValueError(f"option kind {kind!r}: must be one of {', '.join(OPTION_KINDS)}")
+        return self.mounting == "adjustable" and self.max_positions >= need
 
     def candidate_tilts(self) -> np.ndarray:
         """The tilts the optimiser may choose, degrees."""
@@ -169,17 +210,27 @@ class StudyOption:
 class TiltStudy:
     """The result of :func:`tilt_study`.
 
+    Every comparison is in the units of the study's objective (kWh/m² of the
+    year, of the weakest month, or of the chosen months); annual totals are
+    kept beside it.
+
     Attributes
     ----------
     options : tuple of StudyOption
-        In the order of :data:`OPTION_KINDS` (site planes in file order).
+        In the order of :data:`OPTION_KINDS` (site planes in file order); only
+        the kinds the mounting allows (:meth:`StudyOptions.allows`).
     tilt_curve : pandas.DataFrame
-        Annual irradiation against tilt (0-90° by 1°) at ``curve_azimuth_deg``.
+        Objective value (``objective_kwh_m2``) and annual irradiation
+        (``annual_kwh_m2``) against tilt (0-90° by 1°) at ``curve_azimuth_deg``.
     grid_pct : pandas.DataFrame
-        Annual irradiation on the tilt x azimuth grid as % of the grid optimum
+        The objective on the tilt x azimuth grid as % of the grid optimum
         (index tilt_deg, columns azimuth_deg).
+    grid_optimum : tuple
+        (tilt_deg, azimuth_deg, objective value in kWh/m²) of the grid's best plane.
     warnings : tuple of str
         Things a practitioner should look at.
+    sky : SkyYear
+        The sky the study was scored on (not compared, not shown in repr).
     """
 
     site: Site
@@ -198,11 +249,16 @@ class TiltStudy:
     row_layout: object | None = None
     row_note: str = ""
     yields: tuple = ()
+    sky: SkyYear | None = field(default=None, repr=False, compare=False)
 
     def option(self, kind: str) -> StudyOption:
         return next(o for o in self.options if o.kind == kind)
 
+    def has_option(self, kind: str) -> bool:
+        return any(o.kind == kind for o in self.options)
+
     def score(self, opt: StudyOption) -> float:
+        """The option's objective value, kWh/m²."""
         return _score_monthly(opt.monthly_kwh_m2[:, None], self.options_used,
                               self._active_mask)[0]
 
@@ -211,17 +267,27 @@ class TiltStudy:
         return np.isin(np.arange(1, 13), self.active_months)
 
     @property
-    def recommended(self) -> StudyOption:
-        """The option to recommend under the objective.
+    def mounting(self) -> str:
+        return self.options_used.mounting
 
-        Start from the fixed optimum and move to two, four, then twelve
-        adjustments a year only while each step raises the objective by at
-        least ``worth_pct`` percent (3 % by default: common practice, no
-        source; each adjustment costs a site visit). An existing plane is kept
-        if it is within ``worth_pct`` of the fixed optimum.
+    @property
+    def recommended(self) -> StudyOption:
+        """The option to recommend under the objective and the mounting.
+
+        A ``flush`` mounting keeps the roof as it is: the best of the site's
+        planes. Otherwise start from the fixed optimum and move to two, four,
+        then twelve adjustments a year, as far as the mounting allows, only
+        while each step raises the objective by at least ``worth_pct`` percent
+        (3 % by default: common practice, no source; each adjustment costs a
+        site visit).
         """
+        if self.mounting == "flush":
+            planes = [o for o in self.options if o.kind == "plane"]
+            if planes:
+                return max(planes, key=self.score)
+            return self.option("fixed-optimal")
         ladder = [self.option(k) for k in ("fixed-optimal", "two-season", "four-season",
-                                            "monthly")]
+                                            "monthly") if self.has_option(k)]
         best = ladder[0]
         for nxt in ladder[1:]:
             if self.score(nxt) >= self.score(best) * (1.0 + self.worth_pct / 100.0):
@@ -232,17 +298,35 @@ class TiltStudy:
 
     @property
     def recommendation_rule(self) -> str:
-        return (f"fixed optimum unless more adjustments raise the {self.options_used.objective_label}"
+        o = self.options_used
+        if o.mounting == "flush":
+            return ("flush on the roof: the roof plane as it is (the best of the site's planes "
+                    f"on the {o.objective_label} objective); the best plane for the site is a "
+                    "reference")
+        if not any(self.has_option(k) for k, _ in SEASONAL_KINDS):
+            return (f"{o.mounting} mounting: the fixed optimum on the {o.objective_label} "
+                    "objective (no seasonal adjustment)")
+        return (f"fixed optimum unless more adjustments raise the {o.objective_label}"
                 f" objective by at least {self.worth_pct:g} % per step")
 
     def gain_pct(self, opt: StudyOption, kind: str) -> float | None:
+        """Gain of ``opt`` over the option of ``kind`` on the objective, percent."""
+        base = self.score(self.option(kind))
+        return None if base <= 0 else 100.0 * (self.score(opt) / base - 1.0)
+
+    def annual_gain_pct(self, opt: StudyOption, kind: str) -> float | None:
+        """Gain of ``opt`` over the option of ``kind`` in annual totals, percent."""
         base = self.option(kind).annual_kwh_m2
         return None if base <= 0 else 100.0 * (opt.annual_kwh_m2 / base - 1.0)
+
+    def share_pct(self, opt: StudyOption, kind: str) -> float | None:
+        """``opt``'s objective value as a share of the option of ``kind``'s, percent."""
+        base = self.score(self.option(kind))
+        return None if base <= 0 else 100.0 * self.score(opt) / base
 
     def to_json_dict(self) -> dict:
         """The ``study`` document of the command line's ``--json`` output."""
         o = self.options_used
-        ceiling = self.option("two-axis").annual_kwh_m2
         rows = []
         for opt in self.options:
             rows.append({
@@ -251,32 +335,42 @@ class TiltStudy:
                               "azimuth_deg": p.azimuth_deg} for p in opt.schedule],
                 "annual_kwh_m2": round(opt.annual_kwh_m2, 3),
                 "monthly_kwh_m2": [round(float(v), 3) for v in opt.monthly_kwh_m2],
+                "objective_value_kwh_m2": round(float(self.score(opt)), 3),
                 "gain_vs_horizontal_pct": _r(self.gain_pct(opt, "horizontal")),
                 "gain_vs_fixed_optimal_pct": _r(self.gain_pct(opt, "fixed-optimal")),
-                "share_of_tracking_pct": _r(100.0 * opt.annual_kwh_m2 / ceiling
-                                            if ceiling > 0 else None),
-                "objective_value_kwh_m2": round(float(self.score(opt)), 3),
+                "share_of_tracking_pct": _r(self.share_pct(opt, "two-axis")),
+                "share_of_best_plane_pct": _r(self.share_pct(opt, "fixed-optimal")),
+                "annual_gain_vs_horizontal_pct": _r(self.annual_gain_pct(opt, "horizontal")),
+                "annual_gain_vs_fixed_optimal_pct": _r(self.annual_gain_pct(opt,
+                                                                            "fixed-optimal")),
                 "adjustments_per_year": opt.adjustments_per_year,
                 "note": opt.note,
             })
         return {
             "site": self.site.name, "year": o.irradiance.year, "sky": o.irradiance.sky,
             "model": o.irradiance.model, "objective": o.objective_label,
+            "objective_units": _OBJECTIVE_UNITS[o.objective],
+            "mounting": {"kind": o.mounting, "max_positions": o.max_positions
+                         if o.mounting == "adjustable" else 1},
+            "step_min": o.irradiance.step_min,
             "constraints": {"tilt_range_deg": [o.tilt_min_deg, o.tilt_max_deg],
                             "tilt_step_deg": o.tilt_step_deg,
                             "azimuth": "free" if o.azimuth_deg is None else o.azimuth_deg,
                             "min_days_between": o.min_days_between},
             "recommended": self.recommended.label,
+            "recommended_kind": self.recommended.kind,
             "recommendation_rule": self.recommendation_rule,
             "active_months": list(self.active_months),
             "options": rows,
             "tilt_curve": {"azimuth_deg": self.curve_azimuth_deg,
                            "tilt_deg": self.tilt_curve.index.tolist(),
+                           "objective_kwh_m2": [round(v, 3) for v in
+                                                self.tilt_curve["objective_kwh_m2"]],
                            "annual_kwh_m2": [round(v, 3) for v in
                                              self.tilt_curve["annual_kwh_m2"]]},
             "grid_optimum": {"tilt_deg": self.grid_optimum[0],
                              "azimuth_deg": self.grid_optimum[1],
-                             "annual_kwh_m2": round(self.grid_optimum[2], 3)},
+                             "objective_kwh_m2": round(self.grid_optimum[2], 3)},
             "warnings": list(self.warnings),
             "sky_note": self.sky_note,
             "rows": _rows_json(self),
@@ -289,6 +383,11 @@ class TiltStudy:
                              "difference_vs_hourly_pct": _r(c.difference_pct)}
                             for c in self.monthly_method]},
         }
+
+
+#: What an objective value measures.
+_OBJECTIVE_UNITS = {"annual": "kWh/m2 in the year", "worst-month": "kWh/m2 in the weakest month",
+                    "months": "kWh/m2 in the chosen months"}
 
 
 def _r(v):
@@ -467,7 +566,8 @@ def _improve_for_objective(daily, switches, tilts, month_of_day, opts, n_days, m
 # -- the study ----------------------------------------------------------------------
 
 def tilt_study(site: Site, opts: StudyOptions | None = None,
-               progress: Callable[[float, str], None] | None = None) -> TiltStudy:
+               progress: Callable[[float, str], None] | None = None, *,
+               sky: SkyYear | None = None) -> TiltStudy:
     """Compare tilt options for ``site`` under ``opts``.
 
     Parameters
@@ -475,10 +575,14 @@ def tilt_study(site: Site, opts: StudyOptions | None = None,
     site : Site
         The site, with its horizon and existing planes.
     opts : StudyOptions, optional
-        Objective, constraints, sky basis.
+        Objective, constraints, mounting, sky basis.
     progress : callable, optional
         Called as ``progress(fraction, stage)`` between stages; a caller that
         wants to cancel raises from it and the exception propagates.
+    sky : SkyYear, optional
+        The year's sky for ``site`` under ``opts.irradiance``, when the caller
+        has it already (:func:`tiltyard.engine.assessment.assess` builds it
+        once); computed otherwise. The study carries it (``TiltStudy.sky``).
 
     Returns
     -------
@@ -492,170 +596,218 @@ def tilt_study(site: Site, opts: StudyOptions | None = None,
     """
     opts = opts or StudyOptions()
     report = progress or (lambda fraction, stage: None)
+    if opts.mounting == "flush" and not site.planes:
+        raise ValueError("mounting = 'flush': panels flush on a roof need the roof's plane; "
+                         "add the roof plane (tilt and azimuth) to the site, or choose a rack")
     report(0.0, "sun and sky for the year")
-    sky = sky_year(site, opts.irradiance)
+    if sky is None:
+        sky = sky_year(site, opts.irradiance)
+    elif sky.site != site or sky.options != opts.irradiance:
+        raise ValueError("the sky given is of another site or sky basis than the study's")
     report(0.25, "transposition terms")
-    terms = many_plane_terms(sky)
-    n_days = sky.n_days
-    mod = _month_of_day(sky)
-    year = opts.irradiance.year
-    warnings = []
-    whole_year = (Period("01-01", "12-31", 0.0, 0.0),)
-
-    def fixed(label, kind, tilt, az, note=""):
-        r = many_plane_daily(terms, [tilt], [az], site=site)
-        m = _monthly_from_daily(r.daily_kwh_m2, mod)[:, 0]
-        sched = (Period(whole_year[0].start, whole_year[0].end, round(float(tilt), 3),
-                        round(float(az) % 360.0, 3)),)
-        return StudyOption(label, kind, sched, m, float(m.sum()), note)
-
-    options = [fixed("Horizontal", "horizontal", 0.0, site.equator_azimuth_deg,
-                     "baseline for every gain")]
-    hmon = options[0].monthly_kwh_m2
-    active = hmon > 0.01 * hmon.max()
-    active_months = tuple(int(m) for m in np.flatnonzero(active) + 1)
-
-    def score_cols(monthly):
-        return _score_monthly(monthly, opts, active)
+    st = _Scorer(site, opts, sky, many_plane_terms(sky))
+    options = [st.fixed("Horizontal", "horizontal", 0.0, site.equator_azimuth_deg,
+                        "baseline for every gain")]
+    st.set_active(options[0].monthly_kwh_m2)
     for pl in site.planes:
-        options.append(fixed(pl.label, "plane", pl.tilt_deg, pl.azimuth_deg,
-                             "existing plane as it is"))
-    rot_tilt = min(abs(site.latitude_deg), 90.0)
-    options.append(fixed(f"Rule of thumb: tilt = latitude ({rot_tilt:.0f} deg)", "rule-of-thumb",
-                         rot_tilt, site.equator_azimuth_deg,
-                         "rule of thumb, not an optimum: tilt equal to |latitude|, facing the "
-                         "equator"))
-
-    # the tilt x azimuth grid: sensitivity map and the open search for the azimuth
-    g_t, g_a = np.meshgrid(np.arange(0.0, 91.0, 1.0), np.arange(0.0, 360.0, 5.0), indexing="ij")
+        options.append(st.fixed(pl.label, "plane", pl.tilt_deg, pl.azimuth_deg,
+                                "existing plane as it is"))
+    if opts.allows("rule-of-thumb"):
+        rot_tilt = min(abs(site.latitude_deg), 90.0)
+        options.append(st.fixed(f"Rule of thumb: tilt = latitude ({rot_tilt:.0f} deg)",
+                                "rule-of-thumb", rot_tilt, site.equator_azimuth_deg,
+                                "rule of thumb, not an optimum: tilt equal to |latitude|, "
+                                "facing the equator"))
     report(0.35, "tilt and azimuth grid")
-    grid = many_plane_daily(terms, g_t, g_a, site=site)
-    g_month = _monthly_from_daily(grid.daily_kwh_m2, mod)
-    g_annual = g_month.sum(axis=0).reshape(g_t.shape)
-    gi = np.unravel_index(int(np.argmax(g_annual)), g_annual.shape)
-    grid_opt = (float(g_t[gi]), float(g_a[gi]), float(g_annual[gi]))
-    grid_pct = pd.DataFrame(100.0 * g_annual / g_annual.max(),
-                            index=pd.Index(g_t[:, 0], name="tilt_deg"),
-                            columns=pd.Index(g_a[0], name="azimuth_deg"))
-
-    # fixed optimum on the constrained tilt candidates
-    tilts = opts.candidate_tilts()
-    if opts.azimuth_deg is not None:
-        azimuths = np.array([float(opts.azimuth_deg) % 360.0])
-    else:
-        g_score = score_cols(g_month).reshape(g_t.shape)
-        a0 = float(g_a[np.unravel_index(int(np.argmax(g_score)), g_score.shape)])
-        azimuths = np.mod(a0 + np.arange(-5.0, 5.5, 1.0), 360.0)
-    c_t, c_a = np.meshgrid(tilts, azimuths, indexing="ij")
-    cand = many_plane_daily(terms, c_t, c_a, site=site)
-    c_month = _monthly_from_daily(cand.daily_kwh_m2, mod)
-    ci = int(np.argmax(score_cols(c_month)))
-    opt_tilt, opt_az = float(c_t.ravel()[ci]), float(c_a.ravel()[ci])
-    fixed_opt = fixed(f"Optimal fixed ({opt_tilt:g} deg, azimuth {opt_az:g} deg)",
-                      "fixed-optimal", opt_tilt, opt_az,
-                      f"optimum over tilts {tilts[0]:g}-{tilts[-1]:g} by {opts.tilt_step_deg:g} "
-                      "deg" + (", azimuth fixed" if opts.azimuth_deg is not None
-                               else ", azimuth free (1 deg)"))
+    grid_pct, grid_opt = st.grid()
+    fixed_opt = st.fixed_optimum()
     options.append(fixed_opt)
-    if opts.irradiance.sky == "clear":
-        equator = site.equator_azimuth_deg
-        off = abs((opt_az - equator + 180.0) % 360.0 - 180.0)
-        if off > 5.0 and opts.azimuth_deg is None:
-            open_site = site.with_changes(horizon=type(site.horizon)(), obstacles=())
-            og = many_plane_daily(many_plane_terms(_open_sky(sky, open_site)), g_t, g_a,
-                                  site=open_site)
-            og_ann = og.daily_kwh_m2.sum(axis=0).reshape(g_t.shape)
-            oa = float(g_a[np.unravel_index(int(np.argmax(og_ann)), og_ann.shape)])
-            if abs((oa - equator + 180.0) % 360.0 - 180.0) > 5.0:
-                warnings.append(
-                    f"The clear-sky optimum azimuth ({oa:g} deg) is more than 5 deg from the "
-                    f"equator direction ({equator:g} deg) even with the horizon removed: check "
-                    "the time zone and timestamps upstream.")
-            else:
-                warnings.append(f"The optimum azimuth ({opt_az:g} deg) is {off:.0f} deg off the "
-                                "equator direction because of the site horizon.")
-
-    # schedules at the optimum's azimuth, tilt candidates only
-    # (the candidates' daily columns at that azimuth, already computed)
-    sched_az = opt_az
-    s_t = tilts
-    ai = int(np.flatnonzero(azimuths == opt_az)[0])
-    sd = cand.daily_kwh_m2.reshape(n_days, len(tilts), len(azimuths))[:, :, ai]
-    weights = np.ones(n_days)
-    if opts.objective == "months":
-        # other days weigh almost nothing: they only break ties in unweighted periods
-        weights = np.where(np.isin(mod, [int(m) for m in opts.months]), 1.0, 1e-6)
-    cum = np.vstack([np.zeros(len(s_t)), np.cumsum(sd * weights[:, None], axis=0)])
-    min_days = int(opts.min_days_between)
-
-    def sched_option(label, kind, switches, tilt_idx, note):
-        dd = _schedule_daily(sd, switches, tilt_idx, n_days)
-        m = _monthly_from_daily(dd[:, None], mod)[:, 0]
-        periods = []
-        for (a, b), t in zip(_periods_from_switches(switches, n_days), tilt_idx, strict=True):
-            periods.append(Period(_mmdd(year, a), _mmdd(year, (b - 1) % n_days),
-                                  float(s_t[t]), round(sched_az, 3)))
-        periods.sort(key=lambda p: p.start)
-        return StudyOption(label, kind, tuple(periods), m, float(m.sum()), note)
-
+    warnings = st.azimuth_warnings(fixed_opt)
     report(0.6, "seasonal schedules")
-    separable = opts.objective != "worst-month"
-    if opts.switch_dates is not None:
-        sw2 = sorted(_day_from_mmdd(year, x) for x in opts.switch_dates)
-        t2, _ = _best_tilts_separable(cum, sw2, n_days)
-        note2 = "switch dates fixed by the user"
-    else:
-        sw2, t2, _ = _two_period_exhaustive(cum, n_days, min_days)
-        note2 = "switch dates optimised to the day (exhaustive)"
-    sw4, t4, _ = _k_period_search(cum, n_days, 4, min_days)
-    note4 = "switch dates optimised to the day (14-day lattice, refined)"
-    if not separable:
-        if opts.switch_dates is None:
-            sw2, t2 = _improve_for_objective(sd, sw2, t2, mod, opts, n_days, min_days,
-                                            active)
-        sw4, t4 = _improve_for_objective(sd, sw4, t4, mod, opts, n_days, min_days, active)
-        note2 += "; worst-month objective by local search from the annual optimum"
-        note4 += "; worst-month objective by local search from the annual optimum"
-    options.append(sched_option("Two-season schedule", "two-season", sw2, t2, note2))
-    options.append(sched_option("Four-season schedule", "four-season", sw4, t4, note4))
-    # monthly: best tilt for each calendar month
-    month_starts = [int(pd.Timestamp(year, m, 1).day_of_year) - 1 for m in range(1, 13)]
-    month_cols = _monthly_from_daily(sd, mod)
-    tm = [int(np.argmax(month_cols[m] if active[m] else month_cols.sum(axis=0)))
-          for m in range(12)]
-    options.append(sched_option("Monthly schedule", "monthly", month_starts, tm,
-                                "best tilt for each calendar month"))
+    options.extend(st.seasonal())
     report(0.85, "two-axis ceiling")
-    options.append(_two_axis(sky, site, mod))
-
-    # the tilt curve at the chosen azimuth
-    curve_az = opt_az
-    curve = many_plane_daily(terms, np.arange(0.0, 91.0), np.full(91, curve_az), site=site)
-    tilt_curve = pd.DataFrame({"annual_kwh_m2": curve.daily_kwh_m2.sum(axis=0)},
-                              index=pd.Index(np.arange(0.0, 91.0), name="tilt_deg"))
+    options.append(_two_axis(sky, site, st.mod))
+    curve_az = fixed_opt.schedule[0].azimuth_deg
+    tilt_curve = st.curve(curve_az)
     if opts.irradiance.sky == "clear":
         warnings.append("Clear-sky basis: every figure is an upper bound, not an expected "
                         "yield; cloudier months favour flatter tilts.")
-    inactive = [MONTH_NAMES[m][:3] for m in range(12) if not active[m]]
+    inactive = [MONTH_NAMES[m][:3] for m in range(12) if not st.active[m]]
     if inactive:
         warnings.append("No useful daylight in " + ", ".join(inactive) + " (polar night or "
                         "near it): those months are left out of the worst-month objective.")
     report(0.9, "rows and indicative yield")
     layouts = _RowLayouts(site, opts)     # options sharing a plane share its layout
     rows = tuple(_option_rows(o, layouts) for o in options)
-    row_tilt = opts.row_tilt_deg
-    fixed_opt = next(o for o in options if o.kind == "fixed-optimal").schedule[0]
-    if row_tilt is None:
-        row_tilt = fixed_opt.tilt_deg
-    chosen_rows, row_note = layouts.get(row_tilt, fixed_opt.azimuth_deg)
+    fixed_p = fixed_opt.schedule[0]
+    row_tilt = fixed_p.tilt_deg if opts.row_tilt_deg is None else opts.row_tilt_deg
+    chosen_rows, row_note = layouts.get(row_tilt, fixed_p.azimuth_deg)
     yields = tuple(_option_yield(sky, site, o, opts) for o in options)
     monthly_method = None
     if opts.irradiance.sky == "monthly":
-        monthly_method = monthly_method_comparison(site, options, year,
+        monthly_method = monthly_method_comparison(site, options, opts.irradiance.year,
                                                    opts.irradiance.solar_constant_w_m2)
     return TiltStudy(site, opts, tuple(options), tilt_curve, curve_az, grid_pct, grid_opt,
-                     tuple(warnings), sky.note, active_months, monthly_method=monthly_method,
-                     rows=rows, row_layout=chosen_rows, row_note=row_note, yields=yields)
+                     tuple(warnings), sky.note, st.active_months,
+                     monthly_method=monthly_method, rows=rows, row_layout=chosen_rows,
+                     row_note=row_note, yields=yields, sky=sky)
+
+
+class _Scorer:
+    """The pieces of one study that share its sky, terms and objective."""
+
+    def __init__(self, site: Site, opts: StudyOptions, sky: SkyYear, terms):
+        self.site, self.opts, self.sky, self.terms = site, opts, sky, terms
+        self.n_days = sky.n_days
+        self.mod = _month_of_day(sky)
+        self.year = opts.irradiance.year
+        self.active = np.ones(12, dtype=bool)
+        self.active_months = tuple(range(1, 13))
+
+    def set_active(self, horizontal_monthly: np.ndarray) -> None:
+        """Months with useful daylight (more than 1 % of the best month on the horizontal)."""
+        self.active = horizontal_monthly > 0.01 * horizontal_monthly.max()
+        self.active_months = tuple(int(m) for m in np.flatnonzero(self.active) + 1)
+
+    def score_cols(self, monthly: np.ndarray) -> np.ndarray:
+        return _score_monthly(monthly, self.opts, self.active)
+
+    def monthly(self, tilts, azimuths) -> np.ndarray:
+        """(12, n) monthly kWh/m² of planes (any matching shapes, flattened)."""
+        r = many_plane_daily(self.terms, tilts, azimuths, site=self.site)
+        return _monthly_from_daily(r.daily_kwh_m2, self.mod), r
+
+    def fixed(self, label, kind, tilt, az, note="") -> StudyOption:
+        m = self.monthly([tilt], [az])[0][:, 0]
+        sched = (Period("01-01", "12-31", round(float(tilt), 3), round(float(az) % 360.0, 3)),)
+        return StudyOption(label, kind, sched, m, float(m.sum()), note)
+
+    def grid(self) -> tuple:
+        """The tilt x azimuth map in objective units (% of its best) and its best plane."""
+        g_t, g_a = np.meshgrid(np.arange(0.0, 91.0, 1.0), np.arange(0.0, 360.0, 5.0),
+                               indexing="ij")
+        g_month, _ = self.monthly(g_t, g_a)
+        g_score = self.score_cols(g_month).reshape(g_t.shape)
+        gi = np.unravel_index(int(np.argmax(g_score)), g_score.shape)
+        self.grid_tilts, self.grid_azimuths = g_t, g_a
+        self.grid_best_azimuth = float(g_a[gi])
+        best = float(g_score[gi])
+        pct = 100.0 * g_score / best if best > 0 else np.zeros_like(g_score)
+        grid_pct = pd.DataFrame(pct, index=pd.Index(g_t[:, 0], name="tilt_deg"),
+                                columns=pd.Index(g_a[0], name="azimuth_deg"))
+        return grid_pct, (float(g_t[gi]), float(g_a[gi]), best)
+
+    def fixed_optimum(self) -> StudyOption:
+        """The best fixed plane on the constrained tilt candidates (azimuth 1° near the map's)."""
+        opts = self.opts
+        tilts = opts.candidate_tilts()
+        if opts.azimuth_deg is not None:
+            azimuths = np.array([float(opts.azimuth_deg) % 360.0])
+        else:
+            azimuths = np.mod(self.grid_best_azimuth + np.arange(-5.0, 5.5, 1.0), 360.0)
+        c_t, c_a = np.meshgrid(tilts, azimuths, indexing="ij")
+        c_month, cand = self.monthly(c_t, c_a)
+        ci = int(np.argmax(self.score_cols(c_month)))
+        opt_tilt, opt_az = float(c_t.ravel()[ci]), float(c_a.ravel()[ci])
+        ai = int(np.flatnonzero(azimuths == opt_az)[0])
+        # the candidates' daily columns at the optimum's azimuth feed the schedules
+        self.sched_daily = cand.daily_kwh_m2.reshape(self.n_days, len(tilts),
+                                                     len(azimuths))[:, :, ai]
+        self.sched_tilts, self.sched_az = tilts, opt_az
+        label = ("Best plane for the site" if opts.mounting == "flush" else "Optimal fixed")
+        note = (f"optimum over tilts {tilts[0]:g}-{tilts[-1]:g} by {opts.tilt_step_deg:g} deg"
+                + (", azimuth fixed" if opts.azimuth_deg is not None
+                   else ", azimuth free (1 deg)"))
+        if opts.mounting == "flush":
+            note += "; a reference for the roof planes, which the panels follow"
+        return self.fixed(f"{label} ({opt_tilt:g} deg, azimuth {opt_az:g} deg)",
+                          "fixed-optimal", opt_tilt, opt_az, note)
+
+    def azimuth_warnings(self, fixed_opt: StudyOption) -> list:
+        """On a clear sky, an optimum far off the equator direction is the horizon's or a clock's."""
+        site, opts, sky = self.site, self.opts, self.sky
+        opt_az = fixed_opt.schedule[0].azimuth_deg
+        equator = site.equator_azimuth_deg
+        off = abs((opt_az - equator + 180.0) % 360.0 - 180.0)
+        if opts.irradiance.sky != "clear" or off <= 5.0 or opts.azimuth_deg is not None:
+            return []
+        open_site = site.with_changes(horizon=type(site.horizon)(), obstacles=())
+        g_t, g_a = self.grid_tilts, self.grid_azimuths
+        og = many_plane_daily(many_plane_terms(_open_sky(sky, open_site)), g_t, g_a,
+                              site=open_site)
+        og_ann = og.daily_kwh_m2.sum(axis=0).reshape(g_t.shape)
+        oa = float(g_a[np.unravel_index(int(np.argmax(og_ann)), og_ann.shape)])
+        if abs((oa - equator + 180.0) % 360.0 - 180.0) > 5.0:
+            return [f"The clear-sky optimum azimuth ({oa:g} deg) is more than 5 deg from the "
+                    f"equator direction ({equator:g} deg) even with the horizon removed: check "
+                    "the time zone and timestamps upstream."]
+        return [f"The optimum azimuth ({opt_az:g} deg) is {off:.0f} deg off the equator "
+                "direction because of the site horizon."]
+
+    def curve(self, azimuth_deg: float) -> pd.DataFrame:
+        """Objective and annual irradiation against tilt (0-90° by 1°) at one azimuth."""
+        tilts = np.arange(0.0, 91.0)
+        m, _ = self.monthly(tilts, np.full(91, azimuth_deg))
+        return pd.DataFrame({"objective_kwh_m2": self.score_cols(m), "annual_kwh_m2": m.sum(0)},
+                            index=pd.Index(tilts, name="tilt_deg"))
+
+    def seasonal(self) -> list:
+        """The seasonal schedules the mounting allows, at the fixed optimum's azimuth."""
+        opts, n_days, year = self.opts, self.n_days, self.year
+        wanted = [k for k, _ in SEASONAL_KINDS if opts.allows(k)]
+        if not wanted:
+            return []
+        sd, s_t, mod = self.sched_daily, self.sched_tilts, self.mod
+        weights = np.ones(n_days)
+        if opts.objective == "months":
+            # other days weigh almost nothing: they only break ties in unweighted periods
+            weights = np.where(np.isin(mod, [int(m) for m in opts.months]), 1.0, 1e-6)
+        cum = np.vstack([np.zeros(len(s_t)), np.cumsum(sd * weights[:, None], axis=0)])
+        min_days = int(opts.min_days_between)
+        separable = opts.objective != "worst-month"
+        local = "; worst-month objective by local search from the annual optimum"
+        out = []
+        if "two-season" in wanted:
+            if opts.switch_dates is not None:
+                sw2 = sorted(_day_from_mmdd(year, x) for x in opts.switch_dates)
+                t2, _ = _best_tilts_separable(cum, sw2, n_days)
+                note2 = "switch dates fixed by the user"
+            else:
+                sw2, t2, _ = _two_period_exhaustive(cum, n_days, min_days)
+                note2 = "switch dates optimised to the day (exhaustive)"
+            if not separable:
+                if opts.switch_dates is None:
+                    sw2, t2 = _improve_for_objective(sd, sw2, t2, mod, opts, n_days, min_days,
+                                                    self.active)
+                note2 += local
+            out.append(self._schedule("Two-season schedule", "two-season", sw2, t2, note2))
+        if "four-season" in wanted:
+            sw4, t4, _ = _k_period_search(cum, n_days, 4, min_days)
+            note4 = "switch dates optimised to the day (14-day lattice, refined)"
+            if not separable:
+                sw4, t4 = _improve_for_objective(sd, sw4, t4, mod, opts, n_days, min_days,
+                                                self.active)
+                note4 += local
+            out.append(self._schedule("Four-season schedule", "four-season", sw4, t4, note4))
+        if "monthly" in wanted:
+            starts = [int(pd.Timestamp(year, m, 1).day_of_year) - 1 for m in range(1, 13)]
+            cols = _monthly_from_daily(sd, mod)
+            tm = [int(np.argmax(cols[m] if self.active[m] else cols.sum(axis=0)))
+                  for m in range(12)]
+            out.append(self._schedule("Monthly schedule", "monthly", starts, tm,
+                                      "best tilt for each calendar month"))
+        return out
+
+    def _schedule(self, label, kind, switches, tilt_idx, note) -> StudyOption:
+        n_days, year = self.n_days, self.year
+        dd = _schedule_daily(self.sched_daily, switches, tilt_idx, n_days)
+        m = _monthly_from_daily(dd[:, None], self.mod)[:, 0]
+        periods = [Period(_mmdd(year, a), _mmdd(year, (b - 1) % n_days),
+                          float(self.sched_tilts[t]), round(self.sched_az, 3))
+                   for (a, b), t in zip(_periods_from_switches(switches, n_days), tilt_idx,
+                                        strict=True)]
+        periods.sort(key=lambda p: p.start)
+        return StudyOption(label, kind, tuple(periods), m, float(m.sum()), note)
 
 
 KLEIN_METHOD = ("Klein (1977) monthly-mean method with the Erbs et al. (1982) monthly diffuse "

@@ -24,8 +24,21 @@ import pandas as pd
 #: The default year: a fixed, non-leap reference year, shown in every output.
 REFERENCE_YEAR = 2023
 
-#: Allowed interval lengths, minutes.
+#: Interval lengths offered for resampling a clear or monthly sky, minutes.
 STEPS_MIN = (60, 30, 15, 10, 5, 1)
+
+#: Every interval length the year's grid accepts, minutes: the whole minutes that
+#: divide an hour (a weather file's own interval is used as it is).
+GRID_STEPS_MIN = tuple(m for m in range(60, 0, -1) if 60 % m == 0)
+
+
+def check_step_min(step_min) -> int:
+    """Return ``step_min`` as an int, or raise ValueError unless it is in :data:`GRID_STEPS_MIN`."""
+    if isinstance(step_min, bool) or not isinstance(step_min, int | np.integer) \
+            or int(step_min) not in GRID_STEPS_MIN:
+        raise ValueError(f"interval = {step_min!r} min: must be a whole number of minutes that "
+                         f"divides an hour ({', '.join(map(str, GRID_STEPS_MIN))})")
+    return int(step_min)
 
 #: Words used in outputs to state the time convention.
 MIDPOINT_CONVENTION = (
@@ -92,7 +105,7 @@ def year_grid(timezone: str, year: int = REFERENCE_YEAR, step_min: int = 60) -> 
     year : int, default :data:`REFERENCE_YEAR`
         Local calendar year.
     step_min : int, default 60
-        Interval length, one of :data:`STEPS_MIN`.
+        Interval length, one of :data:`GRID_STEPS_MIN`.
 
     Returns
     -------
@@ -106,8 +119,7 @@ def year_grid(timezone: str, year: int = REFERENCE_YEAR, step_min: int = 60) -> 
     Convention of this project (common practice, no source): interval values
     are evaluated at the midpoint, see the module docstring.
     """
-    if step_min not in STEPS_MIN:
-        raise ValueError(f"step_min = {step_min!r}: must be one of {', '.join(map(str, STEPS_MIN))}")
+    step_min = check_step_min(step_min)
     if not 1900 <= int(year) <= 2100:
         raise ValueError(f"year = {year!r}: must be between 1900 and 2100")
     tz = ZoneInfo(timezone)

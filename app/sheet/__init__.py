@@ -11,10 +11,10 @@ package only writes and draws it.
 """
 
 from .content import PAPERS, SheetMeta
-from .job import SheetResult, compute_sheet
+from .job import SheetResult, compute_sheet, lay_out
 from .pages import SheetDocument, build_sheet
 from .pdf import page_image, paint_page, paint_to, pdf_bytes, print_document
 
 __all__ = ["PAPERS", "SheetDocument", "SheetMeta", "SheetResult", "build_sheet",
-           "compute_sheet", "page_image", "paint_page", "paint_to", "pdf_bytes",
+           "compute_sheet", "lay_out", "page_image", "paint_page", "paint_to", "pdf_bytes",
            "print_document"]

@@ -221,23 +221,36 @@ def _tiles(ctx: _Ctx) -> list[tuple[str, str, str]]:
     f = ctx.f
     rec = f.recommended
     d = ctx.doc
+    flush = ctx.study.mounting == "flush"
+    what = "this roof as it is" if flush else "the recommended option"
     tiles = [(f"{kwh(rec['annual_kwh_m2'])} kWh/m²",
-              "a year on the plane of the recommended option", "key.annual"),
-             (f"{pct(rec['gain_vs_horizontal_pct'])} %", "over a horizontal plane",
-              "key.gain_horizontal")]
-    for i, (label, g) in enumerate(f.gains_over_planes):
-        tiles.append((f"{pct(g)} %", f"over the existing plane “{label}”",
-                      f"key.gain_plane.{i}"))
+              f"a year on the plane of {what}, {f.basis_words}", "key.annual")]
+    if f.clear_sky_bound_kwh_m2 is not None:
+        tiles.append((f"{kwh(f.clear_sky_bound_kwh_m2)} kWh/m²",
+                      "under a clear sky every day: the upper bound, not an expected value",
+                      "key.clear_bound"))
+    tiles.append((f"{pct(rec['gain_vs_horizontal_pct'])} %", "over a horizontal plane",
+                  "key.gain_horizontal"))
+    if not flush:
+        for i, (label, g) in enumerate(f.gains_over_planes):
+            tiles.append((f"{pct(g)} %", f"over the existing plane “{label}”",
+                          f"key.gain_plane.{i}"))
     fixed = ctx.study.option("fixed-optimal")
     fp = fixed.schedule[0]
-    if ctx.rec is fixed:
-        two = next(r for r in d["options"] if r["kind"] == "two-season")
-        cap = (f"over the fixed optimum: this is the fixed optimum; a two-season schedule "
-               f"would add {pct(two['gain_vs_fixed_optimal_pct'])} %")
+    if flush:
+        tiles.append((f"{pct(rec['share_of_best_plane_pct'], signed=False)} %",
+                      f"of the best plane for the site ({fp.tilt_deg:g}° facing "
+                      f"{fp.azimuth_deg:g}°)", "key.share_best"))
+    elif ctx.rec is fixed:
+        two = next((r for r in d["options"] if r["kind"] == "two-season"), None)
+        cap = ("over the fixed optimum: this is the fixed optimum; "
+               + (f"a two-season schedule would add {pct(two['gain_vs_fixed_optimal_pct'])} %"
+                  if two is not None else "the mounting takes no seasonal adjustment"))
+        tiles.append((f"{pct(rec['gain_vs_fixed_optimal_pct'])} %", cap, "key.gain_fixed"))
     else:
         cap = (f"over the best fixed plane ({fp.tilt_deg:g}° facing {fp.azimuth_deg:g}°, "
                "no adjustments)")
-    tiles.append((f"{pct(rec['gain_vs_fixed_optimal_pct'])} %", cap, "key.gain_fixed"))
+        tiles.append((f"{pct(rec['gain_vs_fixed_optimal_pct'])} %", cap, "key.gain_fixed"))
     loss = f.horizon_loss
     if loss.loss_kwh_m2 >= 0:
         cap = (f"lost to the horizon: {kwh(loss.loss_kwh_m2)} kWh/m² a year (open horizon: "

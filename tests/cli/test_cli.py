@@ -215,11 +215,15 @@ def test_sun_accepts_a_site_file(tmp_path, capsys):
 # -- irradiance -------------------------------------------------------------------------
 
 def test_irradiance_json(capsys):
-    doc = _json(capsys, "irradiance", "larkmoor-dairy", "--tilt", "30", "--azimuth", "180",
-                "--json")["irradiance"]
+    full = _json(capsys, "irradiance", "larkmoor-dairy", "--tilt", "30", "--azimuth", "180",
+                 "--json")
+    doc = full["irradiance"]
     assert IRRADIANCE_KEYS <= set(doc)
     assert doc["site"] == load_demo("larkmoor-dairy").name
-    assert (doc["model"], doc["sky"]) == ("perez", "clear")
+    # the site holds twelve monthly GHI values: the auto basis takes them, and says so
+    assert (doc["model"], doc["sky"]) == ("perez", "monthly")
+    assert full["assessment"]["basis"]["used"] == "monthly"
+    assert full["assessment"]["basis"]["requested"] == "auto"
     assert isinstance(doc["year"], int)
     assert doc["solar_constant_w_m2"] == pytest.approx(1361.0)  # Kopp & Lean (2011), GRL 38
     monthly = doc["monthly"]
@@ -336,7 +340,7 @@ def test_internal_fault_exits_1_with_one_line(capsys, monkeypatch):
 
 
 def test_internal_fault_with_verbose_shows_the_traceback(capsys, monkeypatch):
-    monkeypatch.setattr("tiltyard.engine.jobs.irradiance_year", _boom)
+    monkeypatch.setattr("tiltyard.engine.assess.irradiance_on_plane", _boom)
     rc, _, err = _run(capsys, "--verbose", "irradiance", "larkmoor-dairy", "--tilt", "30",
                       "--azimuth", "180")
     assert rc == 1
@@ -372,7 +376,7 @@ def test_study_json_and_table(capsys):
     from tiltyard.app.cli import main as cli_main
 
     assert cli_main(["study", "kelpie-creek-shed", "--json", "--tilt-range", "10:60",
-                     "--tilt-step", "5"]) == 0
+                     "--tilt-step", "5", "--mounting", "adjustable"]) == 0
     doc = json.loads(capsys.readouterr().out)["study"]
     for key in ("site", "year", "sky", "objective", "options"):
         assert key in doc
@@ -384,7 +388,9 @@ def test_study_json_and_table(capsys):
     assert cli_main(["study", "kelpie-creek-shed", "--objective", "worst-month",
                      "--azimuth", "0"]) == 0
     out = capsys.readouterr().out
-    assert "kWh/m2" in out and "Recommended:" in out and "not a design" in out
+    # the site's roof planes are flush by default: the answer is the roof as it is
+    assert "kWh/m2" in out and "This roof as it is:" in out and "not a design" in out
+    assert "mounting: flush" in out and "Two-season" not in out
 
 
 def test_study_bad_objective_is_one_line(capsys):
@@ -580,7 +586,7 @@ def test_verbose_works_after_the_subcommand(capsys):
 
 def test_study_table_shows_rows_yield_and_the_monthly_method(capsys):
     rc, out, _ = _run(capsys, "study", "larkmoor-dairy", "--sky", "monthly", "--tilt-step", "5",
-                      "--row-tilt", "30", "--row-length", "2")
+                      "--row-tilt", "30", "--row-length", "2", "--mounting", "ground-rows")
     assert rc == 0
     assert "30 deg rows" in out and "2 m slant length" in out and "pitch" in out
     assert "GCR" in out and "ground cover" in out

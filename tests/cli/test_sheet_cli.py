@@ -21,7 +21,7 @@ import pytest
 
 from tiltyard.app.cli import main
 
-FLAGS = ["--tilt-step", "5"]          # a coarse rack keeps the tests fast
+FLAGS = ["--tilt-step", "5", "--mounting", "fixed-rack"]   # a coarse rack keeps the tests fast
 PEOPLE = ["--preparer", "Jane Doe", "--organisation", "Example Solar Ltd",
           "--prepared", "2025-05-12", "--times", "clock"]
 
@@ -91,6 +91,27 @@ def test_pdf_figures_are_the_study_json_numbers(run):
                   "12 May 2025", "Key figures", "Sun path", "Options compared", "Assumptions",
                   "Cautions", "Reproducibility", "Tiltyard ", "roof access"):
         assert words in text, words
+
+
+def test_flush_roof_sheet_leads_with_the_roof_on_the_monthly_basis(tmp_path):
+    # larkmoor-dairy: a roof plane (flush by default) and twelve monthly GHI values
+    pdf = tmp_path / "roof.pdf"
+    rc, _, err = _call("sheet", "larkmoor-dairy", "-o", str(pdf), *PEOPLE, "--tilt-step", "5")
+    assert rc == 0, err
+    src, study_out, _ = _call("study", "larkmoor-dairy", "--json", "--tilt-step", "5")
+    doc = json.loads(study_out)
+    d = doc["study"]
+    assert d["mounting"]["kind"] == "flush" and d["recommended_kind"] == "plane"
+    assert {o["kind"] for o in d["options"]} == {"horizontal", "plane", "fixed-optimal",
+                                                 "two-axis"}
+    rec = next(r for r in d["options"] if r["label"] == d["recommended"])
+    text = _text(pdf)
+    assert (f"{rec['annual_kwh_m2']:.0f} kWh/m² a year on the plane of this roof as it is, "
+            "on the site's monthly irradiation values") in text
+    assert f"{rec['share_of_best_plane_pct']:.1f} % of the best plane for the site" in text
+    bound = doc["clear_sky_bound_kwh_m2"][rec["label"]]
+    assert f"{bound:.0f} kWh/m² under a clear sky every day: the upper bound" in text
+    assert "seasonal" not in text.lower() or "Two-season" not in text
 
 
 def test_csv_exports_match_the_study_json(run):

@@ -261,7 +261,7 @@ def test_bad_input_is_named():
     with pytest.raises(ValueError, match="step_min = 10"):
         irradiance_day(site, "2023-06-21", 10.0, 180.0, IrradianceOptions(sky="monthly"),
                        step_min=10)
-    with pytest.raises(ValueError, match="step_min = 7"):
+    with pytest.raises(ValueError, match="interval = 7 min"):
         irradiance_day(site, "2023-06-21", 10.0, 180.0, step_min=7)
 
 

@@ -32,8 +32,16 @@ def test_grid_counts_and_bounds(step):
 
 
 def test_grid_rejects_bad_step_and_year():
-    with pytest.raises(ValueError, match="step_min"):
+    with pytest.raises(ValueError, match="interval = 7 min"):
         year_grid("UTC", 2023, 7)
+
+
+@pytest.mark.parametrize("step", [2, 3, 4, 6, 12, 20])
+def test_grid_takes_every_interval_that_divides_an_hour(step):
+    # a year has 525600 minutes (365 days; 2023 is not a leap year: common practice, no source)
+    g = year_grid("Europe/Berlin", 2023, step)
+    assert len(g) == 525600 // step
+    assert (g.start_utc[1] - g.start_utc[0]) == pd.Timedelta(minutes=step)
     with pytest.raises(ValueError, match="year"):
         year_grid("UTC", 1800, 60)
 
