@@ -4,16 +4,16 @@ TMY3, TMY2 and EPW files say what their columns, timestamps and time zone are,
 so they are read as they are. Any other CSV file needs a column mapping: which
 column holds the timestamp and which the irradiance, temperature and wind
 values, what the timestamps mark in each interval and which time zone they are
-in. Reading happens in the worker; the dialog shows the importer's findings
-(or its message, with the line number) and only "Use this weather" changes the
-app's sky basis. A file that fails leaves the sky choice and the site as they
-were.
+in. Reading happens in an engine worker process
+(:func:`tiltyard.engine.weather_check.read_weather_for_site`; the header, the
+column guess and the texts come from :mod:`tiltyard.engine.weather`); the
+dialog holds only widgets. It shows the importer's findings (or its message,
+with the line number) and only "Use this weather" changes the app's sky basis.
+A file that fails leaves the sky choice and the site as they were.
 """
 
 from __future__ import annotations
 
-import csv
-from dataclasses import dataclass, field
 from pathlib import Path
 
 from PySide6.QtCore import Qt
@@ -33,148 +33,25 @@ from PySide6.QtWidgets import (
     QVBoxLayout,
 )
 
-from tiltyard.engine.allsky import WeatherOptionError, load_weather_for_site
-from tiltyard.engine.site import Site
-from tiltyard.engine.skyyear import IrradianceOptions, sky_year
-from tiltyard.engine.timegrid import STEPS_MIN
-from tiltyard.engine.weather import WeatherData, WeatherImportError
+from tiltyard.engine.weather import (
+    LABELS,
+    MAPPED_COLUMNS,
+    CsvHeader,
+    Loaded,
+    LoadFailure,
+    finding_text,
+    summary_text,
+)
+from tiltyard.engine.weather_check import read_weather_for_site
 
 from . import theme
+from .engine_process import EngineCall
 
 FILE_FILTER = ("Weather files (*.csv *.CSV *.epw *.EPW *.tm2 *.TM2 *.txt);;"
                "All files (*)")
 
-#: Our column names with the words shown for them, in the order of the form.
-MAPPED_COLUMNS = (("timestamp", "Timestamp"), ("ghi", "GHI (global horizontal)"),
-                  ("dni", "DNI (direct normal)"), ("dhi", "DHI (diffuse horizontal)"),
-                  ("temp_air", "Air temperature (°C)"), ("wind_speed", "Wind speed (m/s)"))
-
-#: What a CSV file's timestamps may mark in their interval.
-LABELS = (("start", "the start of each interval"), ("end", "the end of each interval"),
-          ("centre", "the centre of each interval"))
-
 NONE_TEXT = "(not in the file)"
 OWN_OFFSET_TEXT = "(each timestamp carries its UTC offset)"
-
-#: Header words that suggest a column, by our name (a first guess the user checks).
-_HINTS = {
-    "timestamp": ("timestamp", "datetime", "date_time", "time", "date"),
-    "ghi": ("ghi", "global"),
-    "dni": ("dni", "direct", "beam"),
-    "dhi": ("dhi", "diffuse"),
-    "temp_air": ("temp_air", "tamb", "t_air", "temperature", "temp", "dry"),
-    "wind_speed": ("wind_speed", "windspeed", "wind", "ws"),
-}
-
-
-# -- worker side (no Qt) ------------------------------------------------------------
-
-@dataclass(frozen=True)
-class CsvHeader:
-    """A CSV file that needs a column mapping: its header and a first guess."""
-
-    path: Path
-    columns: tuple
-    guess: dict = field(default_factory=dict)
-
-
-@dataclass(frozen=True)
-class LoadFailure:
-    """A file that could not be used: the importer's message and line (1-based) if known."""
-
-    message: str
-    line: int | None = None
-
-
-@dataclass(frozen=True)
-class Loaded:
-    """A weather series read and checked against the site's year."""
-
-    path: Path
-    weather: WeatherData
-
-
-def guess_columns(header) -> dict:
-    """Our column names to header names, by common words in the header (a guess to check)."""
-    low = {c: c.strip().lower() for c in header}
-    out = {}
-    for key, words in _HINTS.items():
-        for word in words:
-            hit = next((c for c, lc in low.items() if c not in out.values()
-                        and (lc == word or lc.startswith(word + " ") or lc.startswith(word + "_")
-                             or lc.startswith(word + "(") or word in lc.split())), None)
-            if hit is None and len(word) > 3:
-                hit = next((c for c, lc in low.items() if c not in out.values() and word in lc),
-                           None)
-            if hit is not None:
-                out[key] = hit
-                break
-    return out
-
-
-def read_header(path: Path) -> tuple:
-    """The column names on the first line of a CSV file."""
-    try:
-        with open(path, newline="", encoding="utf-8-sig") as handle:
-            row = next(csv.reader(handle), [])
-    except (OSError, UnicodeDecodeError) as exc:
-        raise WeatherImportError(path.name, None, f"cannot read: {exc}") from exc
-    names = tuple(c.strip() for c in row if c.strip())
-    if not names:
-        raise WeatherImportError(path.name, 1, "the first line holds no column names")
-    return names
-
-
-def read_weather_for_site(path, site: Site, columns: dict | None = None,
-                          timestamp_label: str | None = None, timezone: str | None = None):
-    """Read a weather file for ``site`` and check it can serve as the year's sky.
-
-    Returns :class:`Loaded`, :class:`CsvHeader` (a CSV file read without a
-    column mapping) or :class:`LoadFailure`; nothing is raised for a bad
-    file, so the dialog can show the message where the user is looking.
-    """
-    p = Path(path)
-    try:
-        weather = load_weather_for_site(p, site, columns=columns,
-                                        timestamp_label=timestamp_label, timezone=timezone)
-    except WeatherImportError as exc:
-        if columns is None and "not a TMY3, TMY2 or EPW file" in exc.reason:
-            try:
-                header = read_header(p)
-            except WeatherImportError as inner:
-                return LoadFailure(str(inner), inner.line)
-            return CsvHeader(p, header, guess_columns(header))
-        return LoadFailure(str(exc), exc.line)
-    except WeatherOptionError as exc:
-        return LoadFailure(f"{p.name}: {exc}")
-    except (OSError, ValueError) as exc:
-        return LoadFailure(f"{p.name}: {exc}")
-    if weather.step_min not in STEPS_MIN:
-        return LoadFailure(f"{weather.source}: {weather.step_min}-minute intervals; the year "
-                           f"is computed on intervals of {', '.join(map(str, STEPS_MIN))} "
-                           "minutes: resample the file")
-    try:  # the checks that come with placing the data on the year's intervals
-        sky_year(site, IrradianceOptions(sky="file", weather=weather,
-                                         step_min=weather.step_min))
-    except ValueError as exc:
-        return LoadFailure(f"read, but it cannot serve as this site's year: {exc}")
-    return Loaded(p, weather)
-
-
-def finding_text(f) -> str:
-    where = f"line {f.line}: " if f.line is not None else ""
-    return f"{f.severity}: {where}{f.message}"
-
-
-def summary_text(weather: WeatherData) -> str:
-    """One line on a loaded weather series: source, interval, labelling, zone, findings."""
-    n = len(weather.findings)
-    warn = sum(1 for f in weather.findings if f.severity != "info")
-    found = (f"{n} finding{'s' if n != 1 else ''}" + (f", {warn} to look at" if warn else "")
-             if n else "no findings")
-    return (f"{weather.source}: {len(weather.data)} intervals of {weather.step_min} min, "
-            f"timestamps at the interval {weather.timestamp_label}, "
-            f"time zone {weather.timezone or 'from the file'}; {found}")
 
 
 # -- the dialog -----------------------------------------------------------------------
@@ -331,7 +208,7 @@ class WeatherDialog(QDialog):
 
     # -- reading -----------------------------------------------------------------
     def read(self) -> None:
-        """Read the file in the worker (with the mapping when the form is shown)."""
+        """Read the file in an engine worker process (with the mapping when the form is shown)."""
         text = self.path_edit.text().strip()
         if not text:
             self._set_status("Choose a file first.", error=True)
@@ -356,9 +233,9 @@ class WeatherDialog(QDialog):
         self._busy = True
         self.read_button.setEnabled(False)
         self._set_status(f"Reading {path.name}…")
-        self.ctx.runner.submit(
+        self.ctx.runner.submit_call(
             self.CHANNEL,
-            lambda progress: read_weather_for_site(path, site, columns, label, timezone),
+            EngineCall(read_weather_for_site, (path, site, columns, label, timezone)),
             self._show_result, label="Weather file", debounce_ms=0)
 
     def _runner_error(self, label: str, message: str, _tb: str) -> None:
@@ -409,5 +286,4 @@ class WeatherDialog(QDialog):
         super().done(result)
 
 
-__all__ = ["CsvHeader", "LoadFailure", "Loaded", "WeatherDialog", "finding_text",
-           "guess_columns", "read_header", "read_weather_for_site", "summary_text"]
+__all__ = ["WeatherDialog"]
