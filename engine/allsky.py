@@ -700,6 +700,9 @@ class WeatherOptionError(ValueError):
         self.reason = reason
         super().__init__(f"{option} = {value!r}: {reason}")
 
+    def __reduce__(self):                # crosses from a worker process intact
+        return (type(self), (self.option, self.value, self.reason))
+
 
 #: Keys of a column mapping (the fields of ColumnMap): our names for the columns.
 COLUMN_KEYS = tuple(f.name for f in dataclasses.fields(ColumnMap))

@@ -23,7 +23,7 @@ from pathlib import Path
 from .allsky import WeatherOptionError, load_weather_for_site
 from .site import Site
 from .skyyear import IrradianceOptions, sky_year
-from .timegrid import STEPS_MIN
+from .timegrid import GRID_STEPS_MIN
 from .weather import (
     CsvHeader,
     Loaded,
@@ -43,9 +43,9 @@ def grid_step_problem(weather: WeatherData) -> str | None:
     """Why the site's year cannot be computed on the weather's interval, or None.
 
     The one place that decides which weather intervals the year accepts: the
-    interval lengths of the time grid (:data:`tiltyard.engine.timegrid.STEPS_MIN`).
-    Relax it here once the time grid takes every whole-minute interval that
-    divides 60.
+    interval lengths of the time grid
+    (:data:`tiltyard.engine.timegrid.GRID_STEPS_MIN`: every whole-minute
+    interval that divides an hour).
 
     Parameters
     ----------
@@ -57,10 +57,10 @@ def grid_step_problem(weather: WeatherData) -> str | None:
     str or None
         The reason, naming the interval and those allowed, without the file name.
     """
-    if weather.step_min in STEPS_MIN:
+    if weather.step_min in GRID_STEPS_MIN:
         return None
     return (f"{weather.step_min}-minute intervals; the year is computed on intervals of "
-            f"{', '.join(map(str, STEPS_MIN))} minutes: resample the file")
+            f"{', '.join(map(str, GRID_STEPS_MIN))} minutes: resample the file")
 
 
 def read_weather_for_site(path, site: Site, columns: dict | None = None,

@@ -15,7 +15,7 @@ import pvlib
 import pytest
 
 from tiltyard.engine.site import load_demo
-from tiltyard.engine.timegrid import STEPS_MIN
+from tiltyard.engine.timegrid import GRID_STEPS_MIN
 from tiltyard.engine.weather import CsvHeader, Loaded, LoadFailure, WeatherData
 from tiltyard.engine.weather_check import grid_step_problem, read_weather_for_site
 
@@ -111,30 +111,16 @@ def test_a_few_days_are_read_but_cannot_serve_as_the_year(tmp_path, site):
     assert "days.csv" in got.message
 
 
-def test_an_interval_the_year_does_not_take_is_refused_before_the_year(tmp_path, site):
-    step = next((s for s in (20, 12, 6, 4, 3, 2) if s not in STEPS_MIN), None)
-    if step is None:
-        pytest.skip("the time grid takes every interval that divides 60 min")
-    path = _write(tmp_path / "odd.csv",
-                  pd.date_range("2023-06-01", periods=6 * 60 // step, freq=f"{step}min"),
-                  [100.0] * (6 * 60 // step))
-    got = read_weather_for_site(path, site, MAPPING, "start", "UTC")
-    assert isinstance(got, LoadFailure)
-    assert got.message.startswith(f"odd.csv (CSV): {step}-minute intervals; the year is "
-                                  "computed on intervals of ")
-    assert got.message.endswith("minutes: resample the file")
-
-
-@pytest.mark.parametrize("step", [s for s in range(1, 61) if 60 % s == 0])
+@pytest.mark.parametrize("step", [s for s in range(1, 61) if 60 % s == 0] + [7, 45])
 def test_grid_step_problem_follows_the_time_grid(step):
     index = pd.date_range("2023-01-01", periods=2, freq=f"{step}min", tz="UTC")
     weather = WeatherData(pd.DataFrame({"ghi": [0.0, 0.0]}, index=index), step, "x.csv (CSV)",
                           "start", ())
     problem = grid_step_problem(weather)
-    assert (problem is None) == (step in STEPS_MIN)
+    assert (problem is None) == (step in GRID_STEPS_MIN) == (60 % step == 0)
     if problem is not None:
         assert problem.startswith(f"{step}-minute intervals")
-        assert ", ".join(map(str, STEPS_MIN)) in problem
+        assert ", ".join(map(str, GRID_STEPS_MIN)) in problem
 
 
 def test_a_year_of_weather_loads_and_pickles(tmp_path, site):
