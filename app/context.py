@@ -1,17 +1,19 @@
-"""What every view shares: the open site, the task runner, the sky choice and preferences.
+"""What every view shares: the open document (the site's assessment), the task runner and
+preferences.
 
-Views talk to each other only through this object: the Irradiance view's sky
-basis is the one the Tilt study uses, and the study result it publishes is
-what the Irradiance bars and the Sheet show.
+Views talk to each other only through this object. The assessment the
+document holds (site, sky basis, weather file, models, study settings,
+mounting) is what every view computes from, through
+:func:`tiltyard.engine.assess.assessment_part` in a worker process; the study
+result the Tilt study view publishes is what the Irradiance bars and the
+Sheet show.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass, replace
-from pathlib import Path
-
 from PySide6.QtCore import QObject, Signal
 
+from tiltyard.engine.assessment import Assessment
 from tiltyard.engine.site import Site
 
 from .document import SiteDocument
@@ -19,34 +21,9 @@ from .settings import Preferences
 from .tasks import TaskRunner
 
 
-@dataclass(frozen=True)
-class SkyChoice:
-    """The sky basis chosen in the app: ``clear``, ``monthly`` or ``file``."""
-
-    sky: str = "clear"
-    model: str = "perez"
-    weather_path: Path | None = None
-    weather: object | None = None     # a loaded WeatherData when sky == "file"
-
-    def irradiance_options(self, **kw):
-        """Engine options for this choice (weather data passed through when loaded)."""
-        from tiltyard.engine.skyyear import IrradianceOptions  # pvlib: load when first needed
-
-        sky = "file" if self.sky == "file" else self.sky
-        extra = {"weather": self.weather} if self.sky == "file" else {}
-        return IrradianceOptions(model=self.model, sky=sky, **extra, **kw)
-
-    def label(self) -> str:
-        if self.sky == "file" and self.weather_path is not None:
-            return f"weather file {self.weather_path.name}"
-        return {"clear": "clear sky (upper bound)", "monthly": "monthly GHI values"}.get(
-            self.sky, self.sky)
-
-
 class AppContext(QObject):
     """Shared state with change signals."""
 
-    sky_changed = Signal(object)        # SkyChoice
     study_changed = Signal(object)      # TiltStudy or None
     preferences_changed = Signal(object)
     message = Signal(str, str)          # level ("error"|"warning"|"info"), text
@@ -57,23 +34,32 @@ class AppContext(QObject):
         self.document = document
         self.runner = runner
         self.prefs = prefs
-        self.sky = SkyChoice(sky=prefs.sky if prefs.sky in ("clear", "monthly") else "clear",
-                             model=prefs.model)
         self.study = None
+        document.replaced.connect(self._on_replaced)
 
     @property
     def site(self) -> Site:
         return self.document.site
 
-    def set_sky(self, **changes) -> None:
-        new = replace(self.sky, **changes)
-        if new != self.sky:
-            self.sky = new
-            self.sky_changed.emit(new)
+    @property
+    def assessment(self) -> Assessment:
+        return self.document.assessment
+
+    def set_settings(self, **changes) -> bool:
+        """Change the open site's settings; an error goes to the message banner."""
+        err = self.document.set_settings(**changes)
+        if err is not None:
+            self.notify("error", str(err))
+            return False
+        return True
 
     def publish_study(self, study) -> None:
         self.study = study
         self.study_changed.emit(study)
+
+    def _on_replaced(self, _assessment) -> None:
+        """A new document: nothing computed for the previous site stays."""
+        self.publish_study(None)
 
     def set_preferences(self, prefs: Preferences) -> None:
         self.prefs = prefs

@@ -1,9 +1,15 @@
-"""The open site: one validated :class:`Site`, its file and whether it has unsaved edits.
+"""The open site: one validated :class:`Assessment`, its file and whether it has unsaved edits.
 
-Views never hold their own copy of the site. They read ``document.site`` and
-propose a new one with :meth:`SiteDocument.propose`; a proposal that fails
-validation is refused with the engine's message and the current site stays.
-Every accepted change emits ``site_changed`` once.
+The document is the whole assessment of one site: the site itself and every
+per-site setting (sky basis and weather file, models, study settings,
+mounting, rows), saved together in the site file (format 2). Views never hold
+their own copy. They read ``document.site`` / ``document.assessment``, propose
+a new site with :meth:`SiteDocument.propose` and new settings with
+:meth:`SiteDocument.set_settings`; a proposal that fails validation is refused
+with the engine's message and the document stays as it was. An accepted site
+change emits ``site_changed`` once, a settings change ``settings_changed``;
+opening or creating a site replaces **all** of it and emits ``replaced`` (and
+``site_changed``), so nothing of the previous site is left behind.
 """
 
 from __future__ import annotations
@@ -13,14 +19,13 @@ from pathlib import Path
 
 from PySide6.QtCore import QObject, QStandardPaths, Signal
 
-from tiltyard.engine.site import (
-    DEFAULT_DEMO,
-    Site,
-    SiteError,
-    load_demo,
-    load_site,
-    save_site,
+from tiltyard.engine.assessment import (
+    Assessment,
+    demo_assessment,
+    load_assessment,
+    save_assessment,
 )
+from tiltyard.engine.site import DEFAULT_DEMO, Site, SiteError
 
 AUTOSAVE_NAME = "autosave-site.json"
 
@@ -33,15 +38,23 @@ def data_dir() -> Path:
     return path
 
 
+def _as_assessment(doc: Site | Assessment) -> Assessment:
+    return doc if isinstance(doc, Assessment) else Assessment(doc)
+
+
 class SiteDocument(QObject):
-    """Holds the current site; emits ``site_changed(Site)`` and ``state_changed()``."""
+    """Holds the current assessment; emits ``site_changed(Site)``,
+    ``settings_changed(Assessment)``, ``replaced(Assessment)`` and ``state_changed()``."""
 
     site_changed = Signal(object)
+    settings_changed = Signal(object)
+    replaced = Signal(object)
     state_changed = Signal()
 
-    def __init__(self, site: Site | None = None, parent=None):
+    def __init__(self, site: Site | Assessment | None = None, parent=None):
         super().__init__(parent)
-        self._site = site if site is not None else load_demo(DEFAULT_DEMO)
+        self._assessment = (_as_assessment(site) if site is not None
+                            else demo_assessment(DEFAULT_DEMO))
         self._path: Path | None = None
         self._dirty = False
         self._demo_name: str | None = DEFAULT_DEMO if site is None else None
@@ -49,7 +62,16 @@ class SiteDocument(QObject):
     # -- state ----------------------------------------------------------------
     @property
     def site(self) -> Site:
-        return self._site
+        return self._assessment.site
+
+    @property
+    def _site(self) -> Site:
+        return self._assessment.site
+
+    @property
+    def assessment(self) -> Assessment:
+        """The site with every per-site setting: what the views compute from."""
+        return self._assessment
 
     @property
     def path(self) -> Path | None:
@@ -74,40 +96,59 @@ class SiteDocument(QObject):
         """Apply field changes if they validate; return the error otherwise."""
         try:
             new = self._site.with_changes(**changes)
+            assessment = self._assessment.with_site(new)
         except SiteError as exc:
             return exc
+        except ValueError as exc:      # the settings no longer fit the edited site
+            return SiteError("site", "", str(exc))
         if new != self._site:
-            self._site = new
+            self._assessment = assessment
             self._dirty = True
             self.site_changed.emit(new)
             self.state_changed.emit()
         return None
 
-    def replace(self, site: Site, path: str | os.PathLike | None = None, dirty: bool = False,
-                demo_name: str | None = None) -> None:
-        """Make ``site`` the open site (after New, Open or a recovery)."""
-        self._site = site
+    def set_settings(self, **changes) -> ValueError | None:
+        """Change per-site settings (``sky``, ``weather``, ``model``, ``study``, ``mounting``,
+        ``rows``...); return the engine's error instead of applying a bad one."""
+        try:
+            new = self._assessment.with_changes(**changes)
+        except ValueError as exc:
+            return exc
+        if new != self._assessment:
+            self._assessment = new
+            self._dirty = True
+            self.settings_changed.emit(new)
+            self.state_changed.emit()
+        return None
+
+    def replace(self, site: Site | Assessment, path: str | os.PathLike | None = None,
+                dirty: bool = False, demo_name: str | None = None) -> None:
+        """Make ``site`` (a Site with default settings, or a whole Assessment) the open
+        document (after New, Open or a recovery): every per-site setting is replaced."""
+        self._assessment = _as_assessment(site)
         self._path = Path(path) if path is not None else None
         self._dirty = dirty
         self._demo_name = demo_name
-        self.site_changed.emit(site)
+        self.replaced.emit(self._assessment)
+        self.site_changed.emit(self._assessment.site)
         self.state_changed.emit()
 
     # -- files ----------------------------------------------------------------
     def open(self, path: str | os.PathLike) -> None:
         """Load a site file; on any error the current site is left untouched."""
-        site = load_site(path)            # raises SiteError naming the file
-        self.replace(site, path=path)
+        assessment = load_assessment(path)     # raises SiteError naming the file
+        self.replace(assessment, path=path)
 
     def open_demo(self, name: str) -> None:
-        self.replace(load_demo(name), demo_name=name)
+        self.replace(demo_assessment(name), demo_name=name)
 
     def save(self, path: str | os.PathLike | None = None) -> Path:
-        """Write the site atomically; returns the path written."""
+        """Write the site with its settings atomically; returns the path written."""
         target = Path(path) if path is not None else self._path
         if target is None:
             raise ValueError("no file name yet: use Save As")
-        save_site(self._site, target)
+        save_assessment(self._assessment, target)
         self._path = target
         self._dirty = False
         self._demo_name = None
@@ -124,7 +165,7 @@ class SiteDocument(QObject):
         if not self._dirty:
             return None
         target = self.autosave_path()
-        save_site(self._site, target)
+        save_assessment(self._assessment, target)
         return target
 
     @classmethod
@@ -135,12 +176,13 @@ class SiteDocument(QObject):
             pass
 
     @classmethod
-    def pending_recovery(cls) -> Site | None:
-        """The site left by a session that did not close cleanly, if readable."""
+    def pending_recovery(cls) -> Assessment | None:
+        """The site (with its settings) left by a session that did not close cleanly, if
+        readable."""
         path = cls.autosave_path()
         if not path.exists():
             return None
         try:
-            return load_site(path)
+            return load_assessment(path)
         except SiteError:
             return None

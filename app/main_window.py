@@ -25,6 +25,7 @@ from PySide6.QtWidgets import (
 )
 
 from tiltyard import __version__
+from tiltyard.engine.assessment import Assessment
 from tiltyard.engine.cautions import CAUTION
 from tiltyard.engine.site import Site, SiteError, demo_site_names
 
@@ -241,7 +242,8 @@ class MainWindow(QMainWindow):
         if not self.confirm_discard():
             return
         site = Site(name="New site", latitude_deg=0.0, longitude_deg=0.0, timezone="UTC")
-        self.document.replace(site, dirty=True)
+        prefs = self.ctx.prefs
+        self.document.replace(Assessment(site, sky=prefs.sky, model=prefs.model), dirty=True)
         self.show_view("Site")
 
     def file_open(self) -> None:
@@ -312,11 +314,12 @@ class MainWindow(QMainWindow):
 
     def offer_recovery(self) -> bool:
         """Offer back an autosaved site from a session that did not close cleanly."""
-        site = SiteDocument.pending_recovery()
-        if site is None:
+        recovered = SiteDocument.pending_recovery()
+        if recovered is None:
             return False
+        site = recovered.site
         if self.ask_recover(site):
-            self.document.replace(site, dirty=True)
+            self.document.replace(recovered, dirty=True)
             SiteDocument.clear_autosave()
             self.banner.show_message("info", f"Recovered the unsaved site “{site.name}”. "
                                      "Save it to keep it.")

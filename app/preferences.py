@@ -7,6 +7,7 @@ from PySide6.QtWidgets import QComboBox, QDialog, QDialogButtonBox, QFormLayout,
 from .settings import MODEL_CHOICES, PAPER_CHOICES, SKY_CHOICES, TIME_CHOICES, Preferences
 
 _LABELS = {
+    "auto": "best available (weather file, else monthly values, else clear sky)",
     "clear": "clear sky (upper bound)", "monthly": "monthly GHI values",
     "perez": "Perez 1990", "haydavies": "Hay-Davies", "isotropic": "isotropic (Liu-Jordan)",
     "clock": "local clock time (with daylight saving)", "standard": "local standard time",
@@ -25,8 +26,9 @@ class PreferencesDialog(QDialog):
         form.addRow("Prepared by", self.preparer)
         form.addRow("Organisation", self.organisation)
         self.combos = {}
-        for name, label, choices in (("sky", "Default sky basis", SKY_CHOICES),
-                                     ("model", "Default transposition model", MODEL_CHOICES),
+        for name, label, choices in (("sky", "Sky basis of a new site", SKY_CHOICES),
+                                     ("model", "Transposition model of a new site",
+                                      MODEL_CHOICES),
                                      ("time_basis", "Time shown", TIME_CHOICES),
                                      ("paper", "Paper size", PAPER_CHOICES)):
             box = QComboBox()

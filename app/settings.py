@@ -10,7 +10,7 @@ ORGANISATION = "Tiltyard"
 APPLICATION = "Tiltyard"
 MAX_RECENT = 8
 
-SKY_CHOICES = ("clear", "monthly")
+SKY_CHOICES = ("auto", "clear", "monthly")
 MODEL_CHOICES = ("perez", "haydavies", "isotropic")
 TIME_CHOICES = ("clock", "standard", "solar")
 PAPER_CHOICES = ("a4", "letter")
@@ -20,7 +20,7 @@ PAPER_CHOICES = ("a4", "letter")
 class Preferences:
     preparer: str = ""
     organisation: str = ""
-    sky: str = "clear"
+    sky: str = "auto"
     model: str = "perez"
     time_basis: str = "clock"
     paper: str = "a4"

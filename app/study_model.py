@@ -104,9 +104,9 @@ def short_name(opt) -> str:
 
 # -- the table -------------------------------------------------------------------
 
-COLUMNS = ("Option", "Schedule", "Annual (kWh/m²)", "Objective", "Gain vs horizontal (%)",
-           "Gain vs fixed optimum (%)", "Share of two-axis ceiling (%)",
-           "Adjustments per year")
+COLUMNS = ("Option", "Schedule", "Annual (kWh/m²)", "Objective (kWh/m²)",
+           "Gain vs horizontal (%)", "Gain vs best fixed plane (%)",
+           "Share of two-axis ceiling (%)", "Adjustments per year")
 COL_OBJECTIVE = 3
 
 
@@ -163,12 +163,12 @@ class StudyTableModel(QStandardItemModel):
     def _build(study) -> list[dict]:
         year = study.options_used.irradiance.year
         rec = study.recommended
-        ceiling = study.option("two-axis").annual_kwh_m2
         rows = []
         for i, opt in enumerate(study.options):
+            # gains and shares on the study's objective (the annual total beside it)
             g_h = study.gain_pct(opt, "horizontal")
             g_f = study.gain_pct(opt, "fixed-optimal")
-            share = 100.0 * opt.annual_kwh_m2 / ceiling if ceiling > 0 else None
+            share = study.share_pct(opt, "two-axis")
             label = TABLE_NAMES.get(opt.kind, opt.label)
             if opt is rec:
                 label = "★ " + label

@@ -33,6 +33,7 @@ from PySide6.QtWidgets import (
     QVBoxLayout,
 )
 
+from tiltyard.engine.assessment import WeatherSource
 from tiltyard.engine.weather import (
     LABELS,
     MAPPED_COLUMNS,
@@ -59,8 +60,10 @@ OWN_OFFSET_TEXT = "(each timestamp carries its UTC offset)"
 class WeatherDialog(QDialog):
     """Choose a weather file for the sky basis.
 
-    ``ctx.set_sky(sky="file", weather_path=..., weather=...)`` happens only on
-    "Use this weather" after a successful read.
+    ``ctx.set_settings(sky="file", weather=WeatherSource(...))`` happens only on
+    "Use this weather" after a successful read (and, for a file that may not
+    belong to the site, a confirmation); the file's path, import settings and
+    SHA-256 are then saved with the site.
     """
 
     CHANNEL = "weather import"
@@ -156,6 +159,7 @@ class WeatherDialog(QDialog):
 
     def _path_edited(self, _text: str) -> None:
         self._loaded = None
+        self._read_options = (None, None, None)
         self._header = None
         self.use_button.setEnabled(False)
         self.mapping.hide()
@@ -233,6 +237,7 @@ class WeatherDialog(QDialog):
         self._busy = True
         self.read_button.setEnabled(False)
         self._set_status(f"Reading {path.name}…")
+        self._read_options = (columns, label, timezone)
         self.ctx.runner.submit_call(
             self.CHANNEL,
             EngineCall(read_weather_for_site, (path, site, columns, label, timezone)),
@@ -273,9 +278,28 @@ class WeatherDialog(QDialog):
         if self._loaded is None:
             self._set_status("Read a file first.", error=True)
             return
-        self.ctx.set_sky(sky="file", weather_path=self._loaded.path,
-                         weather=self._loaded.weather)
-        self.accept()
+        loaded = self._loaded
+        accept = False
+        if loaded.fit_warnings:
+            if not self.confirm_fit_warnings(loaded.fit_warnings):
+                return
+            accept = True
+        columns, label, zone = self._read_options
+        source = WeatherSource(str(Path(loaded.path).resolve()), tuple((columns or {}).items()),
+                               label, zone, loaded.sha256, accept_warnings=accept)
+        if self.ctx.set_settings(sky="file", weather=source):
+            self.accept()
+
+    def confirm_fit_warnings(self, warnings) -> bool:
+        """Ask before using a file that may not belong to the site (tests replace this)."""
+        from PySide6.QtWidgets import QMessageBox
+
+        box = QMessageBox(QMessageBox.Icon.Warning, "Weather file may not fit the site",
+                          "\n\n".join(warnings) + "\n\nUse it for this site anyway? The "
+                          "warning stays on the study and on the feasibility sheet.",
+                          QMessageBox.StandardButton.Yes | QMessageBox.StandardButton.No, self)
+        box.setDefaultButton(QMessageBox.StandardButton.No)
+        return box.exec() == QMessageBox.StandardButton.Yes
 
     def done(self, result: int) -> None:  # Qt override: stop listening, drop pending work
         try:

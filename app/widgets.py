@@ -90,6 +90,7 @@ class View(QWidget):
         self._stale = True
         self._deferred: dict[str, list] = {}
         ctx.document.site_changed.connect(self._on_site_changed)
+        ctx.document.settings_changed.connect(lambda _a: self.mark_stale())
 
     def draw_in_stages(self, owner: str, steps) -> None:
         """Draw a result through the runner's ``run_in_stages``, now if the view is

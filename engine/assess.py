@@ -31,7 +31,7 @@ from .jobs import irradiance_on_plane
 from .skyyear import IrradianceOptions, SkyYear, sky_year
 from .sunchart import sun_chart
 from .tilt import periods_poa, tilt_study
-from .weather import WeatherData
+from .weather import WeatherData, finding_text, summary_text
 
 #: A weather file recorded further than this from the site is refused for the study, km.
 WEATHER_DISTANCE_LIMIT_KM = 50.0
@@ -392,6 +392,14 @@ class AssessmentResult:
             return out
         return self._kept("clear bound", build)
 
+    def summary(self) -> AssessmentSummary:
+        """What a view's header says about the basis (small: it crosses between processes)."""
+        w = self.weather
+        findings = () if w is None else tuple(finding_text(f) for f in w.findings)
+        return AssessmentSummary(self.basis, self.mounting, self.irradiance_options.step_min,
+                                 None if w is None else summary_text(w), findings,
+                                 tuple(self.weather_warnings), self.sky.note)
+
     def header(self) -> dict:
         """What every output states about how its figures were made."""
         a = self.assessment
@@ -407,6 +415,34 @@ class AssessmentResult:
             "settings": assessment_to_dict(a),
             "caution": CAUTION,
         }
+
+
+@dataclass(frozen=True)
+class AssessmentSummary:
+    """The basis of an assessment in words, for a view's header.
+
+    Attributes
+    ----------
+    basis : Basis
+    mounting : str
+    interval_min : int
+    weather : str or None
+        One line on the weather series (source, interval, labelling, findings).
+    findings : tuple of str
+        Each import finding of the weather file.
+    weather_warnings : tuple of str
+        Accepted site-fit warnings.
+    sky_note : str
+        Provenance and caveats of the sky year.
+    """
+
+    basis: Basis
+    mounting: str
+    interval_min: int
+    weather: str | None
+    findings: tuple
+    weather_warnings: tuple
+    sky_note: str
 
 
 # -- one result per assessment, kept in the process that computed it ----------------------------
@@ -450,11 +486,12 @@ def assessment_part(assessment: Assessment, part: str, *args,
     return method(*args)
 
 
-_PARTS = ("result", "study", "irradiance", "horizon_loss", "option_totals", "day_curves",
+_PARTS = ("result", "summary", "study", "irradiance", "horizon_loss", "option_totals", "day_curves",
           "sun_chart", "sheet_data", "clear_sky_bound")
 
 
 __all__ = ["EARTH_RADIUS_KM", "SUN_DOWN_GHI_LIMIT", "WEATHER_DISTANCE_LIMIT_KM",
-           "AssessmentCancelled", "AssessmentError", "AssessmentResult", "Basis",
+           "AssessmentCancelled", "AssessmentError", "AssessmentResult", "AssessmentSummary",
+           "Basis",
            "WeatherFitError", "assess", "assessed", "assessment_part", "choose_basis",
            "distance_km", "irradiance_options", "load_weather", "weather_fit_warnings"]

@@ -87,7 +87,12 @@ def study_document(study: TiltStudy, result=None) -> dict:
 
 def study_json_text(study: TiltStudy, result=None) -> str:
     """:func:`study_document` as the exact text ``tiltyard study --json`` prints."""
-    return json.dumps(study_document(study, result), indent=2, ensure_ascii=False) + "\n"
+    return document_json_text(study_document(study, result))
+
+
+def document_json_text(doc: dict) -> str:
+    """A JSON document as the command line prints it (the sheet's ``document`` included)."""
+    return json.dumps(doc, indent=2, ensure_ascii=False) + "\n"
 
 
 # -- tables --------------------------------------------------------------------------------
@@ -371,7 +376,8 @@ class SheetFigures:
     study : TiltStudy
         The study (its JSON document is :attr:`document`).
     document : dict
-        :func:`study_document` of the study.
+        :func:`study_document` of the study (with the assessment's header and
+        clear-sky bound when the sheet was made from an assessment).
     recommended : dict
         The recommended option's row of the JSON document.
     gains_over_planes : tuple of (str, float or None)
@@ -528,7 +534,7 @@ def sheet_figures(study: TiltStudy, sky: SkyYear | None = None, result=None) -> 
     opts = study.options_used
     if sky is None:
         sky = study.sky if study.sky is not None else sky_year(site, opts.irradiance)
-    doc = study_document(study)
+    doc = study_document(study, result)
     d = doc["study"]
     rec = next(r for r in d["options"] if r["label"] == d["recommended"])
     planes = tuple((r["label"], _gain(rec["annual_kwh_m2"], r["annual_kwh_m2"]))
@@ -584,7 +590,7 @@ __all__ = ["MODEL_NAMES", "MONTH_ABBR", "SHEET_CAUTIONS", "check_option_kinds", 
            "hourly_csv_text", "hourly_poa_table", "input_digest",
            "monthly_csv_text", "monthly_table", "option_horizon_loss", "options_csv_text",
            "options_table", "options_to_dict", "select_options", "sheet_figures",
-           "study_document", "study_json_text", "tool_version"]
+           "document_json_text", "study_document", "study_json_text", "tool_version"]
 
 
 #: Sampling step of the sun-path chart's day paths on paper, minutes.
@@ -599,7 +605,6 @@ class SheetData:
     sky: SkyYear
     figures: SheetFigures
     sun: SunChart
-    result: object | None = None      # the AssessmentResult the sheet was made from
 
 
 def sheet_data(site: Site, study: TiltStudy | StudyOptions | None = None,
@@ -655,4 +660,4 @@ def sheet_data(site: Site, study: TiltStudy | StudyOptions | None = None,
     sun = sun_chart(site, f"{study.options_used.irradiance.year}-06-21", basis=time_basis,
                     step_min=sun_step_min)
     report(1.0, "done")
-    return SheetData(study, sky, figures, sun, result)
+    return SheetData(study, sky, figures, sun)

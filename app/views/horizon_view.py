@@ -34,9 +34,9 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
+from tiltyard.engine.assess import AssessmentError, assessment_part, choose_basis
 from tiltyard.engine.horizon import merged_profile
 from tiltyard.engine.horizon_io import read_horizon_csv, write_horizon_csv
-from tiltyard.engine.horizon_loss import DEFAULT_STEP_MIN, horizon_loss
 from tiltyard.engine.site import HorizonProfile, Obstacle, SiteError
 
 from .. import plots, theme
@@ -446,7 +446,6 @@ class HorizonView(View):
         ol.addStretch(1)
         self.obstacle_tab = obs
         self.tabs.addTab(obs, "Obstacles")
-        ctx.sky_changed.connect(lambda _s: self.mark_stale())
         self.show_site(ctx.site)
 
     # -- small helpers -----------------------------------------------------------
@@ -471,26 +470,14 @@ class HorizonView(View):
             return False
         return True
 
-    def _options(self):
-        sky = self.ctx.sky
-        step = DEFAULT_STEP_MIN
-        if sky.sky == "file" and sky.weather is not None:
-            step = int(getattr(sky.weather, "step_min", DEFAULT_STEP_MIN))
-        return sky.irradiance_options(step_min=step)
-
     # -- computations --------------------------------------------------------------
     def refresh(self) -> None:
         super().refresh()
-        site = self.ctx.site
-        self._submit_line(site)
-        try:
-            options = self._options()
-        except ValueError as exc:
-            self.loss_note.setText(f"Cannot compute the horizon loss: {exc}")
-            return
+        a = self.ctx.assessment
+        self._submit_line(a.site)
         self.loss_note.setText("Updating…")
         self.ctx.runner.submit_call(self.channel("loss"),
-                                    EngineCall(horizon_loss, (site, options)),
+                                    EngineCall(assessment_part, (a, "horizon_loss")),
                                     self._show_loss, label="Horizon loss")
 
     def _submit_line(self, site) -> None:
@@ -550,7 +537,10 @@ class HorizonView(View):
         self.loss_figure.setText(
             f"Horizontal plane: {abs(h.loss_pct):.1f} % {verb} "
             f"({abs(h.loss_kwh_m2):.0f} of {h.open_kwh_m2:.0f} kWh/m² a year)")
-        sky = self.ctx.sky.label()
+        try:
+            sky = choose_basis(self.ctx.assessment).words
+        except AssessmentError as exc:
+            sky = str(exc)
         model = {"perez": "Perez 1990", "haydavies": "Hay-Davies", "isotropic": "isotropic"}.get(
             result.options.model, result.options.model)
         self.loss_note.setText(

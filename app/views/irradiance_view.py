@@ -1,15 +1,15 @@
 """Irradiance view: one day's curves, monthly bars per option, annual totals.
 
-Controls: the sky basis (clear sky, the site's monthly values, a weather file)
-and the transposition model, both shared through ``ctx.set_sky`` with the Tilt
-study view; the plane (horizontal, each existing plane, and the tilt study's
+Controls: the sky basis (best available, clear sky, the site's monthly values,
+a weather file) and the transposition model, saved with the site
+(``ctx.set_settings``) and so shared with the Tilt study and the Sheet; the plane (horizontal, each existing plane, and the tilt study's
 optimum when there is one); the date.
 
 Charts: (1) the date's curves, W/m², on local clock time; (2) monthly mean daily
 irradiation, kWh/m²/day, grouped by month with one bar per option; (3) a table
 of annual totals with the horizon loss. All figures come from the engine
-(:func:`tiltyard.engine.daycurves.irradiance_day`,
-:func:`tiltyard.engine.daycurves.compare_options`) in the worker.
+of the open assessment (:func:`tiltyard.engine.assess.assessment_part`: day curves
+and option totals) in a worker process.
 """
 
 from __future__ import annotations
@@ -38,18 +38,18 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from tiltyard.engine.daycurves import compare_options, irradiance_day
+from tiltyard.engine.assess import AssessmentError, assessment_part, choose_basis
 from tiltyard.engine.timegrid import REFERENCE_YEAR
 
 from .. import plots, theme
 from ..engine_process import EngineCall
-from ..weather_dialog import WeatherDialog, finding_text, summary_text
+from ..weather_dialog import WeatherDialog
 from ..widgets import CopyableTable, View
 
 MONTHS = ("Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec")
 
-SKY_ITEMS = (("clear", "Clear sky (upper bound)"), ("monthly", "Monthly values of the site"),
-             ("file", "Weather file…"))
+SKY_ITEMS = (("auto", "Best available"), ("clear", "Clear sky (upper bound)"),
+             ("monthly", "Monthly values of the site"), ("file", "Weather file…"))
 MODEL_ITEMS = (("perez", "Perez 1990"), ("haydavies", "Hay-Davies"),
                ("isotropic", "Isotropic (Liu-Jordan)"))
 
@@ -212,7 +212,9 @@ class IrradianceView(View):
         self.sky_combo = QComboBox()
         for key, text in SKY_ITEMS:
             self.sky_combo.addItem(text, key)
-        self.sky_combo.setToolTip("Shared with the Tilt study view")
+        self.sky_combo.setToolTip("Best available: the site's weather file if it has one, else "
+                                  "its monthly values, else clear sky. Saved with the site and "
+                                  "shared with the Tilt study and the Sheet.")
         self.sky_combo.currentIndexChanged.connect(self._sky_picked)
         self.weather_button = QPushButton("Choose weather file…")
         self.weather_button.clicked.connect(self.open_weather_dialog)
@@ -337,7 +339,7 @@ class IrradianceView(View):
         self._fit_table(3)
         outer.addWidget(self.table)
 
-        ctx.sky_changed.connect(self._on_sky_changed)
+        ctx.document.settings_changed.connect(self._on_sky_changed)
         ctx.study_changed.connect(self._on_study_changed)
         self._sync_controls()
 
@@ -369,24 +371,23 @@ class IrradianceView(View):
         return out
 
     def _sync_controls(self) -> None:
-        """Show the shared sky choice, the site's planes and what the site allows."""
+        """Show the site's sky choice, its planes and what the site allows."""
         self._updating = True
         try:
-            sky = self.ctx.sky
-            site = self.ctx.site
+            a = self.ctx.assessment
+            site = a.site
             has_monthly = site.monthly_ghi_kwh_m2_day is not None
-            item = self.sky_combo.model().item(1)
+            item = self.sky_combo.model().item(2)
             item.setEnabled(has_monthly)
-            item.setToolTip("" if has_monthly else MONTHLY_MISSING)
             self.monthly_reason.setText("" if has_monthly else
                                         "Monthly values unavailable: " + MONTHLY_MISSING)
             item.setToolTip("" if has_monthly else "Unavailable: " + MONTHLY_MISSING)
             self.monthly_reason.setVisible(not has_monthly)
-            file_text = ("Weather file…" if sky.weather_path is None
-                         else f"Weather file: {sky.weather_path.name}")
-            self.sky_combo.setItemText(2, file_text)
-            self.sky_combo.setCurrentIndex(self.sky_combo.findData(sky.sky))
-            self.model_combo.setCurrentIndex(self.model_combo.findData(sky.model))
+            file_text = ("Weather file…" if a.weather is None
+                         else f"Weather file: {a.weather.name}")
+            self.sky_combo.setItemText(3, file_text)
+            self.sky_combo.setCurrentIndex(self.sky_combo.findData(a.sky))
+            self.model_combo.setCurrentIndex(self.model_combo.findData(a.model))
             previous = self.plane_combo.currentText()
             self._planes = self._plane_choices()
             self.plane_combo.clear()
@@ -394,48 +395,51 @@ class IrradianceView(View):
                 self.plane_combo.addItem(label)
             idx = self.plane_combo.findText(previous)
             self.plane_combo.setCurrentIndex(idx if idx >= 0 else min(1, len(self._planes) - 1))
-            self._show_sky_note()
+            self._show_sky_note(None)
         finally:
             self._updating = False
 
-    def _show_sky_note(self) -> None:
-        sky = self.ctx.sky
-        if sky.sky == "file" and sky.weather is not None:
-            w = sky.weather
-            warn = [finding_text(f) for f in w.findings if f.severity != "info"]
-            text = "Weather file " + summary_text(w)
-            if warn:
-                text += ". " + warn[0] + (f" (and {len(warn) - 1} more)" if len(warn) > 1 else "")
-            self.sky_note.setText(text)
-            self.sky_note.setToolTip("\n".join(finding_text(f) for f in w.findings))
-        elif sky.sky == "monthly":
-            self.sky_note.setText("Monthly values: a synthetic hourly year scaled to the site's "
-                                  "monthly mean daily GHI; right monthly totals, no day-to-day "
-                                  "weather.")
+    def _show_sky_note(self, summary) -> None:
+        """The basis in use and why; the weather file's import summary once it is known."""
+        try:
+            basis = choose_basis(self.ctx.assessment) if summary is None else summary.basis
+        except AssessmentError as exc:
+            self.sky_note.setText(str(exc))
             self.sky_note.setToolTip("")
-        else:
-            self.sky_note.setText("Clear sky: every figure is an upper bound, not an expected "
-                                  "yield (no clouds).")
-            self.sky_note.setToolTip("")
+            return
+        text = f"Sky basis {basis.words} ({basis.reason})."
+        tip = ""
+        if basis.kind == "monthly":
+            text += (" A synthetic hourly year scaled to the site's monthly mean daily GHI: "
+                     "right monthly totals, no day-to-day weather.")
+        elif basis.kind == "clear":
+            text += " Every figure is an upper bound, not an expected yield (no clouds)."
+        if summary is not None and summary.weather is not None:
+            text += " Weather file " + summary.weather
+            tip = "\n".join(summary.findings)
+        if summary is not None:
+            for w in summary.weather_warnings:
+                text += " Warning (accepted): " + w
+        self.sky_note.setText(text)
+        self.sky_note.setToolTip(tip)
 
     def _sky_picked(self, index: int) -> None:
         if self._updating:
             return
         key = self.sky_combo.itemData(index)
-        sky = self.ctx.sky
-        if key == "file":
-            if sky.weather is None:
-                self.open_weather_dialog()
-                return
-            self.ctx.set_sky(sky="file")
-        elif key == "monthly" and self.ctx.site.monthly_ghi_kwh_m2_day is None:
+        a = self.ctx.assessment
+        if key == "file" and a.weather is None:
             self._sync_controls()
-        else:
-            self.ctx.set_sky(sky=key)
+            self.open_weather_dialog()
+            return
+        if key == "monthly" and a.site.monthly_ghi_kwh_m2_day is None:
+            self._sync_controls()
+            return
+        self.ctx.set_settings(sky=key)
 
     def _model_picked(self, index: int) -> None:
         if not self._updating:
-            self.ctx.set_sky(model=self.model_combo.itemData(index))
+            self.ctx.set_settings(model=self.model_combo.itemData(index))
 
     def _plane_picked(self, _index: int) -> None:
         if not self._updating:
@@ -447,7 +451,8 @@ class IrradianceView(View):
 
     def open_weather_dialog(self) -> WeatherDialog:
         """Open the weather-file dialog (window-modal, not blocking) and return it."""
-        path = str(self.ctx.sky.weather_path) if self.ctx.sky.weather_path else None
+        w = self.ctx.assessment.weather
+        path = w.path if w is not None else None
         self._dialog = WeatherDialog(self.ctx, self, path=path)
         self._dialog.finished.connect(lambda _r: self._sync_controls())
         self._dialog.open()
@@ -476,15 +481,6 @@ class IrradianceView(View):
     def refresh(self) -> None:
         super().refresh()
         self._sync_controls()
-        site = self.ctx.site
-        if self.ctx.sky.sky == "monthly" and site.monthly_ghi_kwh_m2_day is None:
-            self.ctx.notify("info", "This site has no monthly GHI values: the sky basis is back "
-                            "to clear sky.")
-            self.ctx.set_sky(sky="clear")      # emits sky_changed, which submits
-            return
-        if self.ctx.sky.sky == "file" and self.ctx.sky.weather is None:
-            self.ctx.set_sky(sky="clear")
-            return
         self._submit(True, True)
 
     # -- engine work --------------------------------------------------------------------------
@@ -494,29 +490,24 @@ class IrradianceView(View):
             return self._planes[i]
         return self._plane_choices()[0]
 
-    def _options(self):
-        sky = self.ctx.sky
-        if sky.sky == "file" and sky.weather is not None:
-            return sky.irradiance_options(step_min=sky.weather.step_min)
-        return sky.irradiance_options()
-
     def _submit(self, day: bool, year: bool) -> None:
-        site = self.ctx.site
-        opts = self._options()
+        a = self.ctx.assessment
         if day:
             label, tilt, az = self._selected_plane()
             d = self.date_edit.date()
-            date = f"{opts.year:04d}-{d.month():02d}-{d.day():02d}"
+            date = f"{a.year:04d}-{d.month():02d}-{d.day():02d}"
             self.ctx.runner.submit_call(
                 self.channel("day"),
-                EngineCall(irradiance_day, (site, date, tilt, az, opts), progress_arg=None),
+                EngineCall(assessment_part, (a, "day_curves", date, tilt, az)),
                 lambda result, name=label: self._show_day(result, name),
                 label="Irradiance: day curves")
         if year:
-            study = self._study_for_site()
+            self.ctx.runner.submit_call(
+                self.channel("summary"), EngineCall(assessment_part, (a, "summary")),
+                self._show_sky_note, label="Irradiance: sky basis")
             self.ctx.runner.submit_call(
                 self.channel("year"),
-                EngineCall(compare_options, (site, opts, study)),
+                EngineCall(assessment_part, (a, "option_totals")),
                 self._show_rows, label="Irradiance: monthly and annual totals")
 
     # -- drawing --------------------------------------------------------------------------
@@ -625,21 +616,11 @@ class IrradianceView(View):
 
     def _show_row_notes(self) -> None:
         own = [r.sky_label for r in self.rows if not r.from_study]
-        studied = [r.sky_label for r in self.rows if r.from_study]
         basis = own[0] if own else ""
         self.bars_title.setText(f"Monthly mean daily irradiation per option: {basis}")
-        study = self.ctx.study
-        if study is not None and self._study_for_site() is None:
-            self.study_note.setText("The tilt study was computed for an earlier version of this "
-                                    "site; its options return when it is recomputed.")
-        elif study is None:
-            self.study_note.setText("Run the Tilt study to add its options here.")
-        elif studied and studied[0] != basis:
-            self.study_note.setText(f"The tilt study's options are on its own sky basis, "
-                                    f"{studied[0]}, until the study is recomputed on {basis}.")
-        else:
-            self.study_note.setText("")
-        self.study_note.setVisible(bool(self.study_note.text()))
+        # the study's options come from the same assessment, on the same sky
+        self.study_note.setText("")
+        self.study_note.setVisible(False)
 
     def _fill_table(self) -> None:
         m = self.table_model

@@ -2,10 +2,10 @@
 
 The preview is the sheet's own drawing code (:mod:`tiltyard.app.sheet`)
 painted into one image per page in a worker thread, so what is on screen is
-what the PDF and the printer get. It follows the study published by the
-Tilt study view (``ctx.study_changed``), the site, the sky basis and the
-preferences; when no matching study has been published it runs one with the
-Tilt study's last options (or the defaults) through the task runner.
+what the PDF and the printer get. It follows the open assessment (the site and
+its settings: sky basis, study settings, mounting) and the preferences: the
+engine's part (:func:`tiltyard.engine.assess.assessment_part`, ``sheet_data``)
+runs in a worker process on the same assessment the Tilt study view shows.
 
 File and print dialogs go through :meth:`SheetView.ask_save_path`,
 :meth:`SheetView.ask_print` and :meth:`SheetView.exec_dialog`, which tests
@@ -15,7 +15,7 @@ replace.
 from __future__ import annotations
 
 import re
-from dataclasses import dataclass, replace
+from dataclasses import dataclass
 from pathlib import Path
 
 from PySide6.QtCore import Qt, QTimer
@@ -36,16 +36,14 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
+from tiltyard.engine.assess import assessment_part
 from tiltyard.engine.exports import (
-    SUN_STEP_MIN,
+    document_json_text,
     hourly_csv_text,
     monthly_csv_text,
     options_csv_text,
-    sheet_data,
-    study_json_text,
 )
 from tiltyard.engine.site import write_bytes_atomically
-from tiltyard.engine.tilt import StudyOptions, TiltStudy
 
 from ..engine_process import EngineCall
 from ..sheet import PAPERS, SheetMeta, build_sheet, page_image, pdf_bytes
@@ -195,8 +193,6 @@ class SheetView(View):
         self._resize_timer.setSingleShot(True)
         self._resize_timer.setInterval(120)
         self._resize_timer.timeout.connect(self._request_images)
-        ctx.study_changed.connect(self._on_study)
-        ctx.sky_changed.connect(lambda _s: self.mark_stale())
         ctx.preferences_changed.connect(self._on_preferences)
         self._enable(False)
 
@@ -247,22 +243,6 @@ class SheetView(View):
     def paper_key(self) -> str:
         return self._paper
 
-    def _study_input(self):
-        """The study to lay out, or the options to run one with (for the current site/sky)."""
-        site = self.ctx.site
-        irr = self.ctx.sky.irradiance_options()
-        candidates = [self.ctx.study]
-        if self.preview is not None:
-            candidates.append(self.preview.result.study)
-        for st in candidates:
-            if isinstance(st, TiltStudy) and st.site == site and st.options_used.irradiance == irr:
-                return st
-        base = self.ctx.study if isinstance(self.ctx.study, TiltStudy) else None
-        if base is None and self.preview is not None:
-            base = self.preview.result.study
-        opts = base.options_used if base is not None else StudyOptions()
-        return replace(opts, irradiance=irr)
-
     def _target_dpi(self, doc_w: float, doc_h: float, n_pages: int) -> float:
         vp = self.scroll.viewport().size()
         vw, vh = max(200, vp.width()), max(200, vp.height())
@@ -279,22 +259,16 @@ class SheetView(View):
     # -- computing ------------------------------------------------------------
     def refresh(self) -> None:
         super().refresh()
-        try:
-            study = self._study_input()
-        except ValueError as exc:
-            self.ctx.notify("error", f"Sheet: sky basis: {exc}")
-            return
-        site, meta, paper = self.ctx.site, self.meta(), self._paper
+        a, meta, paper = self.ctx.assessment, self.meta(), self._paper
         _name, w, h = PAPERS[paper]
         dpi = self._target_dpi(w, h, 2)
-        self.status.setText("computing the sheet…" if not isinstance(study, TiltStudy)
-                            else "laying out the sheet…")
+        self.status.setText("computing the sheet…")
 
         # the engine's part in a worker process (it holds no lock the window needs), then
         # the layout and the preview images, which need Qt, in a thread
         def lay_out_job(data):
-            if isinstance(study, TiltStudy):      # keep the published study, not its copy
-                data = replace(data, study=study)
+            if a != self.ctx.assessment:         # the site or its settings changed meanwhile
+                return
 
             def job(progress):
                 progress(0.5, "laying out the pages")
@@ -302,12 +276,12 @@ class SheetView(View):
                 images = tuple(page_image(result.document, i, dpi)
                                for i in range(result.document.page_count))
                 return _Preview(result, result.document, images, dpi)
-            self.ctx.runner.submit(self.channel("sheet"), job, self._show, label="Sheet",
+            self.ctx.runner.submit(self.channel("layout"), job, self._show, label="Sheet",
                                    debounce_ms=0)
 
         self.ctx.runner.submit_call(
             self.channel("sheet"),
-            EngineCall(sheet_data, (site, study, meta.time_basis, SUN_STEP_MIN)),
+            EngineCall(assessment_part, (a, "sheet_data", meta.time_basis)),
             lay_out_job, label="Sheet")
 
     def _relayout(self) -> None:
@@ -329,7 +303,7 @@ class SheetView(View):
             return _Preview(result, doc, images, dpi)
 
         self.status.setText("laying out the sheet…")
-        self.ctx.runner.submit(self.channel("sheet"), job, self._show, label="Sheet")
+        self.ctx.runner.submit(self.channel("layout"), job, self._show, label="Sheet")
 
     def _request_images(self) -> None:
         """Render the pages again at the size the preview now has."""
@@ -385,9 +359,6 @@ class SheetView(View):
         self._resize_timer.start()
 
     # -- reactions ------------------------------------------------------------
-    def _on_study(self, _study) -> None:
-        self.mark_stale()
-
     def _on_preferences(self, prefs) -> None:
         self._show_prepared()
         if prefs.paper in PAPERS and prefs.paper != self._paper:
@@ -488,7 +459,7 @@ class SheetView(View):
             elif kind == "hourly":
                 data = hourly_csv_text(result.sky, result.study.site, chosen).encode("utf-8")
             else:
-                data = study_json_text(result.study).encode("utf-8")
+                data = document_json_text(result.figures.document).encode("utf-8")
             try:
                 write_bytes_atomically(path, data)
             except OSError as exc:

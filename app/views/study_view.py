@@ -1,6 +1,7 @@
 """Tilt study view: objective and limits, the compared options, and four charts.
 
-The study itself is :func:`tiltyard.engine.tilt.tilt_study`, run through the
+The study itself is :func:`tiltyard.engine.tilt.tilt_study` on the open
+assessment (:func:`tiltyard.engine.assess.assessment_part`), run through the
 task runner; this view only edits its options and draws its result. The last
 good result stays on screen while a field holds a value the engine refuses.
 """
@@ -9,7 +10,6 @@ from __future__ import annotations
 
 import math
 import re
-from dataclasses import replace
 from datetime import date
 
 import numpy as np
@@ -31,7 +31,9 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from tiltyard.engine.tilt import StudyOptions, tilt_study
+from tiltyard.engine.assess import AssessmentError, assessment_part, choose_basis
+from tiltyard.engine.assessment import Mounting, StudySettings
+from tiltyard.engine.tilt import StudyOptions
 from tiltyard.engine.timegrid import REFERENCE_YEAR
 
 from .. import plots, theme
@@ -52,6 +54,19 @@ from ..widgets import CopyableTable, ValidatedField, View
 
 OBJECTIVES = (("annual total", "annual"), ("worst month", "worst-month"),
               ("chosen months", "months"))
+
+#: How the panels are held, in the user's words (the engine's mounting kinds).
+MOUNTING_CHOICES = (("flush on the roof, as it is", "flush"), ("fixed rack", "fixed-rack"),
+                    ("adjustable rack (seasonal tilts)", "adjustable"),
+                    ("rows on the ground", "ground-rows"),
+                    ("rows on a flat roof", "flat-roof-rows"))
+#: Tilt positions a year an adjustable rack may take.
+POSITION_CHOICES = (("2 (two seasons)", 2), ("4 (four seasons)", 4), ("12 (every month)", 12))
+
+#: What an objective's figures measure, for chart axes.
+OBJECTIVE_AXIS = {"annual": "Annual irradiation (kWh/m²)",
+                  "worst-month": "Weakest month (kWh/m²)",
+                  "months": "Chosen months (kWh/m²)"}
 
 #: Which editor fields an engine message is about (by the message's first words).
 _MESSAGE_FIELDS = (("tilt range", ("tilt_min_deg", "tilt_max_deg")),
@@ -218,9 +233,9 @@ class StudyView(View):
         outer.addLayout(upper)
         outer.addWidget(self._build_charts(), 1)
 
-        ctx.sky_changed.connect(lambda _s: self.mark_stale())
-        self._sync_enabled()
-        self._options = self._collect()
+        self._loading = False
+        ctx.document.replaced.connect(self._load_settings)
+        self._load_settings(ctx.assessment)
 
     # -- construction ---------------------------------------------------------
     def _build_editor(self) -> QWidget:
@@ -237,6 +252,21 @@ class StudyView(View):
                                   "winter loads). Chosen months: most energy in the ticked "
                                   "months.")
         self.objective.currentIndexChanged.connect(lambda _i: self._changed())
+        self.mounting = QComboBox()
+        for text, key in MOUNTING_CHOICES:
+            self.mounting.addItem(text, key)
+        self.mounting.setToolTip("How the panels will be held: flush on a roof keeps the "
+                                 "roof's tilt and direction; only an adjustable rack can "
+                                 "follow a seasonal schedule.")
+        self.mounting.currentIndexChanged.connect(lambda _i: self._changed())
+        form.addRow("Mounting", self.mounting)
+        self.positions = QComboBox()
+        for text, n in POSITION_CHOICES:
+            self.positions.addItem(text, n)
+        self.positions.setCurrentIndex(len(POSITION_CHOICES) - 1)
+        self.positions.setToolTip("Most tilt positions a year the adjustable rack takes")
+        self.positions.currentIndexChanged.connect(lambda _i: self._changed())
+        form.addRow("Positions a year", self.positions)
         form.addRow("Maximise", self.objective)
 
         months = QWidget()
@@ -492,16 +522,54 @@ class StudyView(View):
         return opts
 
     def _changed(self) -> None:
+        if self._loading:
+            return
         self._sync_enabled()
         opts = self._collect()
         if opts is None:
             self.status.setText("showing the last good result")
             return
-        if opts != self._options:
-            self._options = opts
-            self.mark_stale()
+        self._options = opts
+        kw = self._kwargs()
+        mounting = Mounting(self.mounting.currentData(), int(self.positions.currentData()))
+        self.ctx.set_settings(study=StudySettings(**kw), mounting=mounting)
+
+    def _load_settings(self, assessment) -> None:
+        """Show a newly opened site's own study settings and mounting in the editor."""
+        st, a = assessment.study, assessment
+        self._loading = True
+        try:
+            self.objective.setCurrentIndex(max(0, self.objective.findData(st.objective)))
+            for i, cb in enumerate(self.month_boxes):
+                cb.setChecked(i + 1 in st.months)
+            self.mounting.setCurrentIndex(max(0, self.mounting.findData(a.mounting_kind)))
+            pos = self.positions.findData(int(a.mounting.max_positions))
+            self.positions.setCurrentIndex(pos if pos >= 0 else len(POSITION_CHOICES) - 1)
+            for name, value in (("tilt_min_deg", st.tilt_min_deg),
+                                ("tilt_max_deg", st.tilt_max_deg),
+                                ("tilt_step_deg", st.tilt_step_deg),
+                                ("min_days_between", st.min_days_between)):
+                self.fields[name].edit.setText(f"{value:g}")
+                self._good[name] = value
+            fixed_az = st.azimuth_deg is not None
+            self.azimuth_mode.setCurrentIndex(1 if fixed_az else 0)
+            self.azimuth.edit.setText(f"{st.azimuth_deg:g}" if fixed_az else "")
+            sw = st.switch_dates
+            self.switch_mode.setCurrentIndex(1 if sw else 0)
+            for f, text in zip((self.switch_a, self.switch_b), sw or ("", ""), strict=True):
+                f.edit.setText(text)
+            self._year = a.year
+        finally:
+            self._loading = False
+        self._sync_enabled()
+        self._options = self._collect()
 
     def _sync_enabled(self) -> None:
+        has_planes = bool(self.ctx.site.planes)
+        flush = self.mounting.model().item(0)
+        flush.setEnabled(has_planes)
+        flush.setToolTip("" if has_planes else "Add the roof plane on the Site view first")
+        self.positions.setEnabled(self.mounting.currentData() == "adjustable")
         self.months_widget.setEnabled(self.objective.currentData() == "months")
         for cb in self.month_boxes:
             cb.setEnabled(self.objective.currentData() == "months")
@@ -520,7 +588,7 @@ class StudyView(View):
     def _switch_mode_changed(self, _i) -> None:
         if self.switch_mode.currentData() == "fixed":
             starts = ("04-01", "10-01")
-            if self.study is not None:
+            if self.study is not None and self.study.has_option("two-season"):
                 starts = tuple(p.start for p in self.study.option("two-season").schedule)
             for f, s in zip((self.switch_a, self.switch_b), starts, strict=True):
                 if not f.edit.text().strip():
@@ -535,23 +603,17 @@ class StudyView(View):
 
     def refresh(self) -> None:
         super().refresh()
-        site = self.ctx.site
-        self.heading.setText(f"Tilt study — {site.name}")
+        a = self.ctx.assessment
+        self.heading.setText(f"Tilt study — {a.site.name}")
+        self._sync_enabled()
         if self._options is None:
             self._options = self._collect()
             if self._options is None:
                 return
-        try:
-            irr = self.ctx.sky.irradiance_options()
-        except ValueError as exc:
-            self.status.setText("")
-            self.ctx.notify("error", f"Tilt study: sky basis: {exc}")
-            return
-        self._year = irr.year
-        opts = replace(self._options, irradiance=irr)
+        self._year = a.year
         self.status.setText("computing…")
         self.ctx.runner.submit_call(self.channel("study"),
-                                    EngineCall(tilt_study, (site, opts)),
+                                    EngineCall(assessment_part, (a, "study")),
                                     self._show_study, label="Tilt study")
 
     def _show_study(self, study) -> None:
@@ -566,12 +628,14 @@ class StudyView(View):
     def _show_table(self, study) -> None:
         self.status.setText("")
         irr = study.options_used.irradiance
-        note = study.sky_note
-        if irr.sky == "clear" and "upper bound" not in note:
-            note += " (an upper bound)"
-        self.basis.setText(f"Sky basis: {note} · sky diffuse model {irr.model} · "
-                           f"year {irr.year}, "
-                           f"{irr.step_min} min steps")
+        try:
+            basis = choose_basis(self.ctx.assessment)
+            words = f"{basis.words} ({basis.reason})"
+        except AssessmentError as exc:
+            words = str(exc)
+        self.basis.setText(f"Sky basis: {words} · mounting {study.mounting} · sky diffuse "
+                           f"model {irr.model} · year {irr.year}, {irr.step_min} min steps")
+        self.basis.setToolTip(study.sky_note)
         self.model.set_study(study)
         self._fit_table(len(study.options))
         self._fit_headers()
@@ -588,8 +652,15 @@ class StudyView(View):
             up = 100.0 * (study.score(rec) / study.score(fixed) - 1.0)
             gain = f" It raises the {objective} objective by {up:.1f} % over the fixed optimum."
         accent = theme.ACCENT
+        head = "Recommended"
+        if study.mounting == "flush":
+            head = "This roof as it is"
+            share = study.share_pct(rec, "fixed-optimal")
+            gain = ("" if share is None else
+                    f" It gives {share:.0f} % of the best plane for the site on the "
+                    f"{objective} objective.")
         self.recommendation.setText(
-            f"<span style='color:{accent}; font-weight:600'>Recommended: "
+            f"<span style='color:{accent}; font-weight:600'>{head}: "
             f"{degree_text(rec.label)}</span> — {schedule_words(rec, year)}.{gain}<br>"
             f"<span style='color:{theme.MUTED}'>Rule: {degree_text(study.recommendation_rule)}"
             ". The two-axis row is a ceiling to judge the others by, not a recommendation."
@@ -607,7 +678,10 @@ class StudyView(View):
             cp.removeItem(item)
         self._curve_overlay = []
         tilt = study.tilt_curve.index.to_numpy(dtype=float)
-        kwh = study.tilt_curve["annual_kwh_m2"].to_numpy(dtype=float)
+        kwh = study.tilt_curve["objective_kwh_m2"].to_numpy(dtype=float)
+        objective = study.options_used.objective
+        cp.setLabel("left", OBJECTIVE_AXIS[objective])
+        cp.setTitle(OBJECTIVE_AXIS[objective].split(" (")[0] + " vs tilt", size="9.5pt")
         self.curve.setData(tilt, kwh)
         i = int(np.argmax(kwh))
         self.curve_opt.setData([tilt[i]], [kwh[i]])
@@ -719,7 +793,7 @@ class StudyView(View):
             dot.setZValue(10)
             mp.addItem(dot)
             self._map_overlay.append(dot)
-            pct = 100.0 * opt.annual_kwh_m2 / study.grid_optimum[2]
+            pct = 100.0 * study.score(opt) / study.grid_optimum[2]
             pct_text = f"{pct:.1f}" if 99.5 <= pct < 100.0 else f"{pct:.0f}"
             labels.append((f"{pl.label} ({pct_text} %)", px, pl.tilt_deg))
             self.map_markers.append((pl.label, px, pl.tilt_deg))

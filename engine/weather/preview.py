@@ -86,10 +86,19 @@ class Loaded:
         The file.
     weather : WeatherData
         The imported series with its findings.
+    fit_warnings : tuple of str
+        Reasons the series may not belong to the site (recorded far away,
+        light with the sun down; see
+        :func:`tiltyard.engine.assess.weather_fit_warnings`): the user must
+        confirm before the series is used.
+    sha256 : str or None
+        SHA-256 (hex) of the file's bytes as read, kept with the site.
     """
 
     path: Path
     weather: WeatherData
+    fit_warnings: tuple = ()
+    sha256: str | None = None
 
 
 def guess_columns(header) -> dict:

@@ -280,7 +280,7 @@ def test_export_then_import_round_trips(qtbot, make_ctx, idle, tmp_path, monkeyp
 def test_sky_choice_reaches_the_figures(qtbot, make_ctx, idle):
     ctx, view = _open(qtbot, make_ctx, idle)
     assert "Perez 1990" in view.loss_note.text()
-    ctx.set_sky(model="isotropic")
+    ctx.set_settings(model="isotropic")
     idle(ctx.runner)
     assert "isotropic sky diffuse" in view.loss_note.text()
 

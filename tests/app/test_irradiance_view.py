@@ -11,9 +11,10 @@ import pytest
 from PySide6.QtCore import QDate, Qt
 
 from tiltyard.app.views.irradiance_view import IrradianceView
+from tiltyard.engine.assess import assessment_part
+from tiltyard.engine.assessment import Mounting, file_sha256
 from tiltyard.engine.daycurves import irradiance_day
-from tiltyard.engine.tilt import StudyOptions, tilt_study
-from tiltyard.engine.weather import WeatherData
+from tiltyard.engine.skyyear import IrradianceOptions
 
 
 def _open(qtbot, ctx, idle) -> IrradianceView:
@@ -30,21 +31,23 @@ def _y(view, key: str) -> np.ndarray:
 
 
 def _study(ctx):
-    return tilt_study(ctx.site, StudyOptions(tilt_step_deg=5.0))
+    return assessment_part(ctx.assessment, "study")
 
 
 # -- controls and the day curves ------------------------------------------------------------
 
 def test_model_combo_changes_the_plane_curve_and_the_shared_sky(qtbot, make_ctx, idle):
     ctx = make_ctx("larkmoor-dairy")
+    ctx.set_settings(sky="clear")
     view = _open(qtbot, ctx, idle)
-    assert ctx.sky.model == "perez"
+    assert ctx.assessment.model == "perez"
     perez_poa, perez_ghi = _y(view, "poa"), _y(view, "ghi")
     perez_total = view.day.totals_kwh_m2["poa_kwh_m2"]
     seen = []
-    ctx.sky_changed.connect(seen.append)
+    ctx.document.settings_changed.connect(seen.append)
     view.model_combo.setCurrentIndex(view.model_combo.findData("isotropic"))
-    assert ctx.sky.model == "isotropic" and len(seen) == 1    # shared with the Tilt study
+    # saved with the site, so shared with the Tilt study and the Sheet
+    assert ctx.assessment.model == "isotropic" and len(seen) == 1
     idle(ctx.runner)
     iso_poa = _y(view, "poa")
     assert iso_poa.shape == perez_poa.shape
@@ -58,7 +61,8 @@ def test_model_combo_changes_the_plane_curve_and_the_shared_sky(qtbot, make_ctx,
     assert view.day.totals_kwh_m2["poa_kwh_m2"] < perez_total
     # the curve drawn is the engine's (regression value)
     label, tilt, az = view._selected_plane()
-    ref = irradiance_day(ctx.site, "2023-06-21", tilt, az, ctx.sky.irradiance_options())
+    ref = irradiance_day(ctx.site, "2023-06-21", tilt, az,
+                         IrradianceOptions(model="isotropic", sky="clear"))
     np.testing.assert_allclose(iso_poa, ref.series["poa_global"], rtol=1e-12)
 
 
@@ -115,21 +119,19 @@ def _groups_ok(view) -> None:
         np.testing.assert_array_equal(np.round(x), np.arange(1, 13))
 
 
-def test_monthly_bars_have_one_series_per_option_and_take_the_study(qtbot, make_ctx, idle):
+def test_monthly_bars_have_one_series_per_option_of_the_assessment(qtbot, make_ctx, idle):
     ctx = make_ctx("larkmoor-dairy")
+    ctx.set_settings(sky="clear")
     view = _open(qtbot, ctx, idle)
     n_own = 1 + len(ctx.site.planes)
-    assert len(view.bar_items) == n_own
-    _groups_ok(view)
-    assert view.table_model.rowCount() == n_own
-    assert view.table_rows()[0][0] == "Horizontal"
-    assert "upper bound" in view.table_rows()[0][4]
     study = _study(ctx)
-    ctx.publish_study(study)
-    idle(ctx.runner)
+    # the study's options of the same assessment, on the same sky, join at once
     added = [o for o in study.options if o.kind not in ("horizontal", "plane")]
     assert len(view.bar_items) == n_own + len(added) == len(view.bars_legend.entries)
     _groups_ok(view)
+    assert view.table_model.rowCount() == n_own + len(added)
+    assert view.table_rows()[0][0] == "Horizontal"
+    assert "upper bound" in view.table_rows()[0][4]
     # the study's bars are its monthly totals over the month lengths (regression value)
     days = np.array([31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31], dtype=float)
     for bar, opt in zip(view.bar_items[n_own:], added, strict=True):
@@ -137,7 +139,9 @@ def test_monthly_bars_have_one_series_per_option_and_take_the_study(qtbot, make_
     rows = view.table_rows()
     assert [r[0] for r in rows[n_own:]] == [o.label for o in added]
     assert rows[-1][3] == "—"                     # a tracking ceiling has no horizon loss
-    # the study's optimum joins the plane selector
+    # the published study's optimum joins the plane selector
+    ctx.publish_study(study)
+    idle(ctx.runner)
     planes = [view.plane_combo.itemText(i) for i in range(view.plane_combo.count())]
     assert any(p.startswith("Study: optimal fixed") for p in planes)
     view.plane_combo.setCurrentIndex(planes.index(next(p for p in planes
@@ -156,21 +160,20 @@ def test_monthly_basis_needs_the_sites_monthly_values(qtbot, make_ctx, idle):
     assert "no monthly mean daily GHI" in view.monthly_reason.text()
     assert "no monthly mean daily GHI" in item.toolTip()
     view.sky_combo.setCurrentIndex(view.sky_combo.findData("monthly"))   # refused
-    assert kelpie.sky.sky == "clear"
-    assert view.sky_combo.currentData() == "clear"
-    # a monthly choice made elsewhere falls back to clear sky for a site without the values
-    other = make_ctx("kelpie-creek-shed")
-    other.set_sky(sky="monthly")
-    _open(qtbot, other, idle)
-    assert other.sky.sky == "clear"
+    assert kelpie.assessment.sky == "auto"
+    assert view.sky_combo.currentData() == "auto"
+    # the best available basis of a site without monthly values or weather is the clear sky
+    assert "clear sky: upper bound only" in view.sky_note.text()
 
     lark = make_ctx("larkmoor-dairy")
     view2 = _open(qtbot, lark, idle)
     item2 = view2.sky_combo.model().item(view2.sky_combo.findData("monthly"))
     assert item2.isEnabled()
     assert not view2.monthly_reason.isVisible()
+    # the site holds its monthly values: the best available basis uses them
+    assert "on the site's monthly irradiation values" in view2.sky_note.text()
     view2.sky_combo.setCurrentIndex(view2.sky_combo.findData("monthly"))
-    assert lark.sky.sky == "monthly"
+    assert lark.assessment.sky == "monthly"
     idle(lark.runner)
     assert view2.day.options.sky == "monthly"
     assert view2.day.step_min == 60
@@ -219,11 +222,13 @@ def test_a_weather_csv_loads_through_the_dialog(qtbot, make_ctx, idle, tmp_path)
     assert dlg.loaded is not None, dlg.message
     assert dlg.use_button.isEnabled()
     assert dlg.findings.count() >= 1                     # the importer's findings are shown
-    assert ctx.sky.sky == "clear"                        # nothing changes before "use"
+    assert ctx.assessment.weather is None                # nothing changes before "use"
     qtbot.mouseClick(dlg.use_button, Qt.MouseButton.LeftButton)
-    assert ctx.sky.sky == "file"
-    assert isinstance(ctx.sky.weather, WeatherData)
-    assert ctx.sky.weather_path == path
+    # the file, its import settings and its SHA-256 belong to the site now
+    w = ctx.assessment.weather
+    assert ctx.assessment.sky == "file" and w.path == str(path.resolve())
+    assert w.sha256 == file_sha256(path) and w.timestamp_label == "start"
+    assert dict(w.columns)["ghi"] == "GHI W/m2"
     idle(ctx.runner)
     assert view.sky_combo.currentData() == "file"
     assert "clear-year.csv" in view.sky_combo.currentText()
@@ -243,7 +248,7 @@ def test_a_weather_csv_loads_through_the_dialog(qtbot, make_ctx, idle, tmp_path)
 def test_a_broken_csv_shows_the_line_and_keeps_the_sky(qtbot, make_ctx, idle, tmp_path):
     ctx = make_ctx("larkmoor-dairy")
     view = _open(qtbot, ctx, idle)
-    before = ctx.sky
+    before = ctx.assessment
     site_before = ctx.site
     path = tmp_path / "broken.csv"
     path.write_text("Time (UTC),GHI W/m2\n2023-01-01 00:00,0\n2023-01-01 01:00,0\n"
@@ -257,9 +262,9 @@ def test_a_broken_csv_shows_the_line_and_keeps_the_sky(qtbot, make_ctx, idle, tm
     idle(ctx.runner)
     assert "line 4" in dlg.message and "'abc'" in dlg.message
     assert not dlg.use_button.isEnabled()
-    assert ctx.sky is before and ctx.site is site_before
+    assert ctx.assessment is before and ctx.site is site_before
     dlg.reject()
-    assert view.sky_combo.currentData() == "clear"
+    assert view.sky_combo.currentData() == "auto"
 
 
 def test_a_csv_without_a_label_choice_is_not_read(qtbot, make_ctx, idle, tmp_path):
@@ -281,6 +286,7 @@ def test_a_csv_without_a_label_choice_is_not_read(qtbot, make_ctx, idle, tmp_pat
 @pytest.mark.parametrize("demo", ["larkmoor-dairy", "kelpie-creek-shed", "coral-lane-clinic"])
 def test_render_the_view(qtbot, make_ctx, idle, artefacts_dir, demo):
     ctx = make_ctx(demo)
+    ctx.set_settings(mounting=Mounting("adjustable"))     # every option, seasonal ones too
     view = _open(qtbot, ctx, idle)
     ctx.publish_study(_study(ctx))
     idle(ctx.runner)

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import datetime as dt
 import io
+import json
 import os
 import re
 
@@ -22,6 +23,7 @@ from tiltyard.app.sheet import SheetMeta, build_sheet, compute_sheet, pdf_bytes
 from tiltyard.app.sheet.layout import ELLIPSIS, Font, Measure, fit_text, inside
 from tiltyard.app.views import sheet_view as sheet_view_module
 from tiltyard.app.views.sheet_view import SheetView
+from tiltyard.engine.assessment import StudySettings
 from tiltyard.engine.exports import (
     hourly_csv_text,
     monthly_csv_text,
@@ -248,7 +250,9 @@ def test_view_previews_the_pages(qtbot, idle, make_ctx, artefacts_dir, demo):
     view = _view(qtbot, idle, ctx)
     pv = view.preview
     assert pv is not None and len(pv.images) == 2
-    assert pv.result.study is ctx.study                  # the published study, not a new one
+    # the sheet's study is the open assessment's, the one the Tilt study view shows
+    assert pv.result.study.options_used == ctx.assessment.study_options(
+        pv.result.study.options_used.irradiance)
     assert all(_not_blank(img) for img in pv.images)
     assert all(lab.pixmap().width() > 300 for lab in view.pages.labels)
     assert "Recommended" in view.status.text()
@@ -262,12 +266,13 @@ def test_view_follows_study_preferences_and_paper(qtbot, idle, make_ctx):
     ctx = make_ctx("larkmoor-dairy")
     view = _view(qtbot, idle, ctx)
     first = view.preview
-    other = tilt_study(ctx.site, StudyOptions(tilt_step_deg=10.0, objective="months",
-                                              months=(11, 12, 1),
-                                              irradiance=ctx.sky.irradiance_options()))
-    ctx.publish_study(other)
+    # the study settings are the site's: the sheet follows them
+    ctx.set_settings(study=StudySettings(tilt_step_deg=10.0, objective="months",
+                                         months=(11, 12, 1)))
     idle(ctx.runner)
-    assert view.preview is not first and view.preview.result.study is other
+    assert view.preview is not first
+    study = view.preview.result.study
+    assert study.options_used.objective == "months" and study.options_used.months == (11, 12, 1)
     assert "recommended for the total of Nov, Dec, Jan" in view.preview.document.pages[0].text()
     assert any(o.role == "key.objective" for o in view.preview.document.pages[0].texts())
     ctx.set_preferences(settings.Preferences(preparer="Ann Example", organisation="Sunny Ltd",
@@ -281,12 +286,12 @@ def test_view_follows_study_preferences_and_paper(qtbot, idle, make_ctx):
     view.paper.setCurrentIndex(0)
     idle(ctx.runner)
     assert view.preview.document.paper == "a4"
-    # a new site: the sheet runs its own study with the last options (coarse here)
+    # a new site brings its own settings: nothing of the previous site's study is left
     ctx.document.open_demo("kelpie-creek-shed")
     idle(ctx.runner, 90.0)
     assert view.preview.result.study.site.name == ctx.site.name
     used = view.preview.result.study.options_used
-    assert used.objective == "months" and used.tilt_step_deg == 10.0
+    assert used.objective == "annual" and used.tilt_step_deg == 1.0
 
 
 def test_view_exports_the_engines_data_and_reports_failures(qtbot, idle, make_ctx, tmp_path):
@@ -315,7 +320,10 @@ def test_view_exports_the_engines_data_and_reports_failures(qtbot, idle, make_ct
     assert data.startswith(b"%PDF") and len(pypdf.PdfReader(io.BytesIO(data)).pages) == 2
     assert (tmp_path / "out-monthly.csv").read_text("utf-8") == monthly_csv_text(study)
     assert (tmp_path / "out-options.csv").read_text("utf-8") == options_csv_text(study)
-    assert (tmp_path / "out-json.json").read_text("utf-8") == study_json_text(study)
+    # the JSON export is the sheet's document: the study with the assessment's header
+    doc = json.loads((tmp_path / "out-json.json").read_text("utf-8"))
+    assert doc["study"] == json.loads(study_json_text(study))["study"]
+    assert doc["assessment"]["basis"]["used"] == "monthly"
     chosen = [o for o in study.options if o.label in keep]
     assert (tmp_path / "out-hourly.csv").read_text("utf-8") == hourly_csv_text(
         sky, study.site, chosen)

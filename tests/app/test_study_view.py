@@ -23,14 +23,21 @@ from tiltyard.engine.tilt import Period, StudyOption
 SIZE = (1130, 760)
 
 
-def _open(qtbot, make_ctx, idle, demo="larkmoor-dairy", objective_index=None):
-    """A shown study view on ``demo`` with the tilt step typed as 5° and the study done."""
+def _open(qtbot, make_ctx, idle, demo="larkmoor-dairy", objective_index=None,
+          mounting="adjustable", sky=None):
+    """A shown study view on ``demo`` with the tilt step typed as 5° and the study done
+    (on an adjustable rack by default, so every kind of option is compared)."""
     ctx = make_ctx(demo)
+    if sky is not None:
+        ctx.set_settings(sky=sky)
     view = StudyView(ctx)
     qtbot.addWidget(view)
     view.resize(*SIZE)
     view.show()
     qtbot.waitExposed(view)
+    if mounting is not None:
+        view.mounting.setCurrentIndex(view.mounting.findData(mounting))
+        assert ctx.assessment.mounting_kind == mounting
     if objective_index is not None:
         view.objective.setCurrentIndex(objective_index)
     view.tilt_step.edit.clear()
@@ -66,7 +73,7 @@ def test_schedule_words_read_as_dates_and_tilts():
 
 
 def test_changing_the_objective_changes_the_options_and_publishes(qtbot, make_ctx, idle):
-    ctx, view = _open(qtbot, make_ctx, idle)
+    ctx, view = _open(qtbot, make_ctx, idle, sky="clear")
     study_annual = view.study
     assert ctx.study is study_annual                     # published for the other views
     assert study_annual.options_used.objective == "annual"
@@ -97,6 +104,45 @@ def test_changing_the_objective_changes_the_options_and_publishes(qtbot, make_ct
     assert "worst-month objective" in view.recommendation.text()
 
 
+def test_a_flush_roof_lists_the_roof_and_no_seasonal_schedule(qtbot, make_ctx, idle):
+    # larkmoor-dairy's plane is a roof plane: panels flush on it by default
+    ctx, view = _open(qtbot, make_ctx, idle, mounting=None)
+    assert view.mounting.currentData() == "flush"
+    st = view.study
+    assert {o.kind for o in st.options} == {"horizontal", "plane", "fixed-optimal", "two-axis"}
+    assert st.recommended.kind == "plane"
+    assert "This roof as it is" in view.recommendation.text()
+    assert "of the best plane for the site" in view.recommendation.text()
+    assert "on the site's monthly irradiation values" in view.basis.text()
+    # the mounting is saved with the site; the adjustable rack brings the schedules back
+    view.mounting.setCurrentIndex(view.mounting.findData("adjustable"))
+    idle(ctx.runner)
+    qtbot.waitUntil(lambda: view.study.mounting == "adjustable")
+    assert view.study.has_option("two-season") and view.study.has_option("monthly")
+    view.positions.setCurrentIndex(view.positions.findData(2))
+    idle(ctx.runner)
+    qtbot.waitUntil(lambda: view.study.options_used.max_positions == 2)
+    assert view.study.has_option("two-season") and not view.study.has_option("four-season")
+
+
+def test_the_worst_month_objective_reaches_the_curve_and_the_map(qtbot, make_ctx, idle):
+    ctx, view = _open(qtbot, make_ctx, idle, demo="tarnvik-cabin", objective_index=1)
+    st = view.study
+    assert st.options_used.objective == "worst-month"
+    x, y = view.curve.getData()
+    np.testing.assert_allclose(y, st.tilt_curve["objective_kwh_m2"].to_numpy())
+    # the curve is in worst-month units: well below the annual totals at every tilt
+    assert np.all(y < st.tilt_curve["annual_kwh_m2"].to_numpy() / 6.0)
+    assert "Weakest month" in view.curve_plot.getPlotItem().getAxis("left").labelText
+    # the map's best plane is the objective's: the curve's best to 0.5 % (the map steps the
+    # azimuth by 5°, the curve sits at the fixed optimum's azimuth, found to 1°)
+    assert st.grid_optimum[2] == pytest.approx(float(np.max(y)), rel=5e-3)
+    # gains in the table are on the objective too
+    fixed, hor = st.option("fixed-optimal"), st.option("horizontal")
+    assert st.gain_pct(fixed, "horizontal") == pytest.approx(
+        100.0 * (st.score(fixed) / st.score(hor) - 1.0))
+
+
 def test_recommended_row_is_highlighted_and_two_axis_is_a_ceiling(qtbot, make_ctx, idle):
     ctx, view = _open(qtbot, make_ctx, idle, demo="kelpie-creek-shed")
     st = view.study
@@ -123,7 +169,7 @@ def test_recommended_row_is_highlighted_and_two_axis_is_a_ceiling(qtbot, make_ct
     # the curve is the engine's tilt curve with its optimum marked
     x, y = view.curve.getData()
     np.testing.assert_allclose(x, st.tilt_curve.index.to_numpy(dtype=float))
-    np.testing.assert_allclose(y, st.tilt_curve["annual_kwh_m2"].to_numpy())
+    np.testing.assert_allclose(y, st.tilt_curve["objective_kwh_m2"].to_numpy())
     ox, oy = view.curve_opt.getData()
     assert ox[0] == x[int(np.argmax(y))] and oy[0] == pytest.approx(y.max())
 
@@ -220,7 +266,8 @@ def test_chosen_months_and_fixed_switch_dates(qtbot, make_ctx, idle):
     qtbot.wait(300)
     assert not ctx.runner.is_busy() and view.study is first      # nothing to optimise yet
     for m in (6, 7):                                              # June, July (winter, 33° S)
-        qtbot.mouseClick(view.month_boxes[m - 1], Qt.MouseButton.LeftButton)
+        box = view.month_boxes[m - 1]                             # click on the tick box
+        qtbot.mouseClick(box, Qt.MouseButton.LeftButton, pos=QPoint(8, box.height() // 2))
     assert not view.months_error.isVisible()
     idle(ctx.runner)
     assert view.study.options_used.objective == "months"
