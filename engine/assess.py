@@ -271,9 +271,11 @@ def assess(assessment: Assessment, progress: Callable[[float, str], None] | None
     if warnings and not assessment.weather.accept_warnings:
         raise WeatherFitError(" ".join(warnings) + " The study refuses it: check the file, or "
                               "use it anyway with --accept-weather-warnings on the command line "
-                              "(in the app: confirm when asked).")
+                              "(in the app: confirm when asked; in a script: "
+                              "WeatherSource(..., accept_warnings=True)).")
     report(1.0, "sky ready")
-    return AssessmentResult(assessment, basis, irr, sky, weather, warnings)
+    sha = file_sha256(assessment.weather.path) if weather is not None else None
+    return AssessmentResult(assessment, basis, irr, sky, weather, warnings, sha)
 
 
 @dataclass(frozen=True)
@@ -293,6 +295,8 @@ class AssessmentResult:
         The weather series for the ``file`` basis.
     weather_warnings : tuple of str
         Site-fit warnings the assessment accepted (shown wherever it is).
+    weather_sha256 : str or None
+        SHA-256 (hex) of the weather file's bytes as read.
     """
 
     assessment: Assessment
@@ -301,6 +305,7 @@ class AssessmentResult:
     sky: SkyYear
     weather: WeatherData | None = field(default=None, repr=False)
     weather_warnings: tuple = ()
+    weather_sha256: str | None = None
     _cache: dict = field(default_factory=dict, repr=False, compare=False)
 
     def _kept(self, key, build):
@@ -410,7 +415,7 @@ class AssessmentResult:
             "model": a.model, "clearsky_model": a.clearsky_model,
             "solar_constant_w_m2": a.solar_constant_w_m2, "year": a.year,
             "interval_min": self.irradiance_options.step_min,
-            "weather_sha256": None if a.weather is None else a.weather.sha256,
+            "weather_sha256": self.weather_sha256,
             "weather_warnings": list(self.weather_warnings),
             "settings": assessment_to_dict(a),
             "caution": CAUTION,

@@ -18,7 +18,7 @@ from __future__ import annotations
 import hashlib
 import json
 import os
-from dataclasses import asdict, dataclass, field, fields, replace
+from dataclasses import asdict, dataclass, field, fields, is_dataclass, replace
 from importlib import resources
 from pathlib import Path
 
@@ -81,6 +81,10 @@ class WeatherSource:
     def __post_init__(self):
         if not isinstance(self.path, str) or not self.path.strip():
             raise ValueError("weather file: give the path of the file")
+        if is_dataclass(self.columns):           # a ColumnMap: its named columns
+            object.__setattr__(self, "columns", {
+                f.name: getattr(self.columns, f.name) for f in fields(self.columns)
+                if getattr(self.columns, f.name) is not None})
         if isinstance(self.columns, dict):
             object.__setattr__(self, "columns", tuple(self.columns.items()))
         cols = tuple(tuple(p) for p in self.columns)
@@ -284,6 +288,7 @@ def assessment_from_dict(d: dict, site: Site, base_dir=None) -> Assessment:
             path = Path(w["path"])
             if base_dir is not None and not path.is_absolute():
                 path = Path(base_dir) / path
+            path = Path(os.path.abspath(path))        # absolute and normalised, once
             weather = WeatherSource(str(path), tuple((w.get("columns") or {}).items()),
                                     w.get("time_label"), w.get("time_zone"), w.get("sha256"),
                                     bool(w.get("accept_warnings", False)))

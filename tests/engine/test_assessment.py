@@ -16,7 +16,6 @@ from dataclasses import replace
 from pathlib import Path
 
 import numpy as np
-import pandas as pd
 import pvlib
 import pytest
 
@@ -203,25 +202,11 @@ def test_a_changed_or_missing_weather_file_is_named(tmp_path):
         assess(a)
 
 
-def _quarter_hour_csv(path: Path, site: Site) -> float:
-    """A year of 15-minute pvlib clear-sky GHI/DNI/DHI at the interval midpoints (invented
-    demo data for the plumbing; the check compares what comes back with what was written).
-    Returns the written annual GHI, kWh/m2."""
-    starts = pd.date_range("2023-01-01", periods=4 * 8760, freq="15min", tz="UTC")
-    loc = pvlib.location.Location(site.latitude_deg, site.longitude_deg, "UTC",
-                                  site.elevation_m)
-    cs = loc.get_clearsky(starts + pd.Timedelta(minutes=7.5), model="ineichen")
-    pd.DataFrame({"time": starts.strftime("%Y-%m-%d %H:%M"), "ghi": cs["ghi"].round(4),
-                  "dni": cs["dni"].round(4), "dhi": cs["dhi"].round(4)}).to_csv(path, index=False)
-    return float(cs["ghi"].round(4).sum()) * 0.25 / 1000.0
-
-
-def test_fifteen_minute_weather_runs_through_the_study_and_the_sheet_data(tmp_path):
+def test_fifteen_minute_weather_runs_through_the_study_and_the_sheet_data(
+        quarter_hour_weather):
     site = load_demo("larkmoor-dairy")
-    path = tmp_path / "quarter-hours.csv"
-    written = _quarter_hour_csv(path, site)
-    src = WeatherSource(str(path), (("timestamp", "time"), ("ghi", "ghi"), ("dni", "dni"),
-                                    ("dhi", "dhi")), "start", "UTC")
+    path, written, columns = quarter_hour_weather
+    src = WeatherSource(str(path), columns, "start", "UTC")
     a = Assessment(site, weather=src, study=COARSE, mounting=Mounting("adjustable", 4))
     r = assess(a)
     assert r.irradiance_options.step_min == 15 and len(r.sky.grid) == 4 * 8760
@@ -312,3 +297,23 @@ def test_irradiance_options_come_from_one_builder():
     r = assess(a)
     assert r.irradiance_options == IrradianceOptions(model="isotropic", sky="monthly",
                                                      step_min=30)
+
+
+def test_weather_source_takes_a_column_map_and_the_result_records_the_files_hash(tmp_path):
+    from tiltyard.engine.weather import ColumnMap
+
+    src = WeatherSource("w.csv", ColumnMap(timestamp="Time", ghi="GHI"), "start", "UTC")
+    assert src.column_map == {"timestamp": "Time", "ghi": "GHI"}
+    r = assess(Assessment(GREENSBORO, weather=WeatherSource(str(TMY3))))
+    assert r.weather_sha256 == file_sha256(TMY3) == r.header()["weather_sha256"]
+
+
+def test_a_weather_path_loaded_relative_is_absolute_and_normalised(tmp_path, monkeypatch):
+    (tmp_path / "site").mkdir()
+    shutil.copy(TMY3, tmp_path / "station.csv")
+    a = Assessment(GREENSBORO, weather=WeatherSource(str(tmp_path / "station.csv")))
+    save_assessment(a, tmp_path / "site" / "roof.json")
+    monkeypatch.chdir(tmp_path)
+    back = load_assessment(Path("site") / "roof.json")
+    assert back.weather.path == str(tmp_path / "station.csv")    # "site/../station.csv" no more
+    assert back == a

@@ -1,0 +1,114 @@
+"""The site is one document: its weather file, sky basis and study settings come and go with
+it, and every view reads the same assessment (driven on the real widgets, offscreen)."""
+
+from __future__ import annotations
+
+from tiltyard.app.views.irradiance_view import IrradianceView
+from tiltyard.app.views.sheet_view import SheetView
+from tiltyard.app.views.study_view import StudyView
+from tiltyard.engine.assessment import (
+    StudySettings,
+    WeatherSource,
+    file_sha256,
+    load_assessment,
+    save_assessment,
+)
+
+SIZE = (1130, 760)
+
+
+def _show(qtbot, view):
+    qtbot.addWidget(view)
+    view.resize(*SIZE)
+    view.show()
+    qtbot.waitExposed(view)
+    view.activated()                  # as the window does when the view is opened
+    return view
+
+
+def _with_weather(ctx, quarter_hour_weather):
+    path, _written, columns = quarter_hour_weather
+    src = WeatherSource(str(path), columns, "start", "UTC", file_sha256(path))
+    assert ctx.set_settings(weather=src, study=StudySettings(tilt_step_deg=5.0))
+    return path
+
+
+def test_fifteen_minute_weather_reaches_the_study_and_the_sheet_views(
+        qtbot, make_ctx, idle, quarter_hour_weather):
+    ctx = make_ctx("larkmoor-dairy")
+    _with_weather(ctx, quarter_hour_weather)
+    study_view = _show(qtbot, StudyView(ctx))
+    idle(ctx.runner)
+    qtbot.waitUntil(lambda: study_view.study is not None)
+    irr = study_view.study.options_used.irradiance
+    assert (irr.sky, irr.step_min) == ("file", 15)
+    assert "on the weather file quarter-hours.csv" in study_view.basis.text()
+    assert "15 min steps" in study_view.basis.text()
+    sheet = _show(qtbot, SheetView(ctx))
+    idle(ctx.runner)
+    qtbot.waitUntil(lambda: sheet.preview is not None)
+    doc = sheet.preview.result.figures.document
+    assert doc["assessment"]["interval_min"] == 15
+    assert doc["assessment"]["basis"]["weather_file"] == "quarter-hours.csv"
+    # the sheet and the study view show one study: the same recommendation and figure
+    assert (sheet.preview.result.study.recommended.annual_kwh_m2
+            == study_view.study.recommended.annual_kwh_m2)
+
+
+def test_opening_another_site_leaves_no_trace_of_the_old_weather_file(
+        qtbot, make_ctx, idle, tmp_path, quarter_hour_weather):
+    ctx = make_ctx("larkmoor-dairy")
+    path = _with_weather(ctx, quarter_hour_weather)
+    view = _show(qtbot, IrradianceView(ctx))
+    idle(ctx.runner)
+    assert view.sky_combo.currentData() == "auto"
+    assert "quarter-hours.csv" in view.sky_combo.itemText(3)
+    assert "on the weather file quarter-hours.csv" in view.sky_note.text()
+    # saved with the site: the file, its import settings and hash travel with it
+    site_file = tmp_path / "larkmoor-with-weather.json"
+    ctx.document.save(site_file)
+    assert load_assessment(site_file).weather.path == str(path)
+
+    ctx.document.open_demo("kelpie-creek-shed")
+    idle(ctx.runner)
+    a = ctx.assessment
+    assert a.weather is None and a.sky == "auto" and a.study == StudySettings()
+    assert ctx.study is None                                 # nothing computed is kept
+    assert "Weather file…" == view.sky_combo.itemText(3)
+    assert "quarter-hours" not in view.sky_note.text()
+    assert "clear sky: upper bound only" in view.sky_note.text()
+    rows = view.table_rows()
+    assert rows and all("quarter-hours" not in r[4] for r in rows)
+    assert all(r[4] == rows[0][4] for r in rows)             # one basis for every row
+
+    # and back: the saved site brings its own weather file again
+    ctx.document.open(site_file)
+    idle(ctx.runner)
+    assert ctx.assessment.weather.name == "quarter-hours.csv"
+    assert "on the weather file quarter-hours.csv" in view.sky_note.text()
+
+
+def test_the_study_editor_shows_each_sites_own_settings(qtbot, make_ctx, idle, tmp_path):
+    ctx = make_ctx("larkmoor-dairy")
+    view = _show(qtbot, StudyView(ctx))
+    idle(ctx.runner)
+    view.objective.setCurrentIndex(view.objective.findData("worst-month"))
+    idle(ctx.runner)
+    assert ctx.assessment.study.objective == "worst-month"
+    ctx.document.open_demo("kelpie-creek-shed")              # a site with default settings
+    idle(ctx.runner)
+    assert view.objective.currentData() == "annual"
+    assert view.study.options_used.objective == "annual"
+    assert view.study.site.name == ctx.site.name
+    # the cabin's file asks for the worst month on an adjustable rack
+    ctx.document.open_demo("tarnvik-cabin")
+    idle(ctx.runner)
+    assert view.objective.currentData() == "worst-month"
+    assert view.mounting.currentData() == "adjustable"
+    assert view.positions.currentData() == 4
+    qtbot.waitUntil(lambda: view.study.site.name == ctx.site.name)
+    assert view.study.has_option("four-season") and not view.study.has_option("monthly")
+    # a setting made here is saved with the site
+    target = tmp_path / "cabin.json"
+    save_assessment(ctx.assessment, target)
+    assert load_assessment(target).mounting.max_positions == 4
