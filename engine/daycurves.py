@@ -32,13 +32,13 @@ import numpy as np
 import pandas as pd
 
 from .horizon import HorizonShading, plane_shading, sun_visible
+from .horizon_loss import schedule_horizon_loss
 from .jobs import irradiance_on_plane
 from .plane import poa_components
 from .site import Site
 from .sky import clear_sky, extraterrestrial_normal, extraterrestrial_on_plane
 from .skyyear import IrradianceOptions, SkyYear, sky_year
 from .sun import evaluation_points
-from .tilt import periods_poa
 from .timegrid import MIDPOINT_CONVENTION, TimeGrid, check_step_min, local_date
 
 #: Interval of a clear-sky day, minutes (smooth curves; 144 points a day).
@@ -353,80 +353,6 @@ def irradiance_day(site: Site, date, surface_tilt: float, surface_azimuth: float
 # -- yearly totals of compared options -------------------------------------------------
 
 @dataclass(frozen=True)
-class ScheduleIrradiation:
-    """Plane-of-array irradiation of a tilt schedule over a year, with the horizon.
-
-    Attributes
-    ----------
-    monthly_kwh_m2, monthly_open_kwh_m2 : numpy.ndarray
-        12 monthly totals (January first), kWh/m², with the site horizon and
-        with an open horizon.
-    """
-
-    monthly_kwh_m2: np.ndarray
-    monthly_open_kwh_m2: np.ndarray
-
-    @property
-    def annual_kwh_m2(self) -> float:
-        return float(self.monthly_kwh_m2.sum())
-
-    @property
-    def horizon_loss_pct(self) -> float:
-        """Annual horizon loss, % of the open-horizon irradiation."""
-        open_ = float(self.monthly_open_kwh_m2.sum())
-        return 0.0 if open_ <= 0 else 100.0 * (open_ - self.annual_kwh_m2) / open_
-
-
-def schedule_irradiation(site: Site, schedule, options: IrradianceOptions | None = None,
-                         sky: SkyYear | None = None) -> ScheduleIrradiation:
-    """Irradiation over a year on a schedule of planes (one plane per period).
-
-    Parameters
-    ----------
-    site : Site
-        The site.
-    schedule : sequence of tiltyard.engine.tilt.Period
-        Periods ``start``..``end`` inclusive ("MM-DD", a period may run over
-        the new year), each with ``tilt_deg`` and ``azimuth_deg``; together
-        they should cover the year once (days outside every period count 0).
-    options : IrradianceOptions, optional
-        Sky basis and models (ignored when ``sky`` is given).
-    sky : SkyYear, optional
-        A sky year already built for ``site``.
-
-    Returns
-    -------
-    ScheduleIrradiation
-
-    Raises
-    ------
-    ValueError
-        A period without a tilt (a tracking option), naming the period.
-
-    References
-    ----------
-    :func:`tiltyard.engine.tilt.periods_poa`, the per-interval arithmetic of
-    :func:`tiltyard.engine.jobs.irradiance_year` (Perez et al. 1990; Hay &
-    Davies 1980; Liu & Jordan 1963, through pvlib); each day counts on the
-    plane of the period it falls in.
-    """
-    if sky is None:
-        sky = sky_year(site, options or IrradianceOptions())
-    for i, p in enumerate(schedule):
-        if p.tilt_deg is None or p.azimuth_deg is None:
-            raise ValueError(f"schedule[{i}] ({p.start} to {p.end}): has no fixed tilt and "
-                             "azimuth (a tracking option); its plane changes all the time")
-        _check_plane(p.tilt_deg, p.azimuth_deg)
-    poa = periods_poa(sky, site, schedule)
-    k = sky.grid.step_h / 1000.0
-    shaded = np.bincount(sky.month, weights=poa["poa_global"].to_numpy() * k,
-                         minlength=13)[1:]
-    open_ = np.bincount(sky.month, weights=poa["poa_global_open"].to_numpy() * k,
-                        minlength=13)[1:]
-    return ScheduleIrradiation(shaded, open_)
-
-
-@dataclass(frozen=True)
 class OptionTotals:
     """Yearly figures of one compared option.
 
@@ -524,7 +450,8 @@ def compare_options(site: Site, options: IrradianceOptions | None = None, study=
     ----------
     :func:`tiltyard.engine.jobs.irradiance_year` for the planes (Perez et al.
     1990, Hay & Davies 1980, Liu & Jordan 1963; Ineichen & Perez 2002);
-    :func:`schedule_irradiation` for the horizon loss of schedules.
+    :func:`tiltyard.engine.horizon_loss.schedule_horizon_loss` for the horizon loss of
+    schedules.
     """
     options = options or IrradianceOptions()
     report = progress or (lambda fraction, stage: None)
@@ -551,7 +478,7 @@ def compare_options(site: Site, options: IrradianceOptions | None = None, study=
                 continue
             loss = None
             if all(p.tilt_deg is not None for p in opt.schedule):
-                loss = schedule_irradiation(study.site, opt.schedule, sky=s_sky).horizon_loss_pct
+                loss = schedule_horizon_loss(s_sky, opt.label, opt.schedule).loss_pct
             monthly = np.asarray(opt.monthly_kwh_m2, dtype=float)
             out.append(OptionTotals(opt.label, opt.kind, monthly, float(opt.annual_kwh_m2), loss,
                                     s_label, s_opts.year, True, _schedule_text(opt.schedule)))
@@ -560,5 +487,4 @@ def compare_options(site: Site, options: IrradianceOptions | None = None, study=
 
 
 __all__ = ["DAY_STEP_MIN", "DayCurves", "IRRADIANCE_COLUMNS", "OptionTotals",
-           "ScheduleIrradiation", "TOTAL_KEYS", "compare_options", "day_grid",
-           "irradiance_day", "schedule_irradiation", "sky_basis_label"]
+           "TOTAL_KEYS", "compare_options", "day_grid", "irradiance_day", "sky_basis_label"]

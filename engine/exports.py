@@ -30,6 +30,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 import pandas as pd
 
+from .horizon_loss import PlaneHorizonLoss, schedule_horizon_loss
 from .jobs import model_references
 from .site import Site, site_to_dict
 from .skyyear import SkyYear, sky_year
@@ -259,25 +260,7 @@ def hourly_csv_text(sky: SkyYear, site: Site, options) -> str:
 
 # -- horizon loss of a schedule ---------------------------------------------------------------
 
-@dataclass(frozen=True)
-class OptionHorizonLoss:
-    """Annual irradiation of an option with an open and with the site horizon, kWh/m²."""
-
-    label: str
-    open_kwh_m2: float
-    site_kwh_m2: float
-
-    @property
-    def loss_kwh_m2(self) -> float:
-        return self.open_kwh_m2 - self.site_kwh_m2
-
-    @property
-    def loss_pct(self) -> float:
-        """Loss as a percentage of the open-horizon irradiation (negative: a gain)."""
-        return 0.0 if self.open_kwh_m2 <= 0 else 100.0 * self.loss_kwh_m2 / self.open_kwh_m2
-
-
-def option_horizon_loss(sky: SkyYear, site: Site, option: StudyOption) -> OptionHorizonLoss:
+def option_horizon_loss(sky: SkyYear, site: Site, option: StudyOption) -> PlaneHorizonLoss:
     """What the site horizon costs an option's schedule over the year.
 
     The schedule's interval plane-of-array irradiance
@@ -299,7 +282,7 @@ def option_horizon_loss(sky: SkyYear, site: Site, option: StudyOption) -> Option
 
     Returns
     -------
-    OptionHorizonLoss
+    tiltyard.engine.horizon_loss.PlaneHorizonLoss
 
     References
     ----------
@@ -309,11 +292,10 @@ def option_horizon_loss(sky: SkyYear, site: Site, option: StudyOption) -> Option
     the obstructed view factor as in Duffie, J. A. & Beckman, W. A. (2013),
     Solar Engineering of Thermal Processes, 4th ed., sec. 2.15.
     """
-    k = sky.grid.step_h / 1000.0
-    poa = schedule_poa(sky, site, option)
-    shaded = float(poa["poa_global"].sum()) * k
-    open_ = float(poa["poa_global_open"].sum()) * k
-    return OptionHorizonLoss(option.label, open_, shaded)
+    if sky.site != site:
+        raise ValueError("the sky given is of another site (or of an earlier version of it)")
+    return schedule_horizon_loss(sky, option.label,
+                                 None if option.kind == "two-axis" else option.schedule)
 
 
 # -- reproducibility ---------------------------------------------------------------------------
@@ -383,7 +365,7 @@ class SheetFigures:
     gains_over_planes : tuple of (str, float or None)
         The recommended option's annual gain over each existing site plane,
         percent (from the JSON document's annual values).
-    horizon_loss : OptionHorizonLoss
+    horizon_loss : tiltyard.engine.horizon_loss.PlaneHorizonLoss
         The site horizon's cost to the recommended schedule.
     options : pandas.DataFrame
         :func:`options_table`.
@@ -413,7 +395,7 @@ class SheetFigures:
     document: dict
     recommended: dict
     gains_over_planes: tuple
-    horizon_loss: OptionHorizonLoss
+    horizon_loss: PlaneHorizonLoss
     options: pd.DataFrame
     monthly: pd.DataFrame
     assumptions: tuple
@@ -585,7 +567,7 @@ def _basis_words(sky: str) -> str:
             "irradiation values", "file": "on the weather file"}[sky]
 
 
-__all__ = ["MODEL_NAMES", "MONTH_ABBR", "SHEET_CAUTIONS", "check_option_kinds", "OptionHorizonLoss",
+__all__ = ["MODEL_NAMES", "MONTH_ABBR", "SHEET_CAUTIONS", "check_option_kinds",
            "SUN_STEP_MIN", "SheetData", "SheetFigures", "sheet_data",
            "hourly_csv_text", "hourly_poa_table", "input_digest",
            "monthly_csv_text", "monthly_table", "option_horizon_loss", "options_csv_text",

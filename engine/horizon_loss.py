@@ -17,14 +17,12 @@ does, so the figures agree with it.
 from __future__ import annotations
 
 from collections.abc import Callable
-from dataclasses import dataclass, field
-
-import numpy as np
+from dataclasses import dataclass, field, replace
 
 from .horizon import plane_shading
-from .plane import poa_components
 from .site import Site
 from .skyyear import IrradianceOptions, SkyYear, sky_year
+from .tilt import Period, periods_poa
 
 #: Interval length used when no options are given, minutes (an hourly year).
 DEFAULT_STEP_MIN = 60
@@ -41,11 +39,15 @@ class PlaneHorizonLoss:
     open-horizon total, so the beam and sky-diffuse shares add up to the total
     loss. A negative loss is a gain: a horizon below the horizontal (a site on
     high ground) lets a tilted plane see more sky than an open horizon does.
+
+    The one horizon-loss type: for one plane, or for a schedule of planes (a
+    seasonal tilt schedule, the two-axis ceiling), whose tilt, azimuth and
+    sky-view factors are then None.
     """
 
     label: str
-    surface_tilt: float
-    surface_azimuth: float
+    surface_tilt: float | None
+    surface_azimuth: float | None
     open_kwh_m2: float
     site_kwh_m2: float
     beam_open_kwh_m2: float
@@ -53,8 +55,8 @@ class PlaneHorizonLoss:
     sky_diffuse_open_kwh_m2: float
     sky_diffuse_site_kwh_m2: float
     ground_kwh_m2: float
-    sky_view_factor: float
-    sky_view_factor_open: float
+    sky_view_factor: float | None = None
+    sky_view_factor_open: float | None = None
 
     @property
     def loss_kwh_m2(self) -> float:
@@ -100,9 +102,13 @@ class PlaneHorizonLoss:
             "sky_diffuse_loss_kwh_m2": round(self.sky_diffuse_loss_kwh_m2, 4),
             "sky_diffuse_loss_pct": round(self.sky_diffuse_loss_pct, 4),
             "ground_kwh_m2": round(self.ground_kwh_m2, 4),
-            "sky_view_factor": round(self.sky_view_factor, 5),
-            "sky_view_factor_open": round(self.sky_view_factor_open, 5),
+            "sky_view_factor": _round(self.sky_view_factor, 5),
+            "sky_view_factor_open": _round(self.sky_view_factor_open, 5),
         }
+
+
+def _round(v, digits):
+    return None if v is None else round(float(v), digits)
 
 
 @dataclass(frozen=True)
@@ -212,10 +218,6 @@ def horizon_loss_of_sky(sky: SkyYear,
     As :func:`horizon_loss`.
     """
     site, options = sky.site, sky.options
-    pos = sky.position
-    app_zen = pos["apparent_zenith"].to_numpy()
-    saz = pos["azimuth"].to_numpy()
-    weight = sky.kwh_weight                    # kWh/m2 per W/m2, sun-up share included
     planes = [("horizontal", 0.0, site.equator_azimuth_deg)]
     planes += [(p.label, p.tilt_deg, p.azimuth_deg) for p in site.planes]
     out = []
@@ -223,22 +225,11 @@ def horizon_loss_of_sky(sky: SkyYear,
         if progress is not None:
             progress(0.3 + 0.7 * i / len(planes), f"plane {label}")
         shading = plane_shading(site, float(tilt), float(azimuth))
-        poa = poa_components(float(tilt), float(azimuth), app_zen, saz, sky.ghi, sky.dni,
-                             sky.dhi, sky.dni_extra, sky.albedo, options.model,
-                             sun_visible=sky.sun_visible, shading=shading)
-
-        def annual(col, poa=poa):
-            return float(np.sum(poa[col].to_numpy() * weight))
-
-        out.append(PlaneHorizonLoss(
-            label=label, surface_tilt=float(tilt), surface_azimuth=float(azimuth),
-            open_kwh_m2=annual("poa_global_open"), site_kwh_m2=annual("poa_global"),
-            beam_open_kwh_m2=annual("poa_direct_open"), beam_site_kwh_m2=annual("poa_direct"),
-            sky_diffuse_open_kwh_m2=annual("poa_sky_diffuse_open"),
-            sky_diffuse_site_kwh_m2=annual("poa_sky_diffuse"),
-            ground_kwh_m2=annual("poa_ground_diffuse"),
-            sky_view_factor=shading.sky_view_factor,
-            sky_view_factor_open=shading.sky_view_factor_open))
+        loss = schedule_horizon_loss(sky, label, (Period("01-01", "12-31", float(tilt),
+                                                         float(azimuth)),))
+        out.append(replace(loss, surface_tilt=float(tilt), surface_azimuth=float(azimuth),
+                           sky_view_factor=shading.sky_view_factor,
+                           sky_view_factor_open=shading.sky_view_factor_open))
     if progress is not None:
         progress(1.0, "done")
     notes = (sky.note,
@@ -248,5 +239,64 @@ def horizon_loss_of_sky(sky: SkyYear,
     return HorizonLoss(site.name, options, tuple(out), sky.turbidity_source, notes)
 
 
+def schedule_horizon_loss(sky: SkyYear, label: str, schedule) -> PlaneHorizonLoss:
+    """What the site horizon costs a plane, or a schedule of planes, over a sky year.
+
+    Sums the interval plane-of-array irradiance of
+    :func:`tiltyard.engine.tilt.periods_poa` (the one primitive for a plane or a
+    schedule of planes on a sky year) with the site's horizon and obstacles and
+    with an open horizon (the sun counted as visible whenever it is up, each
+    period's plane seeing the open-sky view factor ``(1 + cos tilt) / 2``).
+
+    Parameters
+    ----------
+    sky : SkyYear
+        The year's sky at the site.
+    label : str
+        What the figures are of.
+    schedule : sequence of tiltyard.engine.tilt.Period or None
+        Periods with a tilt and azimuth each; None is two-axis tracking.
+
+    Returns
+    -------
+    PlaneHorizonLoss
+        With tilt and azimuth when the schedule is one plane; sky-view factors
+        are left None (:func:`horizon_loss_of_sky` adds them for its planes).
+
+    Raises
+    ------
+    ValueError
+        A period without a tilt, naming the period.
+
+    References
+    ----------
+    Liu, B. Y. H. & Jordan, R. C. (1963), Solar Energy 7(2), 53-74 (open-sky
+    view factor); Perez, R. et al. (1990), Solar Energy 44(5), 271-289 and Hay,
+    J. E. & Davies, J. A. (1980) for the transposition, through pvlib; the
+    obstructed view factor as in Duffie, J. A. & Beckman, W. A. (2013), Solar
+    Engineering of Thermal Processes, 4th ed., sec. 2.15.
+    """
+    if schedule is not None:
+        for i, p in enumerate(schedule):
+            if p.tilt_deg is None or p.azimuth_deg is None:
+                raise ValueError(f"schedule[{i}] ({p.start} to {p.end}): has no fixed tilt and "
+                                 "azimuth (a tracking option); its plane changes all the time")
+    poa = periods_poa(sky, sky.site, schedule)
+    k = sky.grid.step_h / 1000.0
+
+    def annual(col):
+        return float(poa[col].sum()) * k
+
+    one = schedule is not None and len(schedule) == 1
+    return PlaneHorizonLoss(
+        label=label, surface_tilt=float(schedule[0].tilt_deg) if one else None,
+        surface_azimuth=float(schedule[0].azimuth_deg) if one else None,
+        open_kwh_m2=annual("poa_global_open"), site_kwh_m2=annual("poa_global"),
+        beam_open_kwh_m2=annual("poa_direct_open"), beam_site_kwh_m2=annual("poa_direct"),
+        sky_diffuse_open_kwh_m2=annual("poa_sky_diffuse_open"),
+        sky_diffuse_site_kwh_m2=annual("poa_sky_diffuse"),
+        ground_kwh_m2=annual("poa_ground_diffuse"))
+
+
 __all__ = ["DEFAULT_STEP_MIN", "HorizonLoss", "PlaneHorizonLoss", "horizon_loss",
-           "horizon_loss_of_sky"]
+           "horizon_loss_of_sky", "schedule_horizon_loss"]

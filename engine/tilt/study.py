@@ -338,8 +338,9 @@ def schedule_poa(sky: SkyYear, site: Site, option: StudyOption) -> pd.DataFrame:
     pandas.DataFrame
         Indexed by interval start in the site's time zone; columns
         ``surface_tilt``, ``surface_azimuth``, ``poa_global``, ``poa_direct``,
-        ``poa_sky_diffuse``, ``poa_ground_diffuse`` and ``poa_global_open``
-        (the same plane with an open horizon).
+        ``poa_sky_diffuse``, ``poa_ground_diffuse``, and ``poa_global_open``,
+        ``poa_direct_open``, ``poa_sky_diffuse_open`` (the same plane with an
+        open horizon): :data:`PERIOD_COLUMNS`.
 
     References
     ----------
@@ -347,6 +348,11 @@ def schedule_poa(sky: SkyYear, site: Site, option: StudyOption) -> pd.DataFrame:
     Perez et al. 1990, Hay & Davies 1980, Liu & Jordan 1963).
     """
     return periods_poa(sky, site, None if option.kind == "two-axis" else option.schedule)
+
+
+#: Columns :func:`periods_poa` gives besides the plane's tilt and azimuth.
+PERIOD_COLUMNS = ("poa_global", "poa_direct", "poa_sky_diffuse", "poa_ground_diffuse",
+                  "poa_global_open", "poa_direct_open", "poa_sky_diffuse_open")
 
 
 def periods_poa(sky: SkyYear, site: Site, schedule) -> pd.DataFrame:
@@ -383,8 +389,7 @@ def periods_poa(sky: SkyYear, site: Site, schedule) -> pd.DataFrame:
     zen = pos["apparent_zenith"].to_numpy()
     saz = pos["azimuth"].to_numpy()
     n = len(frac)
-    cols = ("poa_global", "poa_direct", "poa_sky_diffuse", "poa_ground_diffuse",
-            "poa_global_open")
+    cols = PERIOD_COLUMNS
     out = {c: np.zeros(n) for c in cols}
     tilt = np.zeros(n)
     azim = np.zeros(n)
@@ -491,14 +496,8 @@ def _two_axis(sky: SkyYear, site: Site, month_of_day: np.ndarray) -> StudyOption
     ----------
     pvlib transposition as in :func:`tiltyard.engine.plane.poa_components`.
     """
-    pos = sky.position
-    up = sky.sun_up_fraction > 0
-    tilt = np.where(up, np.clip(pos["apparent_zenith"].to_numpy(), 0.0, 90.0), 0.0)
-    az = pos["azimuth"].to_numpy()
-    poa = poa_components(tilt, az, pos["apparent_zenith"].to_numpy(), az, sky.ghi, sky.dni,
-                         sky.dhi, sky.dni_extra, sky.albedo, sky.options.model,
-                         sun_visible=sky.sun_visible, shading=None)
-    e = np.where(up, poa["poa_global"].to_numpy(), 0.0) * sky.kwh_weight
+    # periods_poa gives interval means (value x sun-up fraction): x hours / 1000 = kWh/m2
+    e = periods_poa(sky, site, None)["poa_global"].to_numpy() * (sky.grid.step_h / 1000.0)
     daily = np.bincount(sky.day_index, weights=e, minlength=sky.n_days)
     m = _monthly_from_daily(daily[:, None], month_of_day)[:, 0]
     return StudyOption("Two-axis tracking (ceiling, not a recommendation)", "two-axis",
