@@ -330,10 +330,10 @@ def _assessment(args, study: bool = True):
     from tiltyard.engine.assessment import resolve_assessment
 
     a = resolve_assessment(args.site)
-    changes = _sky_changes(args, a)
-    if study:
-        changes.update(_study_changes(args, replace(a, **changes)))
     try:
+        changes = _sky_changes(args, a)
+        if study:
+            changes.update(_study_changes(args, replace(a, **changes)))
         return replace(a, **changes)
     except ValueError as err:
         raise UserError(str(err)) from None

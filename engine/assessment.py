@@ -8,9 +8,10 @@ section of a site file (format 2). :func:`tiltyard.engine.assess.assess`
 turns it into an :class:`~tiltyard.engine.assess.AssessmentResult`, which the
 command line, every view and the sheet read.
 
-Nothing here computes physics: validation of the study and row settings is
-the tilt study's own (:class:`tiltyard.engine.tilt.StudyOptions`), so a
-setting is judged in one place.
+Nothing here computes physics: the study and row settings are the tilt
+study's own classes (:class:`tiltyard.engine.tilt.StudySettings`,
+:class:`~tiltyard.engine.tilt.RowSettings`), which judge each setting in one
+place.
 """
 
 from __future__ import annotations
@@ -37,7 +38,7 @@ from .site import (
 )
 from .sky import CLEARSKY_MODELS, SOLAR_CONSTANT_W_M2
 from .skyyear import IrradianceOptions
-from .tilt import StudyOptions
+from .tilt import RowSettings, StudyOptions, StudySettings
 from .timegrid import REFERENCE_YEAR, check_step_min
 
 #: Sky bases an assessment may ask for. ``auto``: the weather file if one is named,
@@ -112,33 +113,6 @@ def file_sha256(path) -> str:
         for block in iter(lambda: f.read(1 << 20), b""):
             h.update(block)
     return h.hexdigest()
-
-
-@dataclass(frozen=True)
-class StudySettings:
-    """What the tilt study optimises, within which limits (see
-    :class:`tiltyard.engine.tilt.StudyOptions` for each field)."""
-
-    objective: str = "annual"
-    months: tuple = ()
-    tilt_min_deg: float = 0.0
-    tilt_max_deg: float = 90.0
-    tilt_step_deg: float = 1.0
-    azimuth_deg: float | None = None
-    min_days_between: int = 30
-    switch_dates: tuple | None = None
-
-
-@dataclass(frozen=True)
-class RowSettings:
-    """Rows on a flat roof or field and the indicative yield (see
-    :class:`tiltyard.engine.tilt.StudyOptions` for each field)."""
-
-    row_tilt_deg: float | None = None
-    collector_length_m: float = 1.0
-    row_design_date: str | None = None
-    row_half_width_h: float = 3.0
-    loss_fraction: float = 0.14
 
 
 @dataclass(frozen=True)

@@ -29,8 +29,10 @@ from .options import (
     OPTION_KINDS,
     SEASONAL_KINDS,
     Period,
+    RowSettings,
     StudyOption,
     StudyOptions,
+    StudySettings,
 )
 from .options import _score_monthly as _score_monthly
 from .result import TiltStudy
@@ -38,6 +40,6 @@ from .study import OptionRows, OptionYield, periods_poa, schedule_poa, tilt_stud
 
 # the two private names above stay importable here for the tests
 __all__ = ["KLEIN_METHOD", "MONTH_NAMES", "MOUNTINGS", "OPTION_KINDS", "SEASONAL_KINDS",
-           "MonthlyMethodOption", "OptionRows", "OptionYield", "Period", "StudyOption",
-           "StudyOptions", "TiltStudy", "monthly_method_comparison", "periods_poa",
+           "MonthlyMethodOption", "OptionRows", "OptionYield", "Period", "RowSettings",
+           "StudyOption", "StudyOptions", "StudySettings", "TiltStudy", "monthly_method_comparison", "periods_poa",
            "schedule_poa", "tilt_study"]

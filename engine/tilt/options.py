@@ -5,7 +5,7 @@ monthly totals.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, fields
 
 import numpy as np
 import pandas as pd
@@ -31,13 +31,11 @@ MONTH_NAMES = ("January", "February", "March", "April", "May", "June", "July", "
 
 
 @dataclass(frozen=True)
-class StudyOptions:
-    """What to optimise and under which constraints.
+class StudySettings:
+    """What the tilt study optimises, within which limits (the settings an assessment keeps).
 
     Attributes
     ----------
-    irradiance : IrradianceOptions
-        Sky basis and models.
     objective : {"annual", "worst-month", "months"}
         Maximise the annual total, the smallest monthly total, or the total over
         ``months``.
@@ -54,27 +52,8 @@ class StudyOptions:
     switch_dates : tuple of str or None
         Fixed switch dates ("MM-DD") for the two-period schedule instead of
         optimised ones (two dates).
-    row_tilt_deg : float or None
-        Tilt of the rows laid out for a flat roof or field (pitch and ground
-        coverage for the default design window); None uses the fixed optimum.
-    collector_length_m : float
-        Slant length of one row's collector, m (row pitch scales with it).
-    row_design_date : str or None
-        Design day ("MM-DD") for the row spacing; None uses the winter solstice
-        rule of :func:`tiltyard.engine.rows.default_design_date`.
-    row_half_width_h : float
-        Half-width of the design window around apparent solar noon, hours.
-    loss_fraction : float
-        System loss fraction for the indicative specific yield (default 0.14,
-        common practice, no source).
-    mounting : str
-        One of :data:`MOUNTINGS`: which options are listed and recommended.
-    max_positions : int
-        Most tilt positions a year of an ``adjustable`` mounting (2, 4 or 12
-        allow the two-season, four-season and monthly schedules).
     """
 
-    irradiance: IrradianceOptions = field(default_factory=IrradianceOptions)
     objective: str = "annual"
     months: tuple = ()
     tilt_min_deg: float = 0.0
@@ -83,13 +62,6 @@ class StudyOptions:
     azimuth_deg: float | None = None
     min_days_between: int = 30
     switch_dates: tuple | None = None
-    row_tilt_deg: float | None = None
-    collector_length_m: float = 1.0
-    row_design_date: str | None = None
-    row_half_width_h: float = 3.0
-    loss_fraction: float = 0.14
-    mounting: str = "adjustable"
-    max_positions: int = 12
 
     def __post_init__(self):
         if self.objective not in ("annual", "worst-month", "months"):
@@ -111,6 +83,36 @@ class StudyOptions:
                              "and 120 days")
         if self.switch_dates is not None and len(self.switch_dates) != 2:
             raise ValueError(f"switch_dates = {self.switch_dates!r}: give two dates MM-DD")
+
+
+@dataclass(frozen=True)
+class RowSettings:
+    """Rows on a flat roof or field, and the indicative yield.
+
+    Attributes
+    ----------
+    row_tilt_deg : float or None
+        Tilt of the rows laid out for a flat roof or field (pitch and ground
+        coverage for the default design window); None uses the fixed optimum.
+    collector_length_m : float
+        Slant length of one row's collector, m (row pitch scales with it).
+    row_design_date : str or None
+        Design day ("MM-DD") for the row spacing; None uses the winter solstice
+        rule of :func:`tiltyard.engine.rows.default_design_date`.
+    row_half_width_h : float
+        Half-width of the design window around apparent solar noon, hours.
+    loss_fraction : float
+        System loss fraction for the indicative specific yield (default 0.14,
+        common practice, no source).
+    """
+
+    row_tilt_deg: float | None = None
+    collector_length_m: float = 1.0
+    row_design_date: str | None = None
+    row_half_width_h: float = 3.0
+    loss_fraction: float = 0.14
+
+    def __post_init__(self):
         if self.row_tilt_deg is not None and not 0.0 <= self.row_tilt_deg <= 90.0:
             raise ValueError(f"row_tilt_deg = {self.row_tilt_deg!r}: must be between 0 and 90 "
                              "deg")
@@ -128,6 +130,33 @@ class StudyOptions:
                              "and at most 6 h")
         if not 0.0 <= self.loss_fraction <= 0.9:
             raise ValueError(f"loss_fraction = {self.loss_fraction!r}: must be between 0 and 0.9")
+
+
+@dataclass(frozen=True)
+class StudyOptions(StudySettings, RowSettings):
+    """Everything one tilt study needs: its settings (:class:`StudySettings`), the rows
+    (:class:`RowSettings`), the sky and the mounting.
+
+    Attributes
+    ----------
+    irradiance : IrradianceOptions
+        Sky basis and models.
+    mounting : str
+        One of :data:`MOUNTINGS`: which options are listed and recommended.
+    max_positions : int
+        Most tilt positions a year of an ``adjustable`` mounting (2, 4 or 12
+        allow the two-season, four-season and monthly schedules).
+
+    The other attributes are those of :class:`StudySettings` and :class:`RowSettings`.
+    """
+
+    irradiance: IrradianceOptions = field(default_factory=IrradianceOptions)
+    mounting: str = "adjustable"
+    max_positions: int = 12
+
+    def __post_init__(self):
+        StudySettings.__post_init__(self)
+        RowSettings.__post_init__(self)
         if self.mounting not in MOUNTINGS:
             raise ValueError(f"mounting = {self.mounting!r}: must be one of "
                              f"{', '.join(MOUNTINGS)}")
@@ -135,6 +164,11 @@ class StudyOptions:
                 or not 1 <= self.max_positions <= 12:
             raise ValueError(f"max_positions = {self.max_positions!r}: must be a whole number "
                              "from 1 to 12")
+
+    @property
+    def settings(self) -> StudySettings:
+        """The study settings alone (as an assessment keeps them)."""
+        return StudySettings(**{f.name: getattr(self, f.name) for f in fields(StudySettings)})
 
     def allows(self, kind: str) -> bool:
         """Whether the mounting allows an option of ``kind`` to be recommended and listed.
