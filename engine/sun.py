@@ -136,8 +136,10 @@ def evaluation_points(grid: TimeGrid, site: Site) -> EvaluationPoints:
 
     The sun counts as up when its geometric (unrefracted) elevation is above
     0°, which is where extraterrestrial irradiance on a horizontal surface
-    becomes positive. Crossings inside an interval are located by regula falsi
-    on SPA elevations (three refinements, well under a second of time).
+    becomes positive. Crossings inside an interval are located by a bracketed
+    Anderson-Bjorck search on SPA elevations (:func:`_find_roots`) to
+    :data:`CROSSING_TOLERANCE_S`, also where the sun only grazes the horizon
+    and its elevation is far from linear in time.
 
     Parameters
     ----------
@@ -152,9 +154,14 @@ def evaluation_points(grid: TimeGrid, site: Site) -> EvaluationPoints:
 
     Notes
     -----
-    An interval whose two ends both have the sun down is treated as dark even
-    if the sun grazes the horizon inside it (possible only within a few days
-    of the start or end of polar night); the energy missed is negligible.
+    An interval whose two ends both have the sun down but whose middle has it
+    up (the sun grazing the horizon near its upper transit, within a few days
+    of polar night) gets the sun-up part between its two crossings
+    (:func:`_grazing_intervals`). An interval whose two ends have the sun up
+    counts as all up even if the sun dips below the horizon near its lower
+    transit inside it (the first and last days of polar day); the sun is then
+    within a fraction of a degree of the horizon and the energy counted is
+    below 0.001 % of the day's.
     Midpoint convention: :data:`tiltyard.engine.timegrid.MIDPOINT_CONVENTION`.
 
     References
@@ -170,32 +177,64 @@ def evaluation_points(grid: TimeGrid, site: Site) -> EvaluationPoints:
     start_s = _unix_seconds(grid.start_utc)
     lo = np.zeros(len(grid))
     hi = np.ones(len(grid))
+    # crossings: Anderson-Bjorck search in the interval's fraction (see _find_roots)
     # fraction of the interval with the sun up, by default all or nothing
     frac = np.where(up0 & up1, 1.0, 0.0)
     mid = start_s + 0.5 * step_s
     cross = up0 != up1
     if cross.any():
         idx = np.flatnonzero(cross)
-        e_lo, e_hi = el_b[idx], el_b[idx + 1]
-        a, b = lo[idx].copy(), hi[idx].copy()
-        for _ in range(3):
-            x = a + (b - a) * e_lo / (e_lo - e_hi)
-            x = np.clip(x, a + 1e-9, b - 1e-9)
-            tx = _utc_times(start_s[idx] + x * step_s)
-            ex = solar_position(tx, site, delta_t=dt_s)["elevation"].to_numpy()
-            same_as_lo = np.sign(ex) == np.sign(e_lo)
-            a = np.where(same_as_lo, x, a)
-            e_lo = np.where(same_as_lo, ex, e_lo)
-            b = np.where(same_as_lo, b, x)
-            e_hi = np.where(same_as_lo, e_hi, ex)
-        x = a + (b - a) * e_lo / (e_lo - e_hi)
+
+        def elev(x, i):
+            tx = _utc_times(start_s[idx[i]] + x * step_s)
+            return solar_position(tx, site, delta_t=dt_s)["elevation"].to_numpy()
+
+        x = _find_roots(elev, lo[idx], hi[idx], el_b[idx], el_b[idx + 1],
+                        tol=CROSSING_TOLERANCE_S / step_s)
         rising = ~up0[idx]
         f = np.where(rising, 1.0 - x, x)
         frac[idx] = f
         mid[idx] = start_s[idx] + step_s * np.where(rising, x + (1.0 - x) / 2.0, x / 2.0)
+    _grazing_intervals(el_b, start_s, step_s, site, dt_s, frac, mid)
     times = _utc_times(mid)
     pos = solar_position(times, site, delta_t=dt_s)
     return EvaluationPoints(times, frac, pos)
+
+
+def _grazing_intervals(el_b, start_s, step_s, site: Site, dt_s, frac, mid) -> None:
+    """Sun-up part of intervals with the sun down at both ends but up inside, in place.
+
+    Candidates have a local maximum of the boundary elevations inside them;
+    the sun's upper transit there (:func:`_transit_s`) is the highest point,
+    and where it is above the horizon the two crossings on either side are
+    found by :func:`_find_roots` on the SPA geometric elevation.
+
+    References
+    ----------
+    Reda & Andreas (2008), NREL/TP-560-34302, for the positions.
+    """
+    if len(el_b) < 4:
+        return
+    e0, e1 = el_b[1:-2], el_b[2:-1]
+    cand = (e0 <= 0) & (e1 <= 0) & (e0 > el_b[:-3]) & (e1 > el_b[3:]) & (np.maximum(e0, e1) > -3)
+    idx = np.flatnonzero(cand) + 1
+    if idx.size == 0:
+        return
+    t0, t1 = start_s[idx], start_s[idx] + step_s
+    peak = _transit_s(0.5 * (t0 + t1), site.longitude_deg, dt_s)
+
+    def elev(t, _=None):
+        return solar_position(_utc_times(t), site, delta_t=dt_s)["elevation"].to_numpy()
+
+    e_peak = elev(peak)
+    ok = (peak > t0) & (peak < t1) & (e_peak > 0)
+    if not ok.any():
+        return
+    idx, t0, t1, peak, e_peak = idx[ok], t0[ok], t1[ok], peak[ok], e_peak[ok]
+    rise = _find_roots(elev, t0, peak, el_b[idx], e_peak, tol=0.01)
+    sset = _find_roots(elev, peak, t1, e_peak, el_b[idx + 1], tol=0.01)
+    frac[idx] = (sset - rise) / step_s
+    mid[idx] = 0.5 * (rise + sset)
 
 
 # -- daily events -------------------------------------------------------------
@@ -218,6 +257,9 @@ class SunEvents:
     table: pd.DataFrame
     timezone: str
 
+
+#: Sunrise and sunset inside a year's intervals are located to this, s.
+CROSSING_TOLERANCE_S = 0.5
 
 #: Spacing of the elevation samples that bracket sunrise and sunset, s.
 EVENT_SAMPLE_S = 1800.0
@@ -281,38 +323,42 @@ def _find_roots(fun, a: np.ndarray, b: np.ndarray, fa: np.ndarray, fb: np.ndarra
     """Roots of ``fun`` in the brackets ``[a, b]`` (``fa``, ``fb`` of opposite sign).
 
     Vectorised Anderson-Bjorck (modified regula falsi) iteration: each step
-    evaluates ``fun`` once for all brackets, keeps a sign change inside the
-    bracket, and converges superlinearly for a smooth function. It stops when
-    every bracket is narrower than ``tol`` or its last step moved less than
-    ``tol``.
+    evaluates ``fun`` once for the brackets not yet converged (``fun`` takes
+    an array of points and the indices of their brackets), keeps a sign
+    change inside each bracket, and converges superlinearly for a smooth
+    function. A bracket is done when it is narrower than ``tol`` or its last
+    step moved less than ``tol``.
 
     References
     ----------
     Anderson, N. & Bjorck, A. (1973). A new high order method of regula falsi
     type for computing a root of an equation. BIT 13, 253-264.
     """
-    a, b, fa, fb = (np.asarray(v, dtype=float).copy() for v in (a, b, fa, fb))
+    a, b, fa, fb = (np.array(v, dtype=float) for v in (a, b, fa, fb))
     c = 0.5 * (a + b)
-    if a.size == 0:
-        return c
+    active = np.arange(a.size)
     for _ in range(max_iter):
-        den = fb - fa
-        c_new = np.where(den != 0, b - fb * (b - a) / np.where(den != 0, den, 1.0), 0.5 * (a + b))
-        lo, hi = np.minimum(a, b), np.maximum(a, b)
-        c_new = np.clip(c_new, lo, hi)
-        done = (np.abs(c_new - c) < tol) | (hi - lo < tol)
-        c = c_new
-        if done.all():
+        if active.size == 0:
             break
-        fc = fun(c)
+        aa, bb, ffa, ffb = a[active], b[active], fa[active], fb[active]
+        den = ffb - ffa
+        c_new = np.where(den != 0, bb - ffb * (bb - aa) / np.where(den != 0, den, 1.0),
+                         0.5 * (aa + bb))
+        lo, hi = np.minimum(aa, bb), np.maximum(aa, bb)
+        c_new = np.clip(c_new, lo, hi)
+        done = (np.abs(c_new - c[active]) < tol) | (hi - lo < tol)
+        c[active] = c_new
+        active, aa, bb, ffa, ffb, c_new = (v[~done] for v in (active, aa, bb, ffa, ffb, c_new))
+        if active.size == 0:
+            break
+        fc = fun(c_new, active)
         exact = fc == 0
-        flip = np.sign(fc) != np.sign(fb)
-        m = np.where(fb != 0, 1.0 - fc / np.where(fb != 0, fb, 1.0), 0.5)
+        flip = np.sign(fc) != np.sign(ffb)
+        m = np.where(ffb != 0, 1.0 - fc / np.where(ffb != 0, ffb, 1.0), 0.5)
         m = np.where(m > 0, m, 0.5)
-        a_new = np.where(flip, b, a)
-        fa_new = np.where(flip, fb, fa * m)
-        a, fa = np.where(exact, c, a_new), np.where(exact, 0.0, fa_new)
-        b, fb = c, fc
+        a[active] = np.where(exact, c_new, np.where(flip, bb, aa))
+        fa[active] = np.where(exact, 0.0, np.where(flip, ffb, ffa * m))
+        b[active], fb[active] = c_new, fc
     return c
 
 
@@ -347,7 +393,8 @@ def _crossings(samples: np.ndarray, site: Site, delta_t: np.ndarray):
     day_i, seg_i = np.nonzero(up[:, :-1] != up[:, 1:])
     a, b = samples[day_i, seg_i], samples[day_i, seg_i + 1]
     dts = delta_t[day_i]
-    t = _find_roots(lambda x: excess(x, dts), a, b, e[day_i, seg_i], e[day_i, seg_i + 1])
+    t = _find_roots(lambda x, i: excess(x, dts[i]), a, b, e[day_i, seg_i],
+                    e[day_i, seg_i + 1])
     return day_i, t, ~up[day_i, seg_i], up[:, 0]
 
 
