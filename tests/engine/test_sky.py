@@ -364,6 +364,20 @@ def test_annual_extraterrestrial_horizontal_matches_duffie_beckman_1_10_3(site):
                                                                             rel=5e-4)
 
 
+def test_clear_sky_plane_of_array_year_at_60_minutes_matches_a_one_minute_year():
+    site = ET_SITES[1]
+    coarse = irradiance_year(site, 45.0, 180.0, IrradianceOptions(step_min=60))
+    fine = irradiance_year(site, 45.0, 180.0, IrradianceOptions(step_min=1))
+    # the same clear sky (Ineichen & Perez 2002, Perez et al. 1990 through
+    # pvlib) at 1-minute steps, where the midpoint rule's error is below 1e-5;
+    # issue 12 target 0.2 % for the annual plane-of-array total (measured
+    # +0.11 % here, +0.08 % on the equator, +0.19 % at 33.9 S on a 34 deg
+    # plane). Monthly totals are not yet within it (up to 0.6 % here, 2 % in
+    # the months next to polar night at 70 N): clear-sky values stay at
+    # interval midpoints.
+    assert coarse.annual["poa_kwh_m2"] == pytest.approx(fine.annual["poa_kwh_m2"], rel=2e-3)
+
+
 # -- facts of the trade about the Earth's orbit ---------------------------------------
 
 def test_perihelion_aphelion_and_the_annual_swing():
