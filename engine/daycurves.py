@@ -36,7 +36,7 @@ from .horizon_loss import schedule_horizon_loss
 from .jobs import irradiance_on_plane
 from .plane import poa_components
 from .site import Site
-from .sky import clear_sky, extraterrestrial_normal, extraterrestrial_on_plane
+from .sky import clear_sky, extraterrestrial_interval_mean, extraterrestrial_normal
 from .skyyear import IrradianceOptions, SkyYear, sky_year
 from .sun import evaluation_points
 from .timegrid import MIDPOINT_CONVENTION, TimeGrid, check_step_min, local_date
@@ -224,6 +224,20 @@ def _slice_year(sky: SkyYear, rows: np.ndarray) -> _Sky:
                 sky.note)
 
 
+def _et_sun_up_mean(sky, site: Site, zenith, surface_tilt, surface_azimuth, step_min):
+    """Extraterrestrial irradiance on the plane, mean over each interval's sun-up part, W/m².
+
+    Closed-form interval mean over the geometric sun
+    (:func:`tiltyard.engine.sky.extraterrestrial_interval_mean`, Duffie &
+    Beckman 2013, eqs. 1.6.2 and 1.10.1) divided by the sun-up share, so that
+    ``value x sun_up_fraction x interval`` is the exact irradiation.
+    """
+    mean = extraterrestrial_interval_mean(sky.dni_extra, zenith, sky.position["azimuth"].to_numpy(),
+                                          site.latitude_deg, surface_tilt, surface_azimuth,
+                                          sky.frac, step_min)
+    return np.where(sky.frac > 0, mean / np.where(sky.frac > 0, sky.frac, 1.0), 0.0)
+
+
 def _poa(sky: _Sky, surface_tilt: float, surface_azimuth: float, model: str,
          shading: HorizonShading) -> pd.DataFrame:
     """Plane-of-array components at the sky's instants, as irradiance_year computes them."""
@@ -331,8 +345,9 @@ def irradiance_day(site: Site, date, surface_tilt: float, surface_azimuth: float
         "aoi": aoi,
         "sun_visible": sky.visible,
         "dni_extra": np.where(up, sky.dni_extra, 0.0),
-        "extraterrestrial_horizontal": extraterrestrial_on_plane(sky.dni_extra, zen, zen),
-        "extraterrestrial_poa": extraterrestrial_on_plane(sky.dni_extra, zen, aoi),
+        "extraterrestrial_horizontal": _et_sun_up_mean(sky, site, zen, 0.0, 180.0, step),
+        "extraterrestrial_poa": _et_sun_up_mean(sky, site, zen, float(surface_tilt),
+                                                surface_azimuth, step),
         "ghi": sky.ghi, "dni": sky.dni, "dhi": sky.dhi, "ghi_clear": ghi_clear,
         "poa_global": poa["poa_global"].to_numpy(),
         "poa_direct": poa["poa_direct"].to_numpy(),

@@ -20,7 +20,7 @@ from .cautions import CAUTION
 from .horizon import HorizonShading, plane_shading
 from .plane import TRANSPOSITION_REFERENCES, poa_components
 from .site import Site
-from .sky import CLEARSKY_REFERENCES, extraterrestrial_on_plane
+from .sky import CLEARSKY_REFERENCES, extraterrestrial_interval_mean
 from .skyyear import IrradianceOptions, SkyYear, sky_year
 from .sun import day_path, sun_events
 from .timegrid import MIDPOINT_CONVENTION
@@ -255,9 +255,14 @@ def irradiance_on_plane(sky: SkyYear, surface_tilt: float,
     series["sun_up_fraction"] = frac
     series["sun_visible"] = vis
     series["dni_extra"] = dni_extra
-    series["extraterrestrial_horizontal"] = extraterrestrial_on_plane(dni_extra, zen, zen) * frac
+    # exact interval means, true (geometric) sun: sky.extraterrestrial_interval_mean
+    up_frac = frac
+    series["extraterrestrial_horizontal"] = extraterrestrial_interval_mean(
+        dni_extra, zen, saz, site.latitude_deg, 0.0, 180.0, up_frac, grid.step_min)
     aoi = poa["aoi"].to_numpy()
-    series["extraterrestrial_poa"] = extraterrestrial_on_plane(dni_extra, zen, aoi) * frac
+    series["extraterrestrial_poa"] = extraterrestrial_interval_mean(
+        dni_extra, zen, saz, site.latitude_deg, float(surface_tilt), surface_azimuth, up_frac,
+        grid.step_min)
     series["ghi"] = ghi * frac
     series["dni"] = dni * frac
     series["dhi"] = dhi * frac

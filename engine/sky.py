@@ -90,6 +90,113 @@ def extraterrestrial_on_plane(dni_extra, zenith, aoi) -> np.ndarray:
     return np.where(np.asarray(zenith) < 90.0, g, 0.0)
 
 
+#: Mean rate of the solar hour angle, rad/s (360° per mean solar day).
+_HOUR_ANGLE_RATE_RAD_S = 2.0 * np.pi / 86400.0
+
+
+def _positive_part_integral(a, b, c, w1, w2):
+    """Integral of ``max(a + b cos(w) + c sin(w), 0)`` over ``[w1, w2]`` (radians).
+
+    Closed form: the antiderivative ``a w + b sin w - c cos w`` between the
+    interval ends and the roots of ``a + R cos(w - psi) = 0`` inside it
+    (``R = hypot(b, c)``, ``psi = atan2(c, b)``), keeping the parts where the
+    integrand is positive. Vectorised; ``w2 - w1`` must be below ``pi``.
+
+    References
+    ----------
+    Duffie & Beckman (2013), eq. 1.6.2 grouped as in Klein (1977), integrated
+    term by term (the same integration that gives eq. 1.10.3).
+    """
+    a, b, c, w1, w2 = np.broadcast_arrays(*(np.asarray(v, dtype=float) for v in (a, b, c, w1, w2)))
+    r = np.hypot(b, c)
+    psi = np.arctan2(c, b)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        half = np.arccos(np.clip(-a / np.where(r > 0, r, 1.0), -1.0, 1.0))
+    mid = 0.5 * (w1 + w2)
+    r1, r2 = (np.clip(mid + (root - mid + np.pi) % (2.0 * np.pi) - np.pi, w1, w2)
+              for root in (psi - half, psi + half))
+    p = np.stack([w1, np.minimum(r1, r2), np.maximum(r1, r2), w2], axis=-1)
+
+    def anti(w):
+        return a[..., None] * w + b[..., None] * np.sin(w) - c[..., None] * np.cos(w)
+
+    centre = 0.5 * (p[..., 1:] + p[..., :-1])
+    positive = (a[..., None] + b[..., None] * np.cos(centre) + c[..., None] * np.sin(centre)) > 0
+    seg = anti(p[..., 1:]) - anti(p[..., :-1])
+    return np.sum(np.where(positive, seg, 0.0), axis=-1)
+
+
+def extraterrestrial_interval_mean(dni_extra, zenith, azimuth, latitude_deg: float,
+                                   surface_tilt, surface_azimuth, sun_up_fraction,
+                                   step_min: float) -> np.ndarray:
+    """Extraterrestrial irradiance on a plane, averaged exactly over each interval, W/m².
+
+    The mean over the whole interval of ``G_on max(cos(theta), 0)`` while the
+    sun's geometric centre is above the horizontal. Each interval's sun-up
+    part (``sun_up_fraction`` of it, centred on the evaluation instant, as
+    :func:`tiltyard.engine.sun.evaluation_points` places it) is integrated in
+    closed form over the hour angle, with the declination and ``G_on`` held at
+    their values at the evaluation instant (they change by under 0.02° and
+    0.002 % in an hour). The declination and hour angle are those of the SPA
+    topocentric geometric zenith and azimuth at that instant, so the result at
+    the instant reproduces SPA, and the angle of incidence uses the true
+    (geometric) sun, not the refracted one. A horizontal plane
+    (``surface_tilt = 0``) gives the extraterrestrial horizontal irradiance.
+
+    Against a 1-minute midpoint year the annual and monthly totals of a
+    60-minute year agree to better than 0.01 % (tests/engine/test_sky.py);
+    the plain midpoint rule is 0.1-0.3 % high at 60 minutes (the mean of a
+    concave ``cos`` over 15° of hour angle is below its middle value).
+
+    Parameters
+    ----------
+    dni_extra : array_like
+        Extraterrestrial normal irradiance at the evaluation instants, W/m².
+    zenith, azimuth : array_like
+        SPA geometric zenith and azimuth (clockwise from north) there, degrees.
+    latitude_deg : float
+        Site latitude.
+    surface_tilt, surface_azimuth : float or array_like
+        Plane tilt and azimuth (clockwise from north), degrees.
+    sun_up_fraction : array_like
+        Sun-up share of each interval (0-1).
+    step_min : float
+        Interval length, minutes.
+
+    Returns
+    -------
+    numpy.ndarray
+        Interval-mean irradiance, W/m² (zero where the sun is down).
+
+    References
+    ----------
+    Duffie & Beckman (2013), Solar Engineering of Thermal Processes, eqs.
+    1.6.2 (angle of incidence by hour angle), 1.10.1 and the integration of
+    1.10.3; positions by Reda & Andreas (2008), NREL/TP-560-34302.
+    """
+    frac = np.asarray(sun_up_fraction, dtype=float)
+    out = np.zeros(frac.shape)
+    up = frac > 0
+    tilt, saz = (np.asarray(v, dtype=float) for v in (surface_tilt, surface_azimuth))
+    tilt = tilt[up] if tilt.ndim else tilt
+    saz = saz[up] if saz.ndim else saz
+    frac = frac[up]
+    phi = np.radians(latitude_deg)
+    z = np.radians(np.asarray(zenith, dtype=float)[up])
+    az = np.radians(np.asarray(azimuth, dtype=float)[up])
+    sin_d = np.clip(np.sin(phi) * np.cos(z) + np.cos(phi) * np.sin(z) * np.cos(az), -1.0, 1.0)
+    delta = np.arcsin(sin_d)
+    omega = np.arctan2(-np.sin(az) * np.sin(z),
+                       np.cos(phi) * np.cos(z) - np.sin(phi) * np.sin(z) * np.cos(az))
+    a, b, c = incidence_coefficients(phi, delta, np.radians(tilt),
+                                     np.radians(azimuth_north_to_south_based(saz)))
+    half_w = 0.5 * frac * step_min * 60.0 * _HOUR_ANGLE_RATE_RAD_S
+    integral = _positive_part_integral(a, b, c, omega - half_w, omega + half_w)
+    g_on = np.broadcast_to(np.asarray(dni_extra, dtype=float), out.shape)[up]
+    out[up] = g_on * np.maximum(integral / (2.0 * half_w), 0.0) * frac
+    return out
+
+
 def daily_extraterrestrial_kwh_m2(site: Site, year: int = REFERENCE_YEAR,
                                   surface_tilt: float = 0.0, surface_azimuth: float | None = None,
                                   solar_constant_w_m2: float = SOLAR_CONSTANT_W_M2,

@@ -275,6 +275,109 @@ def test_tilted_daily_integral_matches_one_minute_spa_sum(latitude, longitude, t
         assert ours.loc[pd.Timestamp(day).date()] == pytest.approx(ref, rel=3e-3)
 
 
+# -- extraterrestrial totals of the year job at the default 60-minute step -----------
+
+ET_SITES = [Site("equator", 0.0, 0.0, 0.0, "UTC"),
+            Site("mid-latitude", 45.0, 7.0, 300.0, "Europe/Rome"),
+            Site("southern", -33.9, 151.2, 50.0, "Australia/Sydney"),
+            Site("arctic", 70.0, 20.0, 0.0, "Europe/Oslo")]
+
+
+@cache
+def _year_job(site: Site, tilt: float, azimuth: float, step_min: int = 60):
+    return irradiance_year(site, tilt, azimuth, IrradianceOptions(step_min=step_min,
+                                                                  model="isotropic"))
+
+
+def _one_minute_extraterrestrial_kwh(site: Site, tilt: float, azimuth: float) -> pd.DataFrame:
+    """Monthly extraterrestrial irradiation from an independent 1-minute SPA sum.
+
+    Each minute of the local year: ``G_on max(cos aoi, 0)`` at its midpoint
+    with the geometric (unrefracted) SPA sun, times the share of the minute
+    with the geometric centre above the horizontal (linear between the SPA
+    elevations at the minute's ends). The midpoint rule's error at one minute
+    is below 1e-6 (0.25 deg of hour angle).
+    """
+    start = pd.Timestamp(YEAR, 1, 1).tz_localize(site.timezone)
+    end = pd.Timestamp(YEAR + 1, 1, 1).tz_localize(site.timezone)
+    bounds = pd.date_range(start, end, freq="1min")
+    t = bounds[:-1] + pd.Timedelta(seconds=30)
+    pos = solar_position(t, site)
+    zen = pos["zenith"].to_numpy()
+    eb = solar_position(bounds, site)["elevation"].to_numpy()
+    e0, e1 = eb[:-1], eb[1:]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        x = np.clip(e0 / (e0 - e1), 0.0, 1.0)
+    share = np.where((e0 > 0) & (e1 > 0), 1.0, np.where(e0 > 0, x, np.where(e1 > 0, 1 - x, 0.0)))
+    share = np.where((e0 <= 0) & (e1 <= 0), (zen < 90).astype(float), share)
+    g = extraterrestrial_normal(t)
+    aoi = pvlib.irradiance.aoi(tilt, azimuth, zen, pos["azimuth"].to_numpy())
+    hor = g * np.maximum(np.cos(np.radians(zen)), 0.0) * share
+    poa = g * np.maximum(np.cos(np.radians(np.asarray(aoi))), 0.0) * share
+    month = bounds[:-1].month.to_numpy()
+    return pd.DataFrame({"h": np.bincount(month, hor, 13)[1:], "p": np.bincount(month, poa, 13)[1:]},
+                        index=range(1, 13)) / 60.0 / 1000.0
+
+
+@pytest.mark.parametrize("site", ET_SITES, ids=lambda s: s.name)
+def test_extraterrestrial_on_a_horizontal_plane_equals_extraterrestrial_horizontal(site):
+    res = _year_job(site, 0.0, 180.0)
+    s = res.series
+    # Duffie & Beckman (2013), eq. 1.10.1: on a horizontal plane the angle of
+    # incidence is the (geometric) zenith angle; issue 12 target 0.01 %,
+    # per interval, per month and for the year
+    np.testing.assert_allclose(s["extraterrestrial_poa"], s["extraterrestrial_horizontal"],
+                               rtol=1e-4, atol=1e-9)
+    m = res.monthly
+    np.testing.assert_allclose(m["extraterrestrial_poa_kwh_m2"],
+                               m["extraterrestrial_horizontal_kwh_m2"], rtol=1e-4, atol=1e-9)
+
+
+@pytest.mark.parametrize("site, tilt, azimuth", [(ET_SITES[0], 20.0, 0.0),
+                                                 (ET_SITES[3], 60.0, 180.0)],
+                         ids=["equator", "arctic"])
+def test_extraterrestrial_totals_at_60_minutes_match_a_one_minute_year(site, tilt, azimuth):
+    res = _year_job(site, tilt, azimuth)
+    ref = _one_minute_extraterrestrial_kwh(site, tilt, azimuth)
+    m = res.monthly
+    for col, key in (("h", "extraterrestrial_horizontal_kwh_m2"),
+                     ("p", "extraterrestrial_poa_kwh_m2")):
+        # independent 1-minute SPA sum (Reda & Andreas 2008; Duffie & Beckman
+        # 2013, eq. 1.10.1); issue 12 target 0.05 % for the year and for every
+        # month (measured: under 0.002 %; the plain midpoint rule was 0.1-0.3 %
+        # high, and up to 7 % on the first day of sun after polar night)
+        assert m[key].sum() == pytest.approx(ref[col].sum(), rel=5e-4)
+        lit = ref[col] > 0
+        np.testing.assert_allclose(m[key][lit], ref[col][lit], rtol=5e-4, atol=1e-6)
+        assert np.all(m[key][~lit] == 0.0)
+
+
+@pytest.mark.parametrize("site", ET_SITES, ids=lambda s: s.name)
+def test_annual_extraterrestrial_horizontal_matches_duffie_beckman_1_10_3(site):
+    res = _year_job(site, 0.0, 180.0)
+    closed, _ = _closed_form_with_spa_inputs_kwh(site)
+    # Duffie & Beckman (2013), eq. 1.10.3 day by day with the SPA declination
+    # and distance at local mean noon (held over the day, which the year job
+    # does not do); tolerance 0.05 % for the year (issue 12 measured +0.28 %
+    # at the equator with the midpoint rule)
+    assert res.annual["extraterrestrial_horizontal_kwh_m2"] == pytest.approx(closed.sum(),
+                                                                            rel=5e-4)
+
+
+def test_clear_sky_plane_of_array_year_at_60_minutes_matches_a_one_minute_year():
+    site = ET_SITES[1]
+    coarse = irradiance_year(site, 45.0, 180.0, IrradianceOptions(step_min=60))
+    fine = irradiance_year(site, 45.0, 180.0, IrradianceOptions(step_min=1))
+    # the same clear sky (Ineichen & Perez 2002, Perez et al. 1990 through
+    # pvlib) at 1-minute steps, where the midpoint rule's error is below 1e-5;
+    # issue 12 target 0.2 % for the annual plane-of-array total (measured
+    # +0.11 % here, +0.08 % on the equator, +0.19 % at 33.9 S on a 34 deg
+    # plane). Monthly totals are not yet within it (up to 0.6 % here, 2 % in
+    # the months next to polar night at 70 N): clear-sky values stay at
+    # interval midpoints.
+    assert coarse.annual["poa_kwh_m2"] == pytest.approx(fine.annual["poa_kwh_m2"], rel=2e-3)
+
+
 # -- facts of the trade about the Earth's orbit ---------------------------------------
 
 def test_perihelion_aphelion_and_the_annual_swing():
@@ -370,11 +473,14 @@ def test_year_job_ghi_stays_below_extraterrestrial_horizontal(site, hourly_tol_w
                                                                   model="isotropic"))
         s = res.series
         full = s["sun_up_fraction"].to_numpy() == 1.0
-        # energy conservation (Duffie & Beckman 2013, eq. 1.10.1) against the
-        # reported (geometric) extraterrestrial horizontal, for intervals with
-        # the sun up throughout; tolerance 1e-9 W/m2 (0.3 W/m2 where capped)
-        assert np.all(s["ghi"].to_numpy()[full]
-                      <= s["extraterrestrial_horizontal"].to_numpy()[full] + hourly_tol_w_m2)
+        # energy conservation (Duffie & Beckman 2013, eq. 1.10.1) at each
+        # evaluation instant, against G_on cos(geometric zenith) there (the
+        # reported extraterrestrial horizontal is the exact interval mean, a
+        # little below its midpoint value), for intervals with the sun up
+        # throughout; tolerance 1e-9 W/m2 (0.3 W/m2 where capped)
+        zen = solar_position(pd.DatetimeIndex(s["eval_time_utc"]), site)["zenith"].to_numpy()
+        bound = s["dni_extra"].to_numpy() * np.cos(np.radians(zen))
+        assert np.all(s["ghi"].to_numpy()[full] <= bound[full] + hourly_tol_w_m2)
         # and every monthly total; tolerance 1e-9 kWh/m2
         m = res.monthly
         assert np.all(m["ghi_kwh_m2"] <= m["extraterrestrial_horizontal_kwh_m2"] + 1e-9)

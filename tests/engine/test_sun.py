@@ -39,18 +39,26 @@ def test_spa_worked_example_position():
 
 def test_spa_worked_example_events():
     ev = sun_events(SPA_SITE, ["2003-10-17"]).table.iloc[0]
-    # Reda & Andreas (2008) Table A5.1: sunrise 06:12:43, transit 11:46:05,
-    # sunset 17:20:19 local standard time (UTC-7); tolerance 5 s (we use the
-    # Espenak-Meeus delta T instead of the example's 67 s, and the report
-    # rounds to the second).
-    for key, expected in (("sunrise", "06:12:43"), ("solar_noon", "11:46:05"),
-                          ("sunset", "17:20:19")):
+    # Reda & Andreas (2008) Table A5.1: sunrise 06:12:43, transit 11:46:05
+    # local standard time (UTC-7); tolerance 5 s (we use the Espenak-Meeus
+    # delta T instead of the example's 67 s, and the report rounds to the
+    # second).
+    for key, expected in (("sunrise", "06:12:43"), ("solar_noon", "11:46:05")):
         want = pd.Timestamp(f"2003-10-17 {expected}", tz="Etc/GMT+7")
         assert abs((ev[key] - want).total_seconds()) < 5.0, key
+    # The same table gives sunset 17:20:19, but that sunset is at 00:20 UT on
+    # the next UT day, where the App. A.2 interpolation (event times wrapped
+    # into the transit's UT day) errs; the JPL DE421 ephemeris puts it at
+    # 17:18:51.3 (computed with skyfield 1.55 for this site and date, the
+    # sun's centre at -0.8333 deg geometric altitude; tests/engine/
+    # test_sun_events.py makes such comparisons live). Tolerance 5 s.
+    want_set = pd.Timestamp("2003-10-17 17:18:51.3", tz="Etc/GMT+7")
+    assert abs((ev["sunset"] - want_set).total_seconds()) < 5.0
     assert ev["polar"] is None
+    # day length from the same two references, within 10 s (sum of both)
+    want_rise = pd.Timestamp("2003-10-17 06:12:43", tz="Etc/GMT+7")
     assert ev["day_length_h"] == pytest.approx(
-        (pd.Timestamp("2003-10-17 17:20:19") - pd.Timestamp("2003-10-17 06:12:43"))
-        .total_seconds() / 3600.0, abs=3.0 / 3600.0)
+        (want_set - want_rise).total_seconds() / 3600.0, abs=10.0 / 3600.0)
 
 
 @pytest.mark.parametrize("lat", [-45.0, -10.0, 0.0, 23.44, 35.0, 51.5, 60.0])
@@ -92,7 +100,7 @@ def test_events_fall_on_their_local_date_across_a_year():
 def test_events_match_sampled_path_crossings():
     # Independent check: the sampled SPA apparent elevation crosses -0.8333 deg
     # within a minute of the reported sunrise/sunset (same algorithm family, but
-    # a different procedure: sampling versus SPA App. A.2).
+    # a different procedure: 30-s sampling versus root finding).
     site = Site("crossing check", 62.0, 10.0, 0, "Europe/Oslo")
     for date in ("2023-02-10", "2023-05-10", "2023-09-30"):
         ev = sun_events(site, [date]).table.iloc[0]
