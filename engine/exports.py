@@ -25,20 +25,27 @@ import io
 import json
 from collections.abc import Callable
 from dataclasses import dataclass, fields
-from typing import TYPE_CHECKING
 
 import numpy as np
 import pandas as pd
 
+from .allsky import weather_json_dict
 from .horizon_loss import PlaneHorizonLoss, schedule_horizon_loss
 from .jobs import model_references
 from .site import Site, site_to_dict
 from .skyyear import SkyYear, sky_year
-from .tilt import MONTH_NAMES, OPTION_KINDS, StudyOption, StudyOptions, TiltStudy, schedule_poa
+from .sunchart import SunChart, sun_chart
+from .tilt import (
+    KLEIN_METHOD,
+    MONTH_NAMES,
+    OPTION_KINDS,
+    StudyOption,
+    StudyOptions,
+    TiltStudy,
+    schedule_poa,
+    tilt_study,
+)
 from .timegrid import MIDPOINT_CONVENTION
-
-if TYPE_CHECKING:
-    from .sunchart import SunChart
 
 #: Month abbreviations used as CSV row labels.
 MONTH_ABBR = tuple(m[:3] for m in MONTH_NAMES)
@@ -53,7 +60,6 @@ SHEET_CAUTIONS = (
     "Irradiation on the plane is the sunlight reaching the panel surface, not the electricity "
     "a system delivers.",
 )
-
 
 # -- the JSON document -------------------------------------------------------------------
 
@@ -80,8 +86,6 @@ def study_document(study: TiltStudy, result=None) -> dict:
             k: round(v, 3) for k, v in bound.items()}
     weather = study.options_used.irradiance.weather
     if weather is not None:
-        from .allsky import weather_json_dict
-
         doc["weather"] = weather_json_dict(weather)
     return doc
 
@@ -482,8 +486,6 @@ def _models_text(opts: StudyOptions, study: TiltStudy) -> list[tuple[str, str]]:
                   "horizon; sky diffuse scaled by each plane's sky-view factor; ground-reflected "
                   "light unobstructed."))
     if study.monthly_method is not None:
-        from .tilt import KLEIN_METHOD
-
         out.append(("Cross-check", KLEIN_METHOD))
     return out
 
@@ -622,9 +624,6 @@ def sheet_data(site: Site, study: TiltStudy | StudyOptions | None = None,
     docstrings give the methods and their references; the sun chart is drawn for
     21 June of the study's reference year.
     """
-    from .sunchart import sun_chart
-    from .tilt import tilt_study
-
     def report(fraction, stage):
         if progress is not None:
             progress(fraction, stage)

@@ -16,8 +16,9 @@ import pandas as pd
 import pvlib
 from pvlib import spa as _spa
 
+from .horizon import site_horizon_deg
 from .site import Site
-from .timegrid import REFERENCE_YEAR, TimeGrid
+from .timegrid import REFERENCE_YEAR, TimeGrid, standard_offset
 
 #: Geometric (unrefracted) elevation of the sun's centre at sunrise and sunset:
 #: -(34' standard refraction at the horizon + 16' solar semi-diameter) (Reda &
@@ -785,8 +786,6 @@ def day_path(site: Site, date, step_min: float = 5.0, horizon_deg=None) -> pd.Da
     ----------
     Reda & Andreas (2008), NREL/TP-560-34302.
     """
-    from .horizon import site_horizon_deg
-
     day = pd.Timestamp(date).normalize()
     start = day.tz_localize(site.timezone, ambiguous=True, nonexistent="shift_forward")
     end = (day + pd.Timedelta(days=1)).tz_localize(site.timezone, ambiguous=True,
@@ -832,8 +831,6 @@ def hour_lines(site: Site, year: int = REFERENCE_YEAR, basis: str = "standard",
     ----------
     Reda & Andreas (2008), NREL/TP-560-34302 (positions and equation of time).
     """
-    from .timegrid import standard_offset
-
     days = pd.date_range(f"{year}-01-01", f"{year}-12-31", freq=f"{day_step}D")
     hours = np.arange(24)
     dd, hh = np.meshgrid(np.arange(len(days)), hours, indexing="ij")

@@ -9,6 +9,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from ..monthly import klein_monthly_tilted
 from ..site import Site
 from .options import Period
 from .search import _day_from_mmdd
@@ -63,8 +64,6 @@ def monthly_method_comparison(site: Site, options, year: int,
     -------
     tuple of MonthlyMethodOption
     """
-    from ..monthly import klein_monthly_tilted
-
     ghi = np.asarray(site.monthly_ghi_kwh_m2_day, dtype=float)
     albedo = np.asarray(site.albedo_by_month(), dtype=float)
     cache = {}

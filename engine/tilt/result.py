@@ -9,8 +9,10 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
+from ..rows import GCR_DEFINITIONS, LIMITATION
 from ..site import Site
 from ..skyyear import SkyYear
+from ..specific_yield import LABEL
 from .monthly_check import KLEIN_METHOD
 from .options import SEASONAL_KINDS, StudyOption, StudyOptions, _score_monthly
 
@@ -204,8 +206,6 @@ def _r(v):
 
 
 def _rows_json(study) -> dict | None:
-    from ..rows import GCR_DEFINITIONS, LIMITATION
-
     if not study.rows:
         return None
 
@@ -232,8 +232,6 @@ def _rows_json(study) -> dict | None:
 
 
 def _yields_json(study) -> dict | None:
-    from ..specific_yield import LABEL
-
     if not study.yields:
         return None
     first = study.yields[0].result

@@ -11,10 +11,13 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from ..horizon import plane_shading
 from ..manyplane import many_plane_daily, many_plane_terms
 from ..plane import poa_components
+from ..rows import irradiation_per_ground_m2, row_layout
 from ..site import Site
 from ..skyyear import SkyYear, sky_year
+from ..specific_yield import specific_yield
 from .monthly_check import monthly_method_comparison
 from .options import (
     MONTH_NAMES,
@@ -382,8 +385,6 @@ def periods_poa(sky: SkyYear, site: Site, schedule) -> pd.DataFrame:
     Transposition as :func:`tiltyard.engine.plane.poa_components` (pvlib;
     Perez et al. 1990, Hay & Davies 1980, Liu & Jordan 1963).
     """
-    from ..horizon import plane_shading
-
     pos = sky.position
     frac = sky.sun_up_fraction
     zen = pos["apparent_zenith"].to_numpy()
@@ -437,8 +438,6 @@ class _RowLayouts:
         self._site, self._kw, self._done = site, _row_kw(opts), {}
 
     def get(self, tilt_deg: float, azimuth_deg: float) -> tuple:
-        from ..rows import row_layout
-
         key = (float(tilt_deg), float(azimuth_deg))
         if key not in self._done:
             try:
@@ -449,8 +448,6 @@ class _RowLayouts:
 
 
 def _option_rows(opt: StudyOption, layouts: _RowLayouts) -> OptionRows:
-    from ..rows import irradiation_per_ground_m2
-
     if opt.kind == "two-axis":
         return OptionRows(opt.label, opt.kind, None, None,
                           "trackers need their own spacing study; not laid out")
@@ -465,8 +462,6 @@ def _option_rows(opt: StudyOption, layouts: _RowLayouts) -> OptionRows:
 
 
 def _option_yield(sky: SkyYear, site: Site, opt: StudyOption, opts: StudyOptions) -> OptionYield:
-    from ..specific_yield import specific_yield
-
     poa = schedule_poa(sky, site, opt)["poa_global"]
     temp = wind = None
     if sky.temp_air is not None:
