@@ -170,6 +170,8 @@ class StudyTableModel(QStandardItemModel):
             g_f = study.gain_pct(opt, "fixed-optimal")
             share = study.share_pct(opt, "two-axis")
             label = TABLE_NAMES.get(opt.kind, opt.label)
+            if opt.kind == "fixed-optimal" and study.mounting == "flush":
+                label = "Best plane"      # a reference for the roof as it is
             if opt is rec:
                 label = "★ " + label
             adjust = ("continuous" if opt.kind == "two-axis"

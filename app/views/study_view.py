@@ -56,12 +56,11 @@ OBJECTIVES = (("annual total", "annual"), ("worst month", "worst-month"),
               ("chosen months", "months"))
 
 #: How the panels are held, in the user's words (the engine's mounting kinds).
-MOUNTING_CHOICES = (("flush on the roof, as it is", "flush"), ("fixed rack", "fixed-rack"),
-                    ("adjustable rack (seasonal tilts)", "adjustable"),
-                    ("rows on the ground", "ground-rows"),
-                    ("rows on a flat roof", "flat-roof-rows"))
+MOUNTING_CHOICES = (("flush on the roof", "flush"), ("fixed rack", "fixed-rack"),
+                    ("adjustable rack", "adjustable"), ("ground rows", "ground-rows"),
+                    ("flat-roof rows", "flat-roof-rows"))
 #: Tilt positions a year an adjustable rack may take.
-POSITION_CHOICES = (("2 (two seasons)", 2), ("4 (four seasons)", 4), ("12 (every month)", 12))
+POSITION_CHOICES = (("2 a year", 2), ("4 a year", 4), ("12 a year", 12))
 
 #: What an objective's figures measure, for chart axes.
 OBJECTIVE_AXIS = {"annual": "Annual irradiation (kWh/m²)",
@@ -255,18 +254,21 @@ class StudyView(View):
         self.mounting = QComboBox()
         for text, key in MOUNTING_CHOICES:
             self.mounting.addItem(text, key)
-        self.mounting.setToolTip("How the panels will be held: flush on a roof keeps the "
-                                 "roof's tilt and direction; only an adjustable rack can "
-                                 "follow a seasonal schedule.")
+        self.mounting.setToolTip("How the panels will be held. Flush on the roof: the roof's "
+                                 "own tilt and direction, the roof as it is. Fixed rack: one "
+                                 "tilt all year. Adjustable rack: re-tilted with the seasons. "
+                                 "Ground or flat-roof rows: fixed racks in rows, with their "
+                                 "spacing.")
         self.mounting.currentIndexChanged.connect(lambda _i: self._changed())
         form.addRow("Mounting", self.mounting)
         self.positions = QComboBox()
         for text, n in POSITION_CHOICES:
             self.positions.addItem(text, n)
         self.positions.setCurrentIndex(len(POSITION_CHOICES) - 1)
-        self.positions.setToolTip("Most tilt positions a year the adjustable rack takes")
+        self.positions.setToolTip("Most tilt positions a year the adjustable rack takes "
+                                  "(2: two seasons, 4: four seasons, 12: every month)")
         self.positions.currentIndexChanged.connect(lambda _i: self._changed())
-        form.addRow("Positions a year", self.positions)
+        form.addRow("Positions", self.positions)
         form.addRow("Maximise", self.objective)
 
         months = QWidget()
@@ -397,6 +399,11 @@ class StudyView(View):
         self.recommendation.setWordWrap(True)
         self.recommendation.setTextFormat(Qt.TextFormat.RichText)
         lay.addWidget(self.recommendation)
+        self.bound = QLabel()
+        self.bound.setWordWrap(True)
+        self.bound.setProperty("role", "muted")
+        self.bound.hide()
+        lay.addWidget(self.bound)
         self.warnings = QLabel()
         self.warnings.setWordWrap(True)
         self.warnings.setStyleSheet(f"color: {theme.WARNING};")
@@ -569,12 +576,15 @@ class StudyView(View):
         flush = self.mounting.model().item(0)
         flush.setEnabled(has_planes)
         flush.setToolTip("" if has_planes else "Add the roof plane on the Site view first")
-        self.positions.setEnabled(self.mounting.currentData() == "adjustable")
+        adjustable = self.mounting.currentData() == "adjustable"
+        self.positions.setEnabled(adjustable)
+        self.min_days.setEnabled(adjustable)         # only a seasonal schedule has periods
+        self.switch_mode.setEnabled(adjustable)
         self.months_widget.setEnabled(self.objective.currentData() == "months")
         for cb in self.month_boxes:
             cb.setEnabled(self.objective.currentData() == "months")
         self.azimuth.setEnabled(self.azimuth_mode.currentData() == "fixed")
-        fixed = self.switch_mode.currentData() == "fixed"
+        fixed = adjustable and self.switch_mode.currentData() == "fixed"
         self.switch_a.setEnabled(fixed)
         self.switch_b.setEnabled(fixed)
 
@@ -618,12 +628,29 @@ class StudyView(View):
 
     def _show_study(self, study) -> None:
         self.study = study
+        self.bound.hide()
+        a = self.ctx.assessment
+        self.ctx.runner.submit_call(self.channel("bound"),
+                                    EngineCall(assessment_part, (a, "clear_sky_bound")),
+                                    lambda b, st=study: self._show_bound(st, b),
+                                    label="Tilt study: clear-sky bound")
         self.draw_in_stages(self.channel("draw"), (
             lambda: self._show_table(study),
             lambda: self._draw_curve(study),
             lambda: self._draw_map(study),
             lambda: self._draw_timeline(study),
             lambda: self.ctx.publish_study(study)))
+
+    def _show_bound(self, study, bound) -> None:
+        """The clear-sky upper bound beside a monthly or weather-file basis."""
+        rec = study.recommended
+        if bound is None or study is not self.study or rec.label not in bound:
+            self.bound.hide()
+            return
+        self.bound.setText(f"Under a clear sky every day the same plane would get "
+                           f"{bound[rec.label]:,.0f} kWh/m² a year: the upper bound, not an "
+                           "expected value.")
+        self.bound.show()
 
     def _show_table(self, study) -> None:
         self.status.setText("")
@@ -860,7 +887,9 @@ class StudyView(View):
         labels = []
         fm = QFontMetrics(theme.plot_font(9))
         for row, opt in enumerate(study.options):
-            name = ("▶ " if opt is rec else "") + short_name(opt)
+            name = ("▶ " if opt is rec else "") + (
+                "Best plane" if opt.kind == "fixed-optimal" and study.mounting == "flush"
+                else short_name(opt))
             ticks.append((row, fm.elidedText(name, Qt.TextElideMode.ElideRight, 112)))
             x0s, widths, brushes, texts = [], [], [], []
             for p in opt.schedule:

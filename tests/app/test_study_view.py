@@ -114,6 +114,8 @@ def test_a_flush_roof_lists_the_roof_and_no_seasonal_schedule(qtbot, make_ctx, i
     assert "This roof as it is" in view.recommendation.text()
     assert "of the best plane for the site" in view.recommendation.text()
     assert "on the site's monthly irradiation values" in view.basis.text()
+    qtbot.waitUntil(lambda: view.bound.isVisible())
+    assert "upper bound, not an expected value" in view.bound.text()
     # the mounting is saved with the site; the adjustable rack brings the schedules back
     view.mounting.setCurrentIndex(view.mounting.findData("adjustable"))
     idle(ctx.runner)
