@@ -317,6 +317,11 @@ def _key_figures(m: Measure, ctx: _Ctx, frame: QRectF, s: float) -> tuple[list, 
     ops += col.text(f"{basis}Rule: {rule}. The two-axis tracker is a ceiling to judge the "
                     "others by, not a recommendation.", Font(7.0 * s), min_size=5.5,
                     max_lines=3, color=TEXT, role="key.rule")
+    for i, warning in enumerate(ctx.f.weather_warnings):    # accepted, so shown on page 1
+        col.gap(2.0 * s)
+        ops += col.text(f"Weather data warning, accepted by the preparer: {warning}",
+                        Font(7.0 * s, bold=True), min_size=5.5, max_lines=3, color=TEXT,
+                        role=f"key.weather_warning.{i}")
     height = col.y - frame.top() + pad
     return ops, min(height, frame.height()), col.overflow or height > frame.height()
 
@@ -375,7 +380,8 @@ def _page2(m: Measure, ctx: _Ctx, s: float):
     page.add(_heading(col, "Monthly irradiation on the plane (kWh/m²)", s, "section.monthly"))
     page.add(_monthly_table(m, ctx, col, s))
     # the clear-sky caveat is stated in the key figures and the assumptions already
-    notes = [n for n in ctx.f.notes if not n.startswith("Clear-sky basis")]
+    notes = [n for n in ctx.f.notes if not n.startswith("Clear-sky basis")
+             and n not in ctx.f.weather_warnings]                # those are on page 1
     if notes:
         page.add(_heading(col, "Notes from the study", s, "section.notes"))
         for note in notes:

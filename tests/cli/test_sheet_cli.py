@@ -266,3 +266,45 @@ def test_help_documents_the_sheet_and_its_exports():
         assert flag in out, flag
     rc, out, _err = _call("--help")
     assert rc == 0 and "sheet" in out
+
+
+def test_an_accepted_weather_warning_stays_on_page_one(tmp_path):
+    import pvlib
+
+    tmy3 = Path(pvlib.__file__).parent / "data" / "723170TYA.CSV"   # recorded in North Carolina
+    pdf = tmp_path / "far.pdf"
+    rc, _, err = _call("sheet", "larkmoor-dairy", "-o", str(pdf), "--sky", str(tmy3), *FLAGS)
+    assert rc == 2 and "km from the site" in err and "--accept-weather-warnings" in err
+    assert not pdf.exists()
+    rc, _, err = _call("sheet", "larkmoor-dairy", "-o", str(pdf), "--sky", str(tmy3),
+                       "--accept-weather-warnings", *FLAGS)
+    assert rc == 0, err
+    reader = pypdf.PdfReader(str(pdf))
+    page1 = " ".join(reader.pages[0].extract_text().split())
+    assert "Weather data warning, accepted by the preparer" in page1
+    assert "km from the site" in page1
+
+
+def test_fifteen_minute_weather_runs_through_study_and_sheet(tmp_path, quarter_hour_weather):
+    path, _written, columns = quarter_hour_weather
+    flags = ["--sky", str(path), "--columns", ",".join(f"{k}={v}" for k, v in columns),
+             "--time-label", "start", "--time-zone", "UTC", "--tilt-step", "5"]
+    rc, out, err = _call("study", "larkmoor-dairy", "--json", *flags)
+    assert rc == 0, err
+    doc = json.loads(out)
+    assert doc["study"]["step_min"] == 15 and doc["assessment"]["interval_min"] == 15
+    assert doc["assessment"]["basis"]["used"] == "file"
+    pdf = tmp_path / "quarter.pdf"
+    rc, _, err = _call("sheet", "larkmoor-dairy", "-o", str(pdf), *flags)
+    assert rc == 0, err
+    assert "15-minute intervals" in _text(pdf)
+    # --step only resamples a clear or monthly sky; a weather file keeps its own interval
+    rc, _, err = _call("study", "larkmoor-dairy", "--step", "60", *flags)
+    assert rc == 2 and "15-minute intervals" in err
+
+
+def test_study_says_it_uses_the_sites_monthly_values_by_default():
+    rc, out, _ = _call("study", "larkmoor-dairy", "--tilt-step", "5")
+    assert rc == 0
+    assert "Sky basis: on the site's monthly irradiation values" in out
+    assert "Clear-sky upper bound for it:" in out and "This roof as it is:" in out
