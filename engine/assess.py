@@ -16,7 +16,7 @@ from __future__ import annotations
 import math
 from collections import OrderedDict
 from collections.abc import Callable
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 import numpy as np
@@ -382,11 +382,8 @@ class AssessmentResult:
             return None
 
         def build():
-            irr = IrradianceOptions(model=self.irradiance_options.model, sky="clear",
-                                    clearsky_model=self.irradiance_options.clearsky_model,
-                                    solar_constant_w_m2=self.irradiance_options
-                                    .solar_constant_w_m2, year=self.irradiance_options.year,
-                                    step_min=DEFAULT_INTERVAL_MIN)
+            irr = replace(self.irradiance_options, sky="clear", weather=None,
+                          step_min=DEFAULT_INTERVAL_MIN)
             clear = sky_year(self.site, irr)
             k = clear.grid.step_h / 1000.0
             out = {}

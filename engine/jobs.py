@@ -18,11 +18,12 @@ import pandas as pd
 
 from .cautions import CAUTION
 from .horizon import HorizonShading, plane_shading
-from .plane import TRANSPOSITION_REFERENCES, poa_components
+from .plane import TRANSPOSITION_REFERENCES
 from .site import Site
 from .sky import CLEARSKY_REFERENCES, extraterrestrial_interval_mean
 from .skyyear import IrradianceOptions, SkyYear, sky_year
 from .sun import day_path, sun_events
+from .tilt import ALL_POA_COLUMNS, Period, periods_poa
 from .timegrid import MIDPOINT_CONVENTION
 
 
@@ -240,15 +241,14 @@ def irradiance_on_plane(sky: SkyYear, surface_tilt: float,
     surface_azimuth = float(surface_azimuth) % 360.0
     grid, pos, frac = sky.grid, sky.position, sky.sun_up_fraction
     ghi, dni, dhi, dni_extra = sky.ghi, sky.dni, sky.dhi, sky.dni_extra
-    app_zen = pos["apparent_zenith"].to_numpy()
     zen = pos["zenith"].to_numpy()
     saz = pos["azimuth"].to_numpy()
     vis = sky.sun_visible              # already false while the sun is down
     shading = plane_shading(site, float(surface_tilt), surface_azimuth)
     months = sky.month
-    poa = poa_components(float(surface_tilt), surface_azimuth, app_zen, saz, ghi, dni, dhi,
-                         dni_extra, sky.albedo, options.model, sun_visible=vis,
-                         shading=shading)
+    # the one primitive for a plane over a sky year, with every component kept
+    poa = periods_poa(sky, site, (Period("01-01", "12-31", float(surface_tilt),
+                                         surface_azimuth),), columns=ALL_POA_COLUMNS)
     series = pd.DataFrame(index=grid.start_utc)
     series.index.name = "interval_start_utc"
     series["eval_time_utc"] = sky.times_utc
@@ -259,18 +259,14 @@ def irradiance_on_plane(sky: SkyYear, surface_tilt: float,
     up_frac = frac
     series["extraterrestrial_horizontal"] = extraterrestrial_interval_mean(
         dni_extra, zen, saz, site.latitude_deg, 0.0, 180.0, up_frac, grid.step_min)
-    aoi = poa["aoi"].to_numpy()
     series["extraterrestrial_poa"] = extraterrestrial_interval_mean(
         dni_extra, zen, saz, site.latitude_deg, float(surface_tilt), surface_azimuth, up_frac,
         grid.step_min)
     series["ghi"] = ghi * frac
     series["dni"] = dni * frac
     series["dhi"] = dhi * frac
-    for col in poa.columns:
-        if col == "aoi":
-            series["aoi"] = aoi
-        else:
-            series[col] = poa[col].to_numpy() * frac
+    for col in ALL_POA_COLUMNS:            # interval means already (aoi: degrees)
+        series[col] = poa[col].to_numpy()
     monthly = _monthly_table(series, months, grid.step_h)
     annual = {k: float(monthly[k].sum()) for k in MONTHLY_KEYS}
     notes = (sky.note,

@@ -21,10 +21,10 @@ from collections.abc import Callable
 from pathlib import Path
 
 from .allsky import WeatherOptionError, load_weather_for_site
-from .assess import weather_fit_warnings
-from .assessment import file_sha256
+from .assess import Basis, irradiance_options, weather_fit_warnings
+from .assessment import Assessment, file_sha256
 from .site import Site
-from .skyyear import IrradianceOptions, sky_year
+from .skyyear import sky_year
 from .timegrid import GRID_STEPS_MIN
 from .weather import (
     CsvHeader,
@@ -114,8 +114,8 @@ def read_weather_for_site(path, site: Site, columns: dict | None = None,
     if progress is not None:
         progress(0.5, "checking against the site's year")
     try:  # the checks that come with placing the data on the year's intervals
-        sky = sky_year(site, IrradianceOptions(sky="file", weather=weather,
-                                               step_min=weather.step_min))
+        irr = irradiance_options(Assessment(site), Basis("file", "file", "checked"), weather)
+        sky = sky_year(site, irr)
     except ValueError as exc:
         return LoadFailure(f"read, but it cannot serve as this site's year: {exc}")
     return Loaded(p, weather, weather_fit_warnings(weather, sky), file_sha256(p))

@@ -36,10 +36,18 @@ from .options import (
 )
 from .options import _score_monthly as _score_monthly
 from .result import TiltStudy
-from .study import OptionRows, OptionYield, periods_poa, schedule_poa, tilt_study
+from .study import (
+    ALL_POA_COLUMNS,
+    PERIOD_COLUMNS,
+    OptionRows,
+    OptionYield,
+    periods_poa,
+    schedule_poa,
+    tilt_study,
+)
 
 # the two private names above stay importable here for the tests
-__all__ = ["KLEIN_METHOD", "MONTH_NAMES", "MOUNTINGS", "OPTION_KINDS", "SEASONAL_KINDS",
+__all__ = ["ALL_POA_COLUMNS", "KLEIN_METHOD", "PERIOD_COLUMNS", "MONTH_NAMES", "MOUNTINGS", "OPTION_KINDS", "SEASONAL_KINDS",
            "MonthlyMethodOption", "OptionRows", "OptionYield", "Period", "RowSettings",
            "StudyOption", "StudyOptions", "StudySettings", "TiltStudy", "monthly_method_comparison", "periods_poa",
            "schedule_poa", "tilt_study"]

@@ -358,7 +358,14 @@ PERIOD_COLUMNS = ("poa_global", "poa_direct", "poa_sky_diffuse", "poa_ground_dif
                   "poa_global_open", "poa_direct_open", "poa_sky_diffuse_open")
 
 
-def periods_poa(sky: SkyYear, site: Site, schedule) -> pd.DataFrame:
+#: Every column :func:`periods_poa` can give: :data:`PERIOD_COLUMNS`, the Perez components
+#: after and before the horizon, and the angle of incidence (degrees, NaN with the sun down).
+ALL_POA_COLUMNS = PERIOD_COLUMNS + (
+    "poa_isotropic", "poa_circumsolar", "poa_horizon",
+    "poa_isotropic_open", "poa_circumsolar_open", "poa_horizon_open", "aoi")
+
+
+def periods_poa(sky: SkyYear, site: Site, schedule, columns=PERIOD_COLUMNS) -> pd.DataFrame:
     """Interval plane-of-array irradiance of a schedule of periods, W/m².
 
     The arithmetic of :func:`schedule_poa`: each day counts on the plane of
@@ -374,11 +381,14 @@ def periods_poa(sky: SkyYear, site: Site, schedule) -> pd.DataFrame:
         The site (horizon).
     schedule : sequence of Period or None
         Periods with ``tilt_deg`` and ``azimuth_deg``; None follows the sun.
+    columns : sequence of str, default :data:`PERIOD_COLUMNS`
+        Which of :data:`ALL_POA_COLUMNS` to give.
 
     Returns
     -------
     pandas.DataFrame
-        As :func:`schedule_poa`.
+        As :func:`schedule_poa`, with ``columns``: irradiance as interval means
+        (W/m²), ``aoi`` in degrees at the evaluation instant.
 
     References
     ----------
@@ -390,8 +400,11 @@ def periods_poa(sky: SkyYear, site: Site, schedule) -> pd.DataFrame:
     zen = pos["apparent_zenith"].to_numpy()
     saz = pos["azimuth"].to_numpy()
     n = len(frac)
-    cols = PERIOD_COLUMNS
-    out = {c: np.zeros(n) for c in cols}
+    cols = tuple(columns)
+    unknown = sorted(set(cols) - set(ALL_POA_COLUMNS))
+    if unknown:
+        raise ValueError(f"columns: {', '.join(unknown)} not among {', '.join(ALL_POA_COLUMNS)}")
+    out = {c: (np.full(n, np.nan) if c == "aoi" else np.zeros(n)) for c in cols}
     tilt = np.zeros(n)
     azim = np.zeros(n)
     albedo = np.broadcast_to(np.asarray(sky.albedo, dtype=float), (n,))
@@ -415,7 +428,7 @@ def periods_poa(sky: SkyYear, site: Site, schedule) -> pd.DataFrame:
                              sky.dni_extra[m], albedo[m], sky.options.model,
                              sun_visible=sky.sun_visible[m], shading=shading)
         for c in cols:
-            out[c][m] = poa[c].to_numpy() * frac[m]
+            out[c][m] = poa[c].to_numpy() * (1.0 if c == "aoi" else frac[m])
         tilt[m] = t
         azim[m] = a
     index = sky.grid.start_utc.tz_convert(site.timezone)
