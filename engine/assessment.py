@@ -30,6 +30,7 @@ from .site import (
     MOUNTINGS,
     Site,
     SiteError,
+    is_site_path,
     load_demo,
     load_site_document,
     site_from_dict,
@@ -328,10 +329,7 @@ def demo_assessment(name: str) -> Assessment:
 
 def resolve_assessment(arg: str) -> Assessment:
     """An assessment from a site file path or the name of a bundled demo site."""
-    p = Path(arg)
-    if p.suffix.lower() == ".json" or p.exists() or os.sep in arg:
-        return load_assessment(p)
-    return demo_assessment(arg)
+    return load_assessment(arg) if is_site_path(arg) else demo_assessment(arg)
 
 
 __all__ = ["DEFAULT_INTERVAL_MIN", "FORMAT_NAME", "FORMAT_VERSION", "SKY_CHOICES", "Assessment",

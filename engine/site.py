@@ -547,12 +547,14 @@ def load_demo(name: str = DEFAULT_DEMO) -> Site:
         raise err.in_file(f"demo:{name}") from None
 
 
+def is_site_path(arg: str) -> bool:
+    """Whether a SITE argument names a file (else the name of a bundled demo site)."""
+    return Path(arg).suffix.lower() == ".json" or Path(arg).exists() or os.sep in arg
+
+
 def resolve_site(arg: str) -> Site:
     """A site from a file path or the name of a bundled demo site."""
-    p = Path(arg)
-    if p.suffix.lower() == ".json" or p.exists() or os.sep in arg:
-        return load_site(p)
-    return load_demo(arg)
+    return load_site(arg) if is_site_path(arg) else load_demo(arg)
 
 
 # -- typed coordinates --------------------------------------------------------
