@@ -33,6 +33,11 @@ from tiltyard.engine.site import ALBEDO_PRESETS, Plane, SiteError, parse_coordin
 from .. import places
 from ..widgets import ValidatedField, View
 
+#: How the panels on a plane are held, in the user's words (the engine's mounting kinds).
+PLANE_MOUNTINGS = (("flush on it", "flush"), ("fixed rack", "fixed-rack"),
+                   ("adjustable rack", "adjustable"), ("ground rows", "ground-rows"),
+                   ("flat-roof rows", "flat-roof-rows"))
+
 MONTHS = ("Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec")
 
 
@@ -175,8 +180,9 @@ class SiteView(View):
         # -- planes -------------------------------------------------------------
         planes = QGroupBox("Existing planes (roof slopes as they are)")
         pl = QVBoxLayout(planes)
-        self.planes = QTableWidget(0, 3)
-        self.planes.setHorizontalHeaderLabels(["Label", "Tilt (°)", "Azimuth (° from N)"])
+        self.planes = QTableWidget(0, 4)
+        self.planes.setHorizontalHeaderLabels(["Label", "Tilt (°)", "Azimuth (° from N)",
+                                               "Panels"])
         self.planes.horizontalHeader().setStretchLastSection(True)
         self.planes.setColumnWidth(0, 200)
         self.planes.verticalHeader().setVisible(False)
@@ -385,6 +391,17 @@ class SiteView(View):
         self._propose(notes=self.notes.toPlainText())
 
     # -- planes -------------------------------------------------------------
+    def _mounting_box(self, mounting: str) -> QComboBox:
+        """How the panels on a plane are held (a roof plane: flush by default)."""
+        box = QComboBox()
+        for text, key in PLANE_MOUNTINGS:
+            box.addItem(text, key)
+        box.setCurrentIndex(max(0, box.findData(mounting)))
+        box.setToolTip("Flush: panels lie on this roof plane as it is. A rack or rows: the "
+                       "plane is a frame's tilt and direction.")
+        box.currentIndexChanged.connect(lambda _i: self._planes_edited(None))
+        return box
+
     def _add_plane(self) -> None:
         site = self.ctx.site
         n = len(site.planes) + 1
@@ -412,7 +429,9 @@ class SiteView(View):
             try:
                 tilt = _number(texts[1], f"planes[{r}].tilt_deg", 0, 90, "°")
                 az = _number(texts[2], f"planes[{r}].azimuth_deg", 0, 360, "°")
-                planes.append(Plane(texts[0].strip() or f"plane {r + 1}", tilt, az))
+                box = self.planes.cellWidget(r, 3)
+                mounting = box.currentData() if box is not None else "flush"
+                planes.append(Plane(texts[0].strip() or f"plane {r + 1}", tilt, az, mounting))
             except (SiteError, ValueError) as exc:
                 self.planes_error.setText(f"row {r + 1}: {exc}")
                 self.planes_error.show()
@@ -461,11 +480,10 @@ class SiteView(View):
             use = site.monthly_ghi_kwh_m2_day is not None
             self.ghi_use.setChecked(use)
             self.ghi_months["widget"].setEnabled(use)
-            if use:
-                for e, v in zip(self.ghi_months["edits"], site.monthly_ghi_kwh_m2_day,
-                                strict=True):
-                    if not e.hasFocus():
-                        e.setText(_fmt(v, 2))
+            values = site.monthly_ghi_kwh_m2_day if use else ("",) * 12
+            for e, v in zip(self.ghi_months["edits"], values, strict=True):
+                if not e.hasFocus() or not use:     # another site's values never linger
+                    e.setText(_fmt(v, 2) if use else "")
             if self.notes.toPlainText() != site.notes:
                 self.notes.setPlainText(site.notes)
             if not self.planes.hasFocus():
@@ -474,6 +492,7 @@ class SiteView(View):
                     for c, text in enumerate((p.label, _fmt(p.tilt_deg, 2),
                                               _fmt(p.azimuth_deg, 2))):
                         self.planes.setItem(r, c, QTableWidgetItem(text))
+                    self.planes.setCellWidget(r, 3, self._mounting_box(p.mounting))
                 self.planes_error.hide()
         finally:
             self._updating = False

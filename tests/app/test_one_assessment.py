@@ -112,3 +112,33 @@ def test_the_study_editor_shows_each_sites_own_settings(qtbot, make_ctx, idle, t
     target = tmp_path / "cabin.json"
     save_assessment(ctx.assessment, target)
     assert load_assessment(target).mounting.max_positions == 4
+
+
+def test_a_new_site_shows_none_of_the_previous_sites_monthly_values(qtbot, make_ctx, idle):
+    from tiltyard.app.views.site_view import SiteView
+
+    ctx = make_ctx("larkmoor-dairy")                         # twelve monthly GHI values
+    view = SiteView(ctx)
+    qtbot.addWidget(view)
+    assert view.ghi_use.isChecked()
+    assert all(e.text() for e in view.ghi_months["edits"])
+    ctx.document.open_demo("kelpie-creek-shed")              # none
+    assert not view.ghi_use.isChecked()
+    assert all(e.text() == "" for e in view.ghi_months["edits"])
+    view.ghi_use.setChecked(True)                            # nothing of Larkmoor's applies
+    assert ctx.site.monthly_ghi_kwh_m2_day is None
+    idle(ctx.runner)
+
+
+def test_a_planes_mounting_is_edited_on_the_site_view(qtbot, make_ctx, idle):
+    from tiltyard.app.views.site_view import SiteView
+
+    ctx = make_ctx("kelpie-creek-shed")
+    view = SiteView(ctx)
+    qtbot.addWidget(view)
+    box = view.planes.cellWidget(1, 3)                       # the lean-to
+    assert box.currentData() == "flush"
+    box.setCurrentIndex(box.findData("fixed-rack"))
+    assert [p.mounting for p in ctx.site.planes] == ["flush", "fixed-rack"]
+    assert ctx.assessment.mounting_kind == "flush"           # the first plane's, for the study
+    idle(ctx.runner)
