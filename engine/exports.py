@@ -541,6 +541,9 @@ def sheet_figures(study: TiltStudy, sky: SkyYear | None = None, result=None) -> 
         ("Horizon", f"{len(site.horizon.azimuth_deg)} measured horizon points and "
                     f"{len(site.obstacles)} obstacles; azimuths clockwise from true north"),
         ("Weather data", _weather_text(opts)),
+        ("Mounting", _MOUNTING_TEXT[opts.mounting]
+                     + (f", at most {opts.max_positions} tilt positions a year"
+                        if opts.mounting == "adjustable" else "")),
         ("Study", f"objective: {objective[opts.objective]}; tilts {opts.tilt_min_deg:g}° to "
                   f"{opts.tilt_max_deg:g}° by {opts.tilt_step_deg:g}°; azimuth {az}; periods "
                   f"of at least {opts.min_days_between} days; rule: "
@@ -562,6 +565,16 @@ def sheet_figures(study: TiltStudy, sky: SkyYear | None = None, result=None) -> 
         notes=notes, turbidity_source=sky.turbidity_source,
         digest=input_digest(site, opts), version=tool_version(), basis_words=basis_words,
         clear_sky_bound_kwh_m2=bound, weather_warnings=fit)
+
+
+#: The mountings as the sheet's assumptions state them.
+_MOUNTING_TEXT = {
+    "flush": "panels flush on the roof: the roof's own tilt and direction, no seasonal "
+             "adjustment",
+    "fixed-rack": "a fixed rack: one tilt all year",
+    "adjustable": "an adjustable rack: seasonal tilt schedules",
+    "ground-rows": "fixed racks in rows on the ground",
+    "flat-roof-rows": "fixed racks in rows on a flat roof"}
 
 
 def _basis_words(sky: str) -> str:
