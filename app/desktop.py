@@ -7,7 +7,8 @@ import os
 import sys
 import threading
 
-from tiltyard.engine.site import DEFAULT_DEMO, demo_site_names, load_demo, load_site
+from tiltyard.engine.assessment import demo_assessment, load_assessment
+from tiltyard.engine.site import DEFAULT_DEMO, demo_site_names
 
 #: Set to a delay in ms to open the window, report it ready and quit (smoke tests, benchmarks).
 SMOKE_ENV = "TILTYARD_SMOKE_QUIT_MS"
@@ -76,10 +77,10 @@ def create_window(site_arg: str | None = None):
     """
     from .main_window import MainWindow
     if site_arg is None:
-        return MainWindow(load_demo(DEFAULT_DEMO), demo_name=DEFAULT_DEMO)
+        return MainWindow(demo_assessment(DEFAULT_DEMO), demo_name=DEFAULT_DEMO)
     if site_arg in demo_site_names():
-        return MainWindow(load_demo(site_arg), demo_name=site_arg)
-    return MainWindow(load_site(site_arg), site_path=site_arg)
+        return MainWindow(demo_assessment(site_arg), demo_name=site_arg)
+    return MainWindow(load_assessment(site_arg), site_path=site_arg)   # with its settings
 
 
 def run(site_arg: str | None = None, argv: list[str] | None = None) -> int:

@@ -41,7 +41,7 @@ SITE_FILTER = "Tiltyard site (*.json);;All files (*)"
 
 
 class MainWindow(QMainWindow):
-    def __init__(self, site: Site | None = None, site_path: str | None = None,
+    def __init__(self, site: Site | Assessment | None = None, site_path: str | None = None,
                  demo_name: str | None = None):
         super().__init__()
         self.setWindowTitle("Tiltyard")

@@ -142,3 +142,20 @@ def test_a_planes_mounting_is_edited_on_the_site_view(qtbot, make_ctx, idle):
     assert [p.mounting for p in ctx.site.planes] == ["flush", "fixed-rack"]
     assert ctx.assessment.mounting_kind == "flush"           # the first plane's, for the study
     idle(ctx.runner)
+
+
+def test_the_window_opens_a_site_with_its_saved_settings(qtbot, tmp_path):
+    from tiltyard.app.desktop import create_window
+    from tiltyard.engine.assessment import Mounting, demo_assessment
+
+    w = create_window("tarnvik-cabin")                       # the demo file's own settings
+    qtbot.addWidget(w)
+    a = w.ctx.assessment
+    assert (a.study.objective, a.mounting) == ("worst-month", Mounting("adjustable", 4))
+    path = tmp_path / "lark.json"
+    save_assessment(demo_assessment("larkmoor-dairy").with_changes(model="isotropic"), path)
+    w2 = create_window(str(path))
+    qtbot.addWidget(w2)
+    assert w2.ctx.assessment.model == "isotropic" and w2.document.path == path
+    w.runner.shutdown(60000)
+    w2.runner.shutdown(60000)
