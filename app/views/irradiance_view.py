@@ -407,7 +407,7 @@ class IrradianceView(View):
             self.sky_note.setText(str(exc))
             self.sky_note.setToolTip("")
             return
-        text = f"Sky basis {basis.words} ({basis.reason})."
+        text = f"Sky basis — {basis.words} ({basis.reason})."
         tip = ""
         if basis.kind == "monthly":
             text += (" A synthetic hourly year scaled to the site's monthly mean daily GHI: "
