@@ -243,9 +243,9 @@ def _tiles(ctx: _Ctx) -> list[tuple[str, str, str]]:
                       f"{fp.azimuth_deg:g}°)", "key.share_best"))
     elif ctx.rec is fixed:
         two = next((r for r in d["options"] if r["kind"] == "two-season"), None)
-        cap = ("over the fixed optimum: this is the fixed optimum; "
-               + (f"a two-season schedule would add {pct(two['gain_vs_fixed_optimal_pct'])} %"
-                  if two is not None else "the mounting takes no seasonal adjustment"))
+        cap = (f"over the fixed optimum: this is the fixed optimum; a two-season schedule "
+               f"would add {pct(two['gain_vs_fixed_optimal_pct'])} %" if two is not None
+               else "over the fixed optimum: this is it (a fixed mounting)")
         tiles.append((f"{pct(rec['gain_vs_fixed_optimal_pct'])} %", cap, "key.gain_fixed"))
     else:
         cap = (f"over the best fixed plane ({fp.tilt_deg:g}° facing {fp.azimuth_deg:g}°, "
