@@ -18,6 +18,7 @@ from pvlib import spa as _spa
 
 from .site import Site
 from .timegrid import REFERENCE_YEAR, TimeGrid
+from .words import day_month
 
 #: Apparent elevation of the sun's centre at sunrise and sunset: refraction
 #: (34') plus the solar semi-diameter (16') (Reda & Andreas 2008, App. A.2).
@@ -437,7 +438,7 @@ def standard_path_dates(site: Site, year: int = REFERENCE_YEAR) -> list[tuple[st
         out.append((label, ts.tz_convert(site.timezone).tz_localize(None).normalize()))
     for m in range(1, 13):
         d = pd.Timestamp(year, m, 21)
-        out.append((d.strftime("%d %b"), d))
+        out.append((day_month(d), d))
     return out
 
 

@@ -29,11 +29,10 @@ from PySide6.QtWidgets import (
 )
 
 from tiltyard.engine.site import ALBEDO_PRESETS, Plane, SiteError, parse_coordinate
+from tiltyard.engine.words import MONTH_ABBR
 
 from .. import places
 from ..widgets import ValidatedField, View
-
-MONTHS = ("Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec")
 
 
 def _number(text: str, field: str, lo: float, hi: float, unit: str) -> float:
@@ -239,7 +238,7 @@ class SiteView(View):
         g.setContentsMargins(0, 0, 0, 0)
         g.setHorizontalSpacing(6)
         edits = []
-        for i, m in enumerate(MONTHS):
+        for i, m in enumerate(MONTH_ABBR):
             lab = QLabel(m)
             lab.setAlignment(Qt.AlignmentFlag.AlignCenter)
             e = QLineEdit()
@@ -258,7 +257,7 @@ class SiteView(View):
 
     def _read_twelve(self, group):
         values = []
-        for m, e in zip(MONTHS, group["edits"], strict=True):
+        for m, e in zip(MONTH_ABBR, group["edits"], strict=True):
             try:
                 values.append(group["parse"](e.text()))
             except SiteError as exc:

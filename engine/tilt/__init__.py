@@ -24,7 +24,6 @@ yields per option), ``monthly_check`` (the Klein monthly-mean cross-check) and
 from .monthly_check import KLEIN_METHOD, MonthlyMethodOption, monthly_method_comparison
 from .monthly_check import _days_in_period_by_month as _days_in_period_by_month
 from .options import (
-    MONTH_NAMES,
     MOUNTINGS,
     OPTION_KINDS,
     SEASONAL_KINDS,
@@ -37,7 +36,7 @@ from .result import TiltStudy
 from .study import OptionRows, OptionYield, periods_poa, schedule_poa, tilt_study
 
 # the two private names above stay importable here for the tests
-__all__ = ["KLEIN_METHOD", "MONTH_NAMES", "MOUNTINGS", "OPTION_KINDS", "SEASONAL_KINDS",
+__all__ = ["KLEIN_METHOD", "MOUNTINGS", "OPTION_KINDS", "SEASONAL_KINDS",
            "MonthlyMethodOption", "OptionRows", "OptionYield", "Period", "StudyOption",
            "StudyOptions", "TiltStudy", "monthly_method_comparison", "periods_poa",
            "schedule_poa", "tilt_study"]

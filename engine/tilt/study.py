@@ -15,9 +15,9 @@ from ..manyplane import many_plane_daily, many_plane_terms
 from ..plane import poa_components
 from ..site import Site
 from ..skyyear import SkyYear, sky_year
+from ..words import MONTH_ABBR
 from .monthly_check import monthly_method_comparison
 from .options import (
-    MONTH_NAMES,
     SEASONAL_KINDS,
     Period,
     StudyOption,
@@ -112,7 +112,7 @@ def tilt_study(site: Site, opts: StudyOptions | None = None,
     if opts.irradiance.sky == "clear":
         warnings.append("Clear-sky basis: every figure is an upper bound, not an expected "
                         "yield; cloudier months favour flatter tilts.")
-    inactive = [MONTH_NAMES[m][:3] for m in range(12) if not st.active[m]]
+    inactive = [MONTH_ABBR[m] for m in range(12) if not st.active[m]]
     if inactive:
         warnings.append("No useful daylight in " + ", ".join(inactive) + " (polar night or "
                         "near it): those months are left out of the worst-month objective.")
