@@ -18,6 +18,7 @@ from dataclasses import replace
 from pathlib import Path
 
 from tiltyard import __version__
+from tiltyard.engine.words import MONTH_ABBR, model_name, mounting_words, schedule_words
 
 EXIT_OK, EXIT_FAULT, EXIT_INPUT = 0, 1, 2
 SITE_HELP = "a site file (.json) or the name of a bundled demo site (see 'tiltyard sites')"
@@ -379,18 +380,9 @@ def _weather_report(result) -> None:
 
 def _print_basis(result) -> None:
     b = result.basis
-    print(f"  Sky basis: {b.words} ({b.reason}); mounting: {result.mounting}")
+    print(f"  Sky basis: {b.words} ({b.reason}); mounting: {mounting_words(result.mounting)}")
     for w in result.weather_warnings:
         print(f"  Warning (accepted): {w}")
-
-
-def _schedule_words(opt) -> str:
-    if opt.kind == "two-axis":
-        return "follows the sun"
-    if len(opt.schedule) == 1:
-        p = opt.schedule[0]
-        return f"{p.tilt_deg:g} deg all year, azimuth {p.azimuth_deg:g}"
-    return "; ".join(f"{p.tilt_deg:g} deg {p.start}..{p.end}" for p in opt.schedule)
 
 
 def cmd_study(args) -> int:
@@ -411,7 +403,7 @@ def cmd_study(args) -> int:
     d = st.to_json_dict()
     print(f"Tilt study for {site.name}  ({site.latitude_deg:.4f}, {site.longitude_deg:.4f})")
     _print_basis(result)
-    print(f"  model: {opts.irradiance.model}, year {opts.irradiance.year}, "
+    print(f"  model: {model_name(opts.irradiance.model)}, year {opts.irradiance.year}, "
           f"{opts.irradiance.step_min}-min intervals; objective: {opts.objective_label} "
           f"({d['objective_units']}); tilts {opts.tilt_min_deg:g}-{opts.tilt_max_deg:g} by "
           f"{opts.tilt_step_deg:g} deg; azimuth "
@@ -434,7 +426,7 @@ def cmd_study(args) -> int:
     print()
     print("  Schedules:")
     for opt in st.options:
-        print(f"    {opt.label[:40]:40} {_schedule_words(opt)}")
+        print(f"    {opt.label[:40]:40} {schedule_words(opt, opts.irradiance.year, plain=True)}")
     _print_recommendation(result, st, d)
     _print_rows_and_yield(st, d)
     for w in st.warnings:
@@ -443,17 +435,21 @@ def cmd_study(args) -> int:
     return EXIT_OK
 
 
+def _rec_words(st) -> str:
+    return schedule_words(st.recommended, st.options_used.irradiance.year, plain=True)
+
+
 def _print_recommendation(result, st, d) -> None:
     rec = st.recommended
     print()
     if st.mounting == "flush":
         loss = result.option_horizon_loss(rec)
-        print(f"  This roof as it is: {rec.label} - {_schedule_words(rec)}: "
+        print(f"  This roof as it is: {rec.label} - {_rec_words(st)}: "
               f"{rec.annual_kwh_m2:.0f} kWh/m2 a year, {st.share_pct(rec, 'fixed-optimal'):.0f} "
               f"% of the best plane for the site on the {st.options_used.objective_label} "
               f"objective, {loss.loss_pct:.1f} % lost to the horizon")
     else:
-        print(f"  Recommended: {rec.label} - {_schedule_words(rec)}")
+        print(f"  Recommended: {rec.label} - {_rec_words(st)}")
     print(f"  (rule: {st.recommendation_rule})")
     bound = result.clear_sky_bound()
     if bound is not None:
@@ -610,10 +606,10 @@ def cmd_irradiance(args) -> int:
     _print_basis(result)
     print(f"  tilt {res.surface_tilt:g} deg, azimuth {res.surface_azimuth:g} deg "
           "(clockwise from north)")
-    sky_text = f"clear ({opts.clearsky_model})" if opts.sky == "clear" else opts.sky
+    sky_text = f"clear ({model_name(opts.clearsky_model)})" if opts.sky == "clear" else opts.sky
     if opts.sky == "file":
         sky_text = f"weather file {result.weather.source}"
-    print(f"  sky: {sky_text}, transposition: {opts.model}, "
+    print(f"  sky: {sky_text}, transposition: {model_name(opts.model)}, "
           f"solar constant {opts.solar_constant_w_m2:g} W/m2, year {opts.year}, "
           f"{opts.step_min}-min intervals")
     print(f"  Linke turbidity: {res.turbidity_source}")
@@ -625,10 +621,9 @@ def cmd_irradiance(args) -> int:
             ("sky dif", "poa_sky_diffuse_kwh_m2"), ("ground", "poa_ground_kwh_m2"),
             ("hor loss", "horizon_loss_kwh_m2")]
     print("  month  " + " ".join(f"{c:>9}" for c, _ in cols) + "   (kWh/m2)")
-    names = ["Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"]
     for m in range(1, 13):
         row = res.monthly.loc[m]
-        print(f"  {names[m - 1]:5}  " + " ".join(f"{row[k]:9.1f}" for _, k in cols))
+        print(f"  {MONTH_ABBR[m - 1]:5}  " + " ".join(f"{row[k]:9.1f}" for _, k in cols))
     print("  year   " + " ".join(f"{res.annual[k]:9.1f}" for _, k in cols))
     print()
     print(f"  Horizon loss {res.horizon_loss_pct:.1f} % of the open-horizon plane irradiation: "

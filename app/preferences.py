@@ -4,15 +4,13 @@ from __future__ import annotations
 
 from PySide6.QtWidgets import QComboBox, QDialog, QDialogButtonBox, QFormLayout, QLineEdit
 
-from .settings import MODEL_CHOICES, PAPER_CHOICES, SKY_CHOICES, TIME_CHOICES, Preferences
+from tiltyard.engine.words import MODEL_NAMES, SKY_CHOICE_WORDS, TIME_BASIS_WORDS
 
-_LABELS = {
-    "auto": "best available (weather file, else monthly values, else clear sky)",
-    "clear": "clear sky (upper bound)", "monthly": "monthly GHI values",
-    "perez": "Perez 1990", "haydavies": "Hay-Davies", "isotropic": "isotropic (Liu-Jordan)",
-    "clock": "local clock time (with daylight saving)", "standard": "local standard time",
-    "solar": "apparent solar time", "a4": "A4", "letter": "US Letter",
-}
+from .settings import MODEL_CHOICES, PAPER_CHOICES, SKY_CHOICES, TIME_CHOICES, Preferences
+from .sheet.content import PAPERS
+
+_LABELS = {**SKY_CHOICE_WORDS, **MODEL_NAMES, **TIME_BASIS_WORDS,
+           **{key: name for key, (name, _w, _h) in PAPERS.items()}}
 
 
 class PreferencesDialog(QDialog):

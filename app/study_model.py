@@ -1,105 +1,37 @@
-"""The tilt study's options as a Qt table, and the words used to describe them.
+"""The tilt study's options as a Qt table.
 
 Nothing here computes irradiation: the rows are the figures of an engine
-:class:`~tiltyard.engine.tilt.TiltStudy`, formatted for reading and copying.
+:class:`~tiltyard.engine.tilt.TiltStudy`, formatted for reading and copying in
+the words of :mod:`tiltyard.engine.words`.
 """
 
 from __future__ import annotations
 
 import functools
-import math
-from datetime import date, timedelta
+from datetime import date
 
 from PySide6.QtCore import QSortFilterProxyModel, Qt
 from PySide6.QtGui import QColor, QFont, QStandardItem, QStandardItemModel
 
-from . import theme
+from tiltyard.engine.words import degree_text, option_name, schedule_words
 
-MONTH_ABBR = ("Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov",
-              "Dec")
-COMPASS_16 = ("N", "NNE", "NE", "ENE", "E", "ESE", "SE", "SSE", "S", "SSW", "SW", "WSW", "W",
-              "WNW", "NW", "NNW")
+from . import theme
 
 #: Role carrying the numeric value a column sorts by.
 SORT_ROLE = Qt.ItemDataRole.UserRole + 1
 #: Role carrying the option kind (``"two-season"``, ...).
 KIND_ROLE = Qt.ItemDataRole.UserRole + 2
 
-#: Short names for the schedule timeline and compact places.
-SHORT_NAMES = {"horizontal": "Horizontal", "rule-of-thumb": "Rule of thumb",
-               "fixed-optimal": "Optimal fixed", "two-season": "Two-season",
-               "four-season": "Four-season", "monthly": "Monthly",
-               "two-axis": "Two-axis (ceiling)"}
-
-#: Names in the options table (the engine's full label is in the tooltip).
-TABLE_NAMES = {"horizontal": "Horizontal", "rule-of-thumb": "Rule of thumb",
-               "fixed-optimal": "Optimal fixed", "two-season": "Two-season",
-               "four-season": "Four-season", "monthly": "Monthly",
-               "two-axis": "Two-axis (ceiling)"}
-
 OBJECTIVE_HEADERS = {"worst-month": "Worst month (kWh/m²)",
                      "months": "Chosen months (kWh/m²)"}
 
 
-# -- words ----------------------------------------------------------------------
-
-def compass(azimuth_deg: float) -> str:
-    """16-point compass name of an azimuth (degrees clockwise from north)."""
-    return COMPASS_16[int(math.floor((azimuth_deg % 360.0) / 22.5 + 0.5)) % 16]
-
-
-def degree_text(label: str) -> str:
-    """An engine label with ``deg`` written as the degree sign."""
-    return label.replace(" deg", "°")
-
+# -- dates ----------------------------------------------------------------------
 
 def day_of_year(mmdd: str, year: int) -> int:
     """0-based day of ``year`` of a ``"MM-DD"`` date."""
     m, d = (int(x) for x in mmdd.split("-"))
     return (date(year, m, d) - date(year, 1, 1)).days
-
-
-def day_words(mmdd: str, year: int) -> str:
-    """``"04-01"`` as ``"1 Apr"``."""
-    m, d = (int(x) for x in mmdd.split("-"))
-    return f"{date(year, m, d).day} {MONTH_ABBR[m - 1]}"
-
-
-def _whole_month(period, year: int) -> int | None:
-    """The month number if the period is exactly one calendar month."""
-    sm, sd = (int(x) for x in period.start.split("-"))
-    em, ed = (int(x) for x in period.end.split("-"))
-    if sd != 1 or sm != em:
-        return None
-    last = (date(year + (sm == 12), sm % 12 + 1, 1) - timedelta(days=1)).day
-    return sm if ed == last else None
-
-
-def _tilt(v: float) -> str:
-    return f"{v:.0f}°" if abs(v - round(v)) < 0.05 else f"{v:.1f}°"
-
-
-def schedule_words(opt, year: int) -> str:
-    """A schedule in words: ``"34° 1 Oct–31 Mar, 12° 1 Apr–30 Sep; facing 180° (S)"``."""
-    if opt.kind == "two-axis":
-        return "follows the sun all year (two-axis tracker)"
-    sched = opt.schedule
-    az = sched[0].azimuth_deg
-    facing = "" if az is None else f"facing {az:.0f}° ({compass(az)})"
-    if len(sched) == 1:
-        return f"{_tilt(sched[0].tilt_deg)} all year, {facing}"
-    months = [_whole_month(p, year) for p in sched]
-    if all(m is not None for m in months):
-        parts = [f"{MONTH_ABBR[m - 1]} {_tilt(p.tilt_deg)}"
-                 for m, p in zip(months, sched, strict=True)]
-    else:
-        parts = [f"{_tilt(p.tilt_deg)} {day_words(p.start, year)}–{day_words(p.end, year)}"
-                 for p in sched]
-    return ", ".join(parts) + (f"; {facing}" if facing else "")
-
-
-def short_name(opt) -> str:
-    return SHORT_NAMES.get(opt.kind, opt.label)
 
 
 # -- the table -------------------------------------------------------------------
@@ -169,7 +101,7 @@ class StudyTableModel(QStandardItemModel):
             g_h = study.gain_pct(opt, "horizontal")
             g_f = study.gain_pct(opt, "fixed-optimal")
             share = study.share_pct(opt, "two-axis")
-            label = TABLE_NAMES.get(opt.kind, opt.label)
+            label = option_name(opt)      # the engine's full label is in the tooltip
             if opt.kind == "fixed-optimal" and study.mounting == "flush":
                 label = "Best plane"      # a reference for the roof as it is
             if opt is rec:
@@ -217,5 +149,4 @@ class StudySortProxy(QSortFilterProxyModel):
 
 
 __all__ = ["COLUMNS", "KIND_ROLE", "SORT_ROLE", "StudySortProxy", "StudyTableModel",
-           "compass", "day_of_year", "day_words", "degree_text", "schedule_words",
-           "short_name"]
+           "day_of_year"]

@@ -58,6 +58,7 @@ from .weather import (
     read_weather_csv,
     read_weather_file,
 )
+from .words import MONTH_ABBR, MONTH_NAMES
 
 #: Note attached to results of the ``monthly`` basis.
 MONTHLY_NOTE = ("synthetic hourly year from monthly GHI: clear-sky shape scaled per month, "
@@ -221,14 +222,14 @@ def scale_to_monthly_ghi(ghi_shape, month, kwh_weight, monthly_ghi_kwh_m2_day, y
         most = float((c * wm).sum())
         if want > most * (1.0 + 1e-12):
             raise ValueError(
-                f"monthly_ghi_kwh_m2_day[{m - 1}] ({calendar.month_name[m]}) = "
+                f"monthly_ghi_kwh_m2_day[{m - 1}] ({MONTH_NAMES[m - 1]}) = "
                 f"{target[m - 1]:g} kWh/m2/day: must be at most the month's extraterrestrial "
                 f"horizontal irradiation, {most / days[m - 1]:.4g} kWh/m2/day here")
         if want == 0.0:
             continue
         if float((g * wm).sum()) <= 0.0:
             raise ValueError(
-                f"monthly_ghi_kwh_m2_day[{m - 1}] ({calendar.month_name[m]}) = "
+                f"monthly_ghi_kwh_m2_day[{m - 1}] ({MONTH_NAMES[m - 1]}) = "
                 f"{target[m - 1]:g} kWh/m2/day: the sun does not rise in this month here, "
                 "so it must be 0")
         out[sel] = _scale_with_cap(g, c, wm, want)
@@ -479,7 +480,7 @@ def monthly_clearness_index(ghi, extraterrestrial_horizontal, month, kwh_weight)
 
 
 def _month_list(mask) -> str:
-    return ", ".join(calendar.month_abbr[i + 1] for i in np.flatnonzero(mask))
+    return ", ".join(MONTH_ABBR[i] for i in np.flatnonzero(mask))
 
 
 # -- weather file basis -----------------------------------------------------------

@@ -32,6 +32,7 @@ from .skyyear import IrradianceOptions, SkyYear, sky_year
 from .sunchart import sun_chart
 from .tilt import periods_poa, tilt_study
 from .weather import WeatherData, finding_text, summary_text
+from .words import basis_words
 
 #: A weather file recorded further than this from the site is refused for the study, km.
 WEATHER_DISTANCE_LIMIT_KM = 50.0
@@ -84,12 +85,8 @@ class Basis:
 
     @property
     def words(self) -> str:
-        """The basis as a header says it."""
-        if self.kind == "file":
-            return f"on the weather file {self.weather_name}"
-        if self.kind == "monthly":
-            return "on the site's monthly irradiation values"
-        return "clear sky: upper bound only"
+        """The basis as a header says it (:func:`tiltyard.engine.words.basis_words`)."""
+        return basis_words(self.kind, self.weather_name)
 
     def to_json_dict(self) -> dict:
         return {"used": self.kind, "requested": self.requested, "reason": self.reason,

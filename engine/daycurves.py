@@ -40,6 +40,7 @@ from .sky import clear_sky, extraterrestrial_interval_mean, extraterrestrial_nor
 from .skyyear import IrradianceOptions, SkyYear, sky_year
 from .sun import evaluation_points
 from .timegrid import MIDPOINT_CONVENTION, TimeGrid, check_step_min, local_date
+from .words import basis_label, plane_words, schedule_summary
 
 #: Interval of a clear-sky day, minutes (smooth curves; 144 points a day).
 DAY_STEP_MIN = 10
@@ -68,12 +69,11 @@ TOTAL_KEYS = {
 
 
 def sky_basis_label(options: IrradianceOptions) -> str:
-    """Plain words for the sky basis of ``options`` (clear sky says it is an upper bound)."""
-    if options.sky == "file":
-        return f"weather file {options.weather.source}"
-    if options.sky == "monthly":
-        return "monthly GHI values"
-    return "clear sky (upper bound)"
+    """Plain words for the sky basis of ``options`` (clear sky says it is an upper bound).
+
+    :func:`tiltyard.engine.words.basis_label` of the options' sky.
+    """
+    return basis_label(options.sky, options.weather.source if options.sky == "file" else None)
 
 
 # -- one day ------------------------------------------------------------------------
@@ -411,26 +411,6 @@ class OptionTotals:
         return np.asarray(self.monthly_kwh_m2, dtype=float) / days
 
 
-def _plane_text(tilt: float, azimuth: float) -> str:
-    if tilt == 0:
-        return "0° (flat)"
-    return f"{tilt:g}° facing {azimuth:g}°"
-
-
-def _schedule_text(schedule) -> str:
-    if len(schedule) == 1:
-        p = schedule[0]
-        if p.tilt_deg is None:
-            return "follows the sun"
-        return _plane_text(p.tilt_deg, p.azimuth_deg)
-    tilts = [p.tilt_deg for p in schedule]
-    if len(schedule) <= 4:
-        which = "/".join(f"{t:g}" for t in tilts) + "°"
-    else:
-        which = f"{min(tilts):g}° to {max(tilts):g}°"
-    return f"{len(schedule)} periods: {which} facing {schedule[0].azimuth_deg:g}°"
-
-
 #: Study kinds already covered by the site's own horizontal and planes.
 _SITE_KINDS = ("horizontal", "plane")
 
@@ -482,7 +462,7 @@ def compare_options(site: Site, options: IrradianceOptions | None = None, study=
         monthly = r.monthly["poa_kwh_m2"].to_numpy(dtype=float)
         out.append(OptionTotals(name, kind, monthly, float(monthly.sum()),
                                 float(r.horizon_loss_pct), label, options.year, False,
-                                _plane_text(tilt, az)))
+                                plane_words(tilt, az)))
     if study is not None:
         report(0.8, "tilt study options")
         s_opts = study.options_used.irradiance
@@ -496,7 +476,7 @@ def compare_options(site: Site, options: IrradianceOptions | None = None, study=
                 loss = schedule_horizon_loss(s_sky, opt.label, opt.schedule).loss_pct
             monthly = np.asarray(opt.monthly_kwh_m2, dtype=float)
             out.append(OptionTotals(opt.label, opt.kind, monthly, float(opt.annual_kwh_m2), loss,
-                                    s_label, s_opts.year, True, _schedule_text(opt.schedule)))
+                                    s_label, s_opts.year, True, schedule_summary(opt.schedule)))
     report(1.0, "done")
     return tuple(out)
 

@@ -37,7 +37,6 @@ from .skyyear import SkyYear, sky_year
 from .sunchart import SunChart, sun_chart
 from .tilt import (
     KLEIN_METHOD,
-    MONTH_NAMES,
     OPTION_KINDS,
     StudyOption,
     StudyOptions,
@@ -46,9 +45,15 @@ from .tilt import (
     tilt_study,
 )
 from .timegrid import MIDPOINT_CONVENTION
-
-#: Month abbreviations used as CSV row labels.
-MONTH_ABBR = tuple(m[:3] for m in MONTH_NAMES)
+from .words import (
+    MONTH_ABBR,
+    basis_words,
+    degree_text,
+    model_name,
+    mounting_sentence,
+    objective_words,
+    schedule_code,
+)
 
 #: What the sheet states besides the standing caution, in this order.
 SHEET_CAUTIONS = (
@@ -112,14 +117,6 @@ def _unique(names) -> list[str]:
     return out
 
 
-def _schedule_code(sched: list) -> str:
-    """A schedule as ``MM-DD..MM-DD tilt/azimuth`` periods, ``;``-separated."""
-    if len(sched) == 1 and sched[0]["tilt_deg"] is None:
-        return "tracking"
-    return "; ".join(f"{p['start']}..{p['end']} {p['tilt_deg']:g}/{p['azimuth_deg']:g}"
-                     for p in sched)
-
-
 def options_table(study: TiltStudy) -> pd.DataFrame:
     """The options compared, one row each, with the JSON document's values.
 
@@ -134,7 +131,7 @@ def options_table(study: TiltStudy) -> pd.DataFrame:
     for r in d["options"]:
         rows.append({
             "label": r["label"], "kind": r["kind"], "recommended": r["label"] == d["recommended"],
-            "schedule": _schedule_code(r["schedule"]), "annual_kwh_m2": r["annual_kwh_m2"],
+            "schedule": schedule_code(r["schedule"]), "annual_kwh_m2": r["annual_kwh_m2"],
             "objective_value_kwh_m2": r["objective_value_kwh_m2"],
             "gain_vs_horizontal_pct": r["gain_vs_horizontal_pct"],
             "gain_vs_fixed_optimal_pct": r["gain_vs_fixed_optimal_pct"],
@@ -437,7 +434,7 @@ def _albedo_text(site: Site) -> str:
 def _sky_text(opts: StudyOptions, study: TiltStudy) -> str:
     irr = opts.irradiance
     if irr.sky == "clear":
-        return (f"clear sky every day ({MODEL_NAMES[irr.clearsky_model]} model): an upper "
+        return (f"clear sky every day ({model_name(irr.clearsky_model)} model): an upper "
                 "bound, not an "
                 "expected yield; real skies give less, and cloudier months favour flatter "
                 "tilts")
@@ -465,23 +462,17 @@ def _weather_text(opts: StudyOptions) -> str:
             + (f"; and {more} more (see the JSON export)" if more > 0 else ""))
 
 
-#: Names of the models as the trade writes them.
-MODEL_NAMES = {"perez": "Perez 1990", "haydavies": "Hay-Davies", "isotropic":
-               "isotropic sky (Liu-Jordan)", "ineichen": "Ineichen-Perez",
-               "simplified_solis": "simplified Solis", "haurwitz": "Haurwitz"}
-
-
 def _models_text(opts: StudyOptions, study: TiltStudy) -> list[tuple[str, str]]:
     refs = model_references()
     irr = opts.irradiance
     out = [("Solar position", "NREL SPA: " + refs["solar position"])]
     if irr.sky in ("clear", "monthly"):
-        out.append(("Clear sky", f"{MODEL_NAMES[irr.clearsky_model]}: "
+        out.append(("Clear sky", f"{model_name(irr.clearsky_model)}: "
                     + refs[f"clear sky: {irr.clearsky_model}"]))
     if irr.sky in ("monthly", "file"):
         out.append(("Beam and diffuse", "Erbs, D. G., Klein, S. A. & Duffie, J. A. (1982). "
                                         "Solar Energy 28(4), 293-302, where only GHI is given"))
-    out.append(("Transposition", f"{MODEL_NAMES[irr.model]}: " + refs[f"transposition: {irr.model}"]
+    out.append(("Transposition", f"{model_name(irr.model)}: " + refs[f"transposition: {irr.model}"]
                 + " Horizon: beam and circumsolar light only while the sun is above the site "
                   "horizon; sky diffuse scaled by each plane's sky-view factor; ground-reflected "
                   "light unobstructed."))
@@ -526,9 +517,6 @@ def sheet_figures(study: TiltStudy, sky: SkyYear | None = None, result=None) -> 
     loss = option_horizon_loss(sky, site, study.recommended)
     irr = opts.irradiance
     az = "free (chosen by the study)" if opts.azimuth_deg is None else f"{opts.azimuth_deg:g}°"
-    objective = {"annual": "the annual total", "worst-month": "the weakest month",
-                 "months": "the total of months "
-                           + ", ".join(MONTH_ABBR[int(m) - 1] for m in opts.months)}
     assumptions = [
         ("Sky basis", _sky_text(opts, study)),
         *_models_text(opts, study),
@@ -541,18 +529,18 @@ def sheet_figures(study: TiltStudy, sky: SkyYear | None = None, result=None) -> 
         ("Horizon", f"{len(site.horizon.azimuth_deg)} measured horizon points and "
                     f"{len(site.obstacles)} obstacles; azimuths clockwise from true north"),
         ("Weather data", _weather_text(opts)),
-        ("Mounting", _MOUNTING_TEXT[opts.mounting]
+        ("Mounting", mounting_sentence(opts.mounting)
                      + (f", at most {opts.max_positions} tilt positions a year"
                         if opts.mounting == "adjustable" else "")),
-        ("Study", f"objective: {objective[opts.objective]}; tilts {opts.tilt_min_deg:g}° to "
+        ("Study", f"objective: {objective_words(opts.objective, opts.months)}; tilts {opts.tilt_min_deg:g}° to "
                   f"{opts.tilt_max_deg:g}° by {opts.tilt_step_deg:g}°; azimuth {az}; periods "
                   f"of at least {opts.min_days_between} days; rule: "
-                  + study.recommendation_rule.replace(" deg", "°")),
+                  + degree_text(study.recommendation_rule)),
     ]
     notes = tuple(w for w in study.warnings)
-    basis_words, bound, fit = _basis_words(irr.sky), None, ()
+    basis, bound, fit = basis_words(irr.sky), None, ()
     if result is not None:
-        basis_words = result.basis.words
+        basis = result.basis.words
         fit = tuple(result.weather_warnings)
         notes = fit + notes
         b = result.clear_sky_bound()
@@ -563,26 +551,11 @@ def sheet_figures(study: TiltStudy, sky: SkyYear | None = None, result=None) -> 
         horizon_loss=loss, options=options_table(study), monthly=monthly_table(study),
         assumptions=tuple(assumptions), cautions=SHEET_CAUTIONS,
         notes=notes, turbidity_source=sky.turbidity_source,
-        digest=input_digest(site, opts), version=tool_version(), basis_words=basis_words,
+        digest=input_digest(site, opts), version=tool_version(), basis_words=basis,
         clear_sky_bound_kwh_m2=bound, weather_warnings=fit)
 
 
-#: The mountings as the sheet's assumptions state them.
-_MOUNTING_TEXT = {
-    "flush": "panels flush on the roof: the roof's own tilt and direction, no seasonal "
-             "adjustment",
-    "fixed-rack": "a fixed rack: one tilt all year",
-    "adjustable": "an adjustable rack: seasonal tilt schedules",
-    "ground-rows": "fixed racks in rows on the ground",
-    "flat-roof-rows": "fixed racks in rows on a flat roof"}
-
-
-def _basis_words(sky: str) -> str:
-    return {"clear": "clear sky: upper bound only", "monthly": "on the site's monthly "
-            "irradiation values", "file": "on the weather file"}[sky]
-
-
-__all__ = ["MODEL_NAMES", "MONTH_ABBR", "SHEET_CAUTIONS", "check_option_kinds",
+__all__ = ["SHEET_CAUTIONS", "check_option_kinds",
            "SUN_STEP_MIN", "SheetData", "SheetFigures", "sheet_data",
            "hourly_csv_text", "hourly_poa_table", "input_digest",
            "monthly_csv_text", "monthly_table", "option_horizon_loss", "options_csv_text",

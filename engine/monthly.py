@@ -37,6 +37,7 @@ from tiltyard.engine.geometry import (
     incidence_coefficients,
     sunset_hour_angle_deg,
 )
+from tiltyard.engine.words import MONTH_ABBR
 
 #: Range of monthly clearness index over which Erbs et al. (1982) fitted their
 #: monthly correlation (Duffie & Beckman 2013, sec. 2.12).
@@ -45,8 +46,6 @@ ERBS_MONTHLY_KT_RANGE = (0.3, 0.8)
 #: Sunset hour angle (degrees) that separates the two seasonal branches of the
 #: Erbs et al. (1982) monthly correlation (Duffie & Beckman 2013, eq. 2.12.2).
 ERBS_SUNSET_HOUR_ANGLE_SPLIT_DEG = 81.4
-
-MONTH_ABBREVIATIONS = tuple("Jan Feb Mar Apr May Jun Jul Aug Sep Oct Nov Dec".split())
 
 _J_PER_KWH = 3.6e6
 
@@ -376,7 +375,7 @@ def klein_monthly_tilted(
     for i, value in enumerate(rho):
         if not 0.0 <= value <= 1.0:
             raise ValueError(
-                f"albedo[{MONTH_ABBREVIATIONS[i]}] = {float(value)!r} is outside the allowed "
+                f"albedo[{MONTH_ABBR[i]}] = {float(value)!r} is outside the allowed "
                 "range 0 <= value <= 1"
             )
 
@@ -385,7 +384,7 @@ def klein_monthly_tilted(
     h0 = monthly_mean_extraterrestrial_kwh_m2_day(lat, sc)
     polar_night = h0 <= 0.0
     for i in range(12):
-        month = MONTH_ABBREVIATIONS[i]
+        month = MONTH_ABBR[i]
         if polar_night[i]:
             if ghi[i] != 0.0:
                 raise ValueError(
@@ -413,7 +412,7 @@ def klein_monthly_tilted(
     ground = ghi * rho * f_ground
 
     notes = []
-    for i, month in enumerate(MONTH_ABBREVIATIONS):
+    for i, month in enumerate(MONTH_ABBR):
         if polar_night[i]:
             notes.append(
                 f"{month}: polar night at latitude {lat:.2f} deg; no irradiation on any surface."
@@ -526,7 +525,7 @@ def _twelve(name, value, allow_scalar=False):
     if bad.size:
         i = int(bad[0])
         raise ValueError(
-            f"{name}[{MONTH_ABBREVIATIONS[i]}] = {float(arr[i])!r} is not a finite number"
+            f"{name}[{MONTH_ABBR[i]}] = {float(arr[i])!r} is not a finite number"
         )
     return arr.copy()
 

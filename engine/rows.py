@@ -39,6 +39,7 @@ from scipy.optimize import brentq, minimize_scalar
 from .site import Site
 from .sun import RISE_SET_ELEVATION_DEG, delta_t_s, solar_position, sun_events
 from .timegrid import REFERENCE_YEAR, local_date
+from .words import day_month
 
 #: Latitude of the tropics, degrees: the obliquity of the ecliptic, about
 #: 23 deg 26' (Meeus, Astronomical Algorithms, 1998, ch. 22). Between the
@@ -246,16 +247,16 @@ def default_design_date(site: Site, azimuth_deg: float,
     hemi = "south" if site.latitude_deg < 0 else "north"
     if abs(site.latitude_deg) >= TROPIC_LATITUDE_DEG:
         return winter, (f"winter solstice of the {hemi}ern hemisphere "
-                        f"({winter.strftime('%d %B')})")
+                        f"({day_month(winter, full=True)})")
     k_june = _noon_front_term(site, june, azimuth_deg)
     k_december = _noon_front_term(site, december, azimuth_deg)
     if math.isclose(k_june, k_december, rel_tol=1e-9, abs_tol=1e-12):
         return winter, (f"tropical site, noon sun equally low in front of the rows at both "
                         f"solstices: winter solstice of the {hemi}ern hemisphere "
-                        f"({winter.strftime('%d %B')})")
+                        f"({day_month(winter, full=True)})")
     pick = june if k_june > k_december else december
     return pick, ("tropical site: the solstice with the lower noon sun in front of the rows "
-                  f"({pick.strftime('%d %B')})")
+                  f"({day_month(pick, full=True)})")
 
 
 # -- the layout -------------------------------------------------------------------

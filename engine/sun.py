@@ -19,6 +19,7 @@ from pvlib import spa as _spa
 from .horizon import site_horizon_deg
 from .site import Site
 from .timegrid import REFERENCE_YEAR, TimeGrid, standard_offset
+from .words import day_month
 
 #: Geometric (unrefracted) elevation of the sun's centre at sunrise and sunset:
 #: -(34' standard refraction at the horizon + 16' solar semi-diameter) (Reda &
@@ -754,7 +755,7 @@ def standard_path_dates(site: Site, year: int = REFERENCE_YEAR) -> list[tuple[st
         out.append((label, ts.tz_convert(site.timezone).tz_localize(None).normalize()))
     for m in range(1, 13):
         d = pd.Timestamp(year, m, 21)
-        out.append((d.strftime("%d %b"), d))
+        out.append((day_month(d), d))
     return out
 
 

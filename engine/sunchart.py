@@ -40,6 +40,7 @@ from .sun import (
     sun_events,
 )
 from .timegrid import TIME_BASES, apparent_solar_time_h, local_date, standard_timezone
+from .words import day_month
 
 #: Days between the points of an hour line.
 HOUR_LINE_DAY_STEP = 3
@@ -591,7 +592,7 @@ def sun_chart(site: Site, date, basis: str = "clock", step_min: float = 5,
              "June solstice": "solstice", "December solstice": "solstice"}
     entries = [(label, d, kinds.get(label, "month"))
                for label, d in standard_path_dates(site, year)]
-    entries.append((f"{day.day} {day.strftime('%b %Y')}", day, "chosen"))
+    entries.append((f"{day_month(day)} {day.year}", day, "chosen"))
     curves = _curves(site, entries, basis, step)
     report(0.4, "hour lines")
     lines = _hour_line_curves(site, year, basis)

@@ -17,6 +17,8 @@ import numpy as np
 from PySide6.QtCore import QPointF, QRectF
 from PySide6.QtGui import QPainterPath
 
+from tiltyard.engine.words import MONTH_ABBR, compass_tick, day_month
+
 from .. import theme
 from .layout import (
     TEXT,
@@ -29,9 +31,6 @@ from .layout import (
     rect_path,
     shape,
 )
-
-COMPASS_8 = ("N", "NE", "E", "SE", "S", "SW", "W", "NW")
-MONTHS = ("Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec")
 
 GRID = "#d5d8d3"
 AXIS = "#5b6570"
@@ -335,7 +334,7 @@ def sun_path_chart(m: Measure, frame: QRectF, chart, basis_words: str, s: float 
     top = max(els) if els else 30.0
     ymax = float(min(90.0, max(20.0, math.ceil((top + 4.0) / 10.0) * 10.0)))
     ax = Axes(plot, centre - 180.0, centre + 180.0, 0.0, ymax)
-    xticks = [(a, f"{COMPASS_8[int(((a % 360) // 45) % 8)]} {a % 360:.0f}°")
+    xticks = [(a, compass_tick(a))
               for a in np.arange(centre - 180.0, centre + 180.1, 45.0)]
     ystep = 10.0 if ymax <= 60 else 15.0
     yticks = [(v, f"{v:.0f}°") for v in np.arange(0.0, ymax + 0.1, ystep)]
@@ -422,7 +421,7 @@ def sun_path_chart(m: Measure, frame: QRectF, chart, basis_words: str, s: float 
             continue
         color, width, dash = _PATH_STYLE.get(p.label, (TEXT, 1.2, None))
         name = "equinoxes (Mar, Sep)" if "equinox" in p.label else p.label
-        when = f", {p.date.day} {MONTHS[p.date.month - 1]}" if "solstice" in p.label else ""
+        when = f", {day_month(p.date)}" if "solstice" in p.label else ""
         extra = "" if len(p) else ": the sun stays below the horizon"
         entries.append((_line_sample(color, width, dash, frame=frame), name + when + extra))
     entries.append((_line_sample(theme.month_color(4).name(), 0.8, None, frame=frame),
@@ -466,7 +465,7 @@ def monthly_chart(m: Measure, frame: QRectF, series, s: float = 1.0,
                   frame.right() - legend_w - 10.0 - left, 0.0)
     plot.setBottom(frame.bottom() - lh - label_h - 4.0)
     ax = Axes(plot, 0.5, 12.5, 0.0, ymax)
-    xticks = [(i + 1, MONTHS[i]) for i in range(12)]
+    xticks = [(i + 1, MONTH_ABBR[i]) for i in range(12)]
     ops += _axes_ops(m, frame, ax, xticks, yticks, "Month",
                      "Irradiation on the plane (kWh/m² per month)", s, x_grid=False)
     xs = ax.px(np.arange(1, 13))

@@ -2,7 +2,8 @@
 
 Formatting only: every number comes from
 :class:`tiltyard.engine.exports.SheetFigures` (the study's JSON document) and
-is rounded here for reading.
+is rounded here for reading; schedules, months, compass points and the other
+shared words come from :mod:`tiltyard.engine.words`.
 """
 
 from __future__ import annotations
@@ -10,24 +11,10 @@ from __future__ import annotations
 import datetime as _dt
 from dataclasses import dataclass, field
 
-from ..study_model import (
-    MONTH_ABBR,
-    TABLE_NAMES,
-    _whole_month,
-    compass,
-    day_words,
-    degree_text,
-    schedule_words,
-)
+from tiltyard.engine.words import TIME_BASIS_WORDS, day_month
 
 #: Paper sizes in points (ISO 216 A4 is 210 x 297 mm; US Letter 8.5 x 11 in).
 PAPERS = {"a4": ("A4", 595.0, 842.0), "letter": ("US Letter", 612.0, 792.0)}
-
-BASIS_WORDS = {"clock": "local clock time (with daylight saving)",
-               "standard": "local standard time", "solar": "apparent solar time"}
-
-OBJECTIVE_WORDS = {"annual": "the annual total", "worst-month": "the weakest month",
-                   "months": "the chosen months"}
 
 SCOPE = ("Scope: where the sun goes over this site and what its horizon hides; how much "
          "sunlight reaches panels at the tilts and tilt schedules compared, on the sky basis "
@@ -44,9 +31,9 @@ class SheetMeta:
     time_basis: str = "clock"
 
     def __post_init__(self):
-        if self.time_basis not in BASIS_WORDS:
+        if self.time_basis not in TIME_BASIS_WORDS:
             raise ValueError(f"time_basis = {self.time_basis!r}: must be one of "
-                             f"{', '.join(BASIS_WORDS)}")
+                             f"{', '.join(TIME_BASIS_WORDS)}")
 
 
 def kwh(v) -> str:
@@ -76,7 +63,7 @@ def location_line(site) -> str:
 
 
 def long_date(d: _dt.date) -> str:
-    return f"{d.day} {d.strftime('%B')} {d.year}"
+    return f"{day_month(d, full=True)} {d.year}"
 
 
 def prepared_line(meta: SheetMeta) -> str:
@@ -84,34 +71,5 @@ def prepared_line(meta: SheetMeta) -> str:
     return f"Prepared {long_date(meta.prepared)}" + (f" by {who}" if who else "")
 
 
-def option_name(opt) -> str:
-    """Short name of an option (a site plane keeps its own label)."""
-    return TABLE_NAMES.get(opt.kind, opt.label)
-
-
-def _tilt(v: float) -> str:
-    return f"{v:.0f}°" if abs(v - round(v)) < 0.05 else f"{v:.1f}°"
-
-
-def schedule_sentence(opt, year: int) -> str:
-    """A schedule in words: ``"30° from 1 Oct to 31 Mar, 10° from 1 Apr to 30 Sep;
-    facing 180° (S)"``; whole calendar months as ``"Jan 62°, Feb 55°, …"``."""
-    if opt.kind == "two-axis" or len(opt.schedule) == 1:
-        return schedule_words(opt, year)
-    if all(_whole_month(p, year) is not None for p in opt.schedule):
-        return schedule_words(opt, year)
-    az = opt.schedule[0].azimuth_deg
-    parts = [f"{_tilt(p.tilt_deg)} from {day_words(p.start, year)} to {day_words(p.end, year)}"
-             for p in opt.schedule]
-    return ", ".join(parts) + f"; facing {az:.0f}° ({compass(az)})"
-
-
-def objective_words(opts) -> str:
-    if opts.objective == "months":
-        return "the total of " + ", ".join(MONTH_ABBR[int(m) - 1] for m in opts.months)
-    return OBJECTIVE_WORDS[opts.objective]
-
-
-__all__ = ["BASIS_WORDS", "PAPERS", "SCOPE", "SheetMeta", "coordinates", "degree_text",
-           "kwh", "location_line", "long_date", "objective_words", "option_name", "pct",
-           "prepared_line", "schedule_sentence"]
+__all__ = ["PAPERS", "SCOPE", "SheetMeta", "coordinates", "kwh", "location_line", "long_date",
+           "pct", "prepared_line"]

@@ -17,21 +17,25 @@ from dataclasses import dataclass
 
 from PySide6.QtCore import QRectF
 
+from tiltyard.engine.words import (
+    MONTH_ABBR,
+    degree_text,
+    objective_words,
+    option_name,
+    schedule_sentence,
+    time_basis_words,
+)
+
 from .. import theme
 from .charts import Series, monthly_chart, sun_path_chart
 from .content import (
-    BASIS_WORDS,
     PAPERS,
     SCOPE,
     SheetMeta,
-    degree_text,
     kwh,
     location_line,
-    objective_words,
-    option_name,
     pct,
     prepared_line,
-    schedule_sentence,
 )
 from .layout import (
     MUTED,
@@ -57,7 +61,6 @@ MIN_CHART_H = 150.0
 
 PANEL = "#f1f2ef"
 RULE = "#c9cdc6"
-MONTHS = ("Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec")
 
 
 @dataclass
@@ -210,7 +213,7 @@ def _page1(m: Measure, ctx: _Ctx, s: float):
     page.frames["sunpath"] = sun_box
     page.frames["monthly"] = mon_box
     if sun_box.height() > 40 and mon_box.height() > 40:
-        page.add(sun_path_chart(m, sun_box, ctx.sun, BASIS_WORDS[ctx.meta.time_basis], s))
+        page.add(sun_path_chart(m, sun_box, ctx.sun, time_basis_words(ctx.meta.time_basis), s))
         page.add(monthly_chart(m, mon_box, _chart_series(ctx), s))
     else:
         ok = False
@@ -262,7 +265,7 @@ def _tiles(ctx: _Ctx) -> list[tuple[str, str, str]]:
     opts = ctx.study.options_used
     if opts.objective != "annual":
         tiles.append((f"{kwh(rec['objective_value_kwh_m2'])} kWh/m²",
-                      f"objective value: {objective_words(opts)}", "key.objective"))
+                      f"objective value: {objective_words(opts.objective, opts.months)}", "key.objective"))
     return tiles
 
 
@@ -275,7 +278,7 @@ def _key_figures(m: Measure, ctx: _Ctx, frame: QRectF, s: float) -> tuple[list, 
     col = Column(m, inner)
     ops = []
     opts = ctx.study.options_used
-    ops += col.text(f"Key figures · recommended for {objective_words(opts)}",
+    ops += col.text(f"Key figures · recommended for {objective_words(opts.objective, opts.months)}",
                     Font(8.0 * s, bold=True), min_size=6.0, max_lines=2, color=theme.ACCENT,
                     gap_after=2.0 * s, role="key.heading")
     ops += col.text(degree_text(ctx.rec.label), Font(12.5 * s, bold=True), min_size=8.0,
@@ -503,7 +506,7 @@ def _options_table(m: Measure, ctx: _Ctx, col: Column, s: float) -> list:
 
 
 def _monthly_table(m: Measure, ctx: _Ctx, col: Column, s: float) -> list:
-    columns = [("Option", 0.19, "left", 2)] + [(mo, 0.062, "right", 1) for mo in MONTHS] \
+    columns = [("Option", 0.19, "left", 2)] + [(mo, 0.062, "right", 1) for mo in MONTH_ABBR] \
         + [("Year", 0.066, "right", 1)]
     rows = []
     mt = ctx.f.monthly

@@ -38,6 +38,7 @@ from tiltyard.engine.assess import AssessmentError, assessment_part, choose_basi
 from tiltyard.engine.horizon import merged_profile
 from tiltyard.engine.horizon_io import read_horizon_csv, write_horizon_csv
 from tiltyard.engine.site import HorizonProfile, Obstacle, SiteError
+from tiltyard.engine.words import bearing, compass, model_name
 
 from .. import plots, theme
 from ..engine_process import EngineCall
@@ -51,16 +52,8 @@ MIN_GAP_DEG = 0.1
 #: The chart shows this much beyond 0° and 360° (the horizon continues across north).
 X_MARGIN_DEG = 12.0
 CSV_FILTER = "CSV files (*.csv *.txt);;All files (*)"
-COMPASS16 = ("N", "NNE", "NE", "ENE", "E", "ESE", "SE", "SSE", "S", "SSW", "SW", "WSW", "W",
-             "WNW", "NW", "NNW")
-COMPASS8 = ("N", "NE", "E", "SE", "S", "SW", "W", "NW", "N")
 OBSTACLE_COLOR = theme.SERIES[1]
 INVALID_CELL = QColor("#fdf3f2")
-
-
-def compass_name(azimuth_deg: float) -> str:
-    """16-point compass name of an azimuth (22.5° sectors centred on N, NNE, ...)."""
-    return COMPASS16[int(math.floor((azimuth_deg % 360.0) / 22.5 + 0.5)) % 16]
 
 
 def _fmt(v: float, digits: int = 1) -> str:
@@ -455,7 +448,7 @@ class HorizonView(View):
         return brush
 
     def _set_ticks(self) -> None:
-        major = [(45.0 * i, f"{COMPASS8[i]}\n{45 * i}°") for i in range(9)]
+        major = [(45.0 * i, f"{compass(45 * i, 8)}\n{45 * i}°") for i in range(9)]
         minor = [(15.0 * i, "") for i in range(25) if i % 3]
         axis = self.plot.getAxis("bottom")
         axis.setTicks([major, minor])
@@ -516,7 +509,7 @@ class HorizonView(View):
             name = "Horizontal" if p is result.horizontal else p.label
             first = QStandardItem(name)
             first.setToolTip(f"tilt {_fmt(p.surface_tilt)}°, azimuth "
-                             f"{_fmt(p.surface_azimuth)}° ({compass_name(p.surface_azimuth)})")
+                             f"{_fmt(p.surface_azimuth)}° ({compass(p.surface_azimuth)})")
             cells = [first]
             for text, tip in (
                     (f"{p.open_kwh_m2:.0f}", ""),
@@ -541,8 +534,7 @@ class HorizonView(View):
             sky = choose_basis(self.ctx.assessment).words
         except AssessmentError as exc:
             sky = str(exc)
-        model = {"perez": "Perez 1990", "haydavies": "Hay-Davies", "isotropic": "isotropic"}.get(
-            result.options.model, result.options.model)
+        model = model_name(result.options.model)
         self.loss_note.setText(
             f"Sky: {sky}; {model} sky diffuse; reference year {result.options.year}, "
             f"{result.options.step_min}-minute steps. Losses in % of the open-horizon "
@@ -612,7 +604,7 @@ class HorizonView(View):
                                              strict=True)):
                 t.setItem(r, 0, _num_item(_fmt(az, 2)))
                 t.setItem(r, 1, _num_item(_fmt(el, 2)))
-                t.setItem(r, 2, _read_only(compass_name(az)))
+                t.setItem(r, 2, _read_only(compass(az)))
                 if self._select_az is not None and abs(az - self._select_az) < 1e-9:
                     select = r
             if select is not None:
@@ -641,7 +633,7 @@ class HorizonView(View):
 
     # -- profile edits ----------------------------------------------------------------
     def _point_moved(self, index: int, az: float, el: float) -> None:
-        self.readout.setText(f"Point {index + 1}: azimuth {az:.1f}° ({compass_name(az)}), "
+        self.readout.setText(f"Point {index + 1}: azimuth {bearing(az, decimals=1)}, "
                              f"elevation {el:.1f}° — let go to keep it")
         xs, ys = self.points.values()
         site = self.ctx.site

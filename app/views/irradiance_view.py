@@ -40,18 +40,24 @@ from PySide6.QtWidgets import (
 
 from tiltyard.engine.assess import AssessmentError, assessment_part, choose_basis
 from tiltyard.engine.timegrid import REFERENCE_YEAR
+from tiltyard.engine.words import (
+    MONTH_ABBR,
+    day_month,
+    day_words,
+    degree_text,
+    model_name,
+    plane_words,
+    sky_choice_words,
+)
 
 from .. import plots, theme
 from ..engine_process import EngineCall
 from ..weather_dialog import WeatherDialog
 from ..widgets import CopyableTable, View
 
-MONTHS = ("Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec")
-
-SKY_ITEMS = (("auto", "Best available"), ("clear", "Clear sky (upper bound)"),
-             ("monthly", "Monthly values of the site"), ("file", "Weather file…"))
-MODEL_ITEMS = (("perez", "Perez 1990"), ("haydavies", "Hay-Davies"),
-               ("isotropic", "Isotropic (Liu-Jordan)"))
+#: The sky bases and transposition models the view offers.
+SKY_KEYS = ("auto", "clear", "monthly", "file")
+MODEL_KEYS = ("perez", "haydavies", "isotropic")
 
 MONTHLY_MISSING = ("this site has no monthly mean daily GHI values; enter the 12 values "
                    "in the Site view to use them.")
@@ -210,8 +216,8 @@ class IrradianceView(View):
         grid.setHorizontalSpacing(10)
         grid.setVerticalSpacing(4)
         self.sky_combo = QComboBox()
-        for key, text in SKY_ITEMS:
-            self.sky_combo.addItem(text, key)
+        for key in SKY_KEYS:
+            self.sky_combo.addItem(sky_choice_words(key, capital=True), key)
         self.sky_combo.setToolTip("Best available: the site's weather file if it has one, else "
                                   "its monthly values, else clear sky. Saved with the site and "
                                   "shared with the Tilt study and the Sheet.")
@@ -219,8 +225,8 @@ class IrradianceView(View):
         self.weather_button = QPushButton("Choose weather file…")
         self.weather_button.clicked.connect(self.open_weather_dialog)
         self.model_combo = QComboBox()
-        for key, text in MODEL_ITEMS:
-            self.model_combo.addItem(text, key)
+        for key in MODEL_KEYS:
+            self.model_combo.addItem(model_name(key, capital=True), key)
         self.model_combo.setToolTip("Sky-diffuse transposition model, shared with the Tilt "
                                     "study view")
         self.model_combo.currentIndexChanged.connect(self._model_picked)
@@ -310,7 +316,7 @@ class IrradianceView(View):
         self.bars_plot.setMouseEnabled(x=False, y=False)
         self.bars_plot.hideButtons()
         self.bars_plot.showGrid(x=False, y=True, alpha=0.25)
-        self.bars_plot.getAxis("bottom").setTicks([[(m, MONTHS[m - 1]) for m in range(1, 13)]])
+        self.bars_plot.getAxis("bottom").setTicks([[(m, MONTH_ABBR[m - 1]) for m in range(1, 13)]])
         self.bars_plot.setXRange(0.5, 12.5, padding=0.0)
         self.bar_items: list[pg.BarGraphItem] = []
         right.addWidget(self.bars_widget, 1)
@@ -353,7 +359,7 @@ class IrradianceView(View):
     def _plane_choices(self) -> list[tuple[str, float, float]]:
         site = self.ctx.site
         out = [("Horizontal", 0.0, site.equator_azimuth_deg)]
-        out += [(f"{p.label} ({p.tilt_deg:g}° facing {p.azimuth_deg:g}°)", p.tilt_deg,
+        out += [(f"{p.label} ({plane_words(p.tilt_deg, p.azimuth_deg)})", p.tilt_deg,
                  p.azimuth_deg) for p in site.planes]
         study = self._study_for_site()
         if study is not None:
@@ -361,12 +367,13 @@ class IrradianceView(View):
             fp = fixed.schedule[0]
             rec = study.recommended
             tag = ", recommended" if rec.kind == "fixed-optimal" else ""
-            out.append((f"Study: optimal fixed{tag} ({fp.tilt_deg:g}° facing "
-                        f"{fp.azimuth_deg:g}°)", fp.tilt_deg, fp.azimuth_deg))
+            out.append((f"Study: optimal fixed{tag} ({plane_words(fp.tilt_deg, fp.azimuth_deg)})",
+                        fp.tilt_deg, fp.azimuth_deg))
             if rec.kind != "fixed-optimal":
                 p = rec.schedule[0]
                 out.append((f"Study: recommended {_short(rec.label).lower()}, first period "
-                            f"{p.start} to {p.end} ({p.tilt_deg:g}° facing {p.azimuth_deg:g}°)",
+                            f"{day_words(p.start)} to {day_words(p.end)} "
+                            f"({plane_words(p.tilt_deg, p.azimuth_deg)})",
                             p.tilt_deg, p.azimuth_deg))
         return out
 
@@ -568,7 +575,7 @@ class IrradianceView(View):
         self.day_plot.setYRange(0, ymax * 1.05, padding=0.0)
         self.day_plot.setLabel("bottom", f"Local clock time, {day.site.timezone} (h)")
         date = day.date
-        self.day_title.setText(f"{date.day} {date.strftime('%B %Y')}: {day.sky_label}"
+        self.day_title.setText(f"{day_month(date, full=True)} {date.year}: {day.sky_label}"
                                + (", hourly values of the basis" if day.step_min >= 60 else ""))
         t = day.totals_kwh_m2
         if behind.any():
@@ -607,7 +614,7 @@ class IrradianceView(View):
             outline = pg.mkPen(theme.series_color(i).darker(135), width=0.8)
             bar = pg.BarGraphItem(x=x, height=h, width=width * 0.92, brush=_bar_brush(i),
                                   pen=outline)
-            bar.setToolTip(r.label)
+            bar.setToolTip(degree_text(r.label))
             self.bars_plot.addItem(bar)
             self.bar_items.append(bar)
             self.bars_legend.add(_short(r.label), brush=_bar_brush(i), outline=outline)
@@ -626,7 +633,7 @@ class IrradianceView(View):
         m = self.table_model
         m.removeRows(0, m.rowCount())
         for i, r in enumerate(self.rows):
-            name = _Item(r.label)
+            name = _Item(degree_text(r.label))
             name.setIcon(_swatch_icon(i))
             loss = ("—" if r.horizon_loss_pct is None else f"{r.horizon_loss_pct:.1f}")
             cells = [name, _Item(r.plane_text),

@@ -44,13 +44,12 @@ from tiltyard.engine.exports import (
     options_csv_text,
 )
 from tiltyard.engine.site import write_bytes_atomically
+from tiltyard.engine.words import basis_label, option_name
 
 from ..engine_process import EngineCall
 from ..sheet import PAPERS, SheetMeta, build_sheet, page_image, pdf_bytes
-from ..sheet.content import option_name
 from ..sheet.job import lay_out
 from ..sheet.pdf import page_layout, paint_to
-from ..study_model import short_name
 from ..widgets import View
 
 #: What each export writes: (dialog title, file filter, suffix).
@@ -331,11 +330,9 @@ class SheetView(View):
         self._enable(True)
         name = PAPERS[doc.paper][0]
         rec = pv.result.study.recommended
-        sky = pv.result.study.options_used.irradiance.sky
-        sky = {"clear": "clear-sky basis (upper bound)", "monthly": "monthly GHI basis",
-               "file": "weather-file basis"}.get(sky, sky)
-        self.status.setText(f"{doc.page_count} pages, {name}\nRecommended: {short_name(rec)}"
-                            f"\n{sky}")
+        sky = basis_label(pv.result.study.options_used.irradiance.sky)
+        self.status.setText(f"{doc.page_count} pages, {name}\nRecommended: {option_name(rec)}"
+                            f"\nSky basis: {sky}")
         self.figures_note.setText(f"Inputs {pv.result.figures.short_digest} · Tiltyard "
                                   f"{pv.result.figures.version}")
         # the viewport may have changed size while the sheet was computed

@@ -29,16 +29,10 @@ from PySide6.QtWidgets import (
 )
 
 from tiltyard.engine.site import ALBEDO_PRESETS, Plane, SiteError, parse_coordinate
+from tiltyard.engine.words import MONTH_ABBR, MOUNTING_WORDS
 
 from .. import places
 from ..widgets import ValidatedField, View
-
-#: How the panels on a plane are held, in the user's words (the engine's mounting kinds).
-PLANE_MOUNTINGS = (("flush on it", "flush"), ("fixed rack", "fixed-rack"),
-                   ("adjustable rack", "adjustable"), ("ground rows", "ground-rows"),
-                   ("flat-roof rows", "flat-roof-rows"))
-
-MONTHS = ("Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec")
 
 
 def _number(text: str, field: str, lo: float, hi: float, unit: str) -> float:
@@ -245,7 +239,7 @@ class SiteView(View):
         g.setContentsMargins(0, 0, 0, 0)
         g.setHorizontalSpacing(6)
         edits = []
-        for i, m in enumerate(MONTHS):
+        for i, m in enumerate(MONTH_ABBR):
             lab = QLabel(m)
             lab.setAlignment(Qt.AlignmentFlag.AlignCenter)
             e = QLineEdit()
@@ -264,7 +258,7 @@ class SiteView(View):
 
     def _read_twelve(self, group):
         values = []
-        for m, e in zip(MONTHS, group["edits"], strict=True):
+        for m, e in zip(MONTH_ABBR, group["edits"], strict=True):
             try:
                 values.append(group["parse"](e.text()))
             except SiteError as exc:
@@ -394,7 +388,7 @@ class SiteView(View):
     def _mounting_box(self, mounting: str) -> QComboBox:
         """How the panels on a plane are held (a roof plane: flush by default)."""
         box = QComboBox()
-        for text, key in PLANE_MOUNTINGS:
+        for key, text in MOUNTING_WORDS.items():
             box.addItem(text, key)
         box.setCurrentIndex(max(0, box.findData(mounting)))
         box.setToolTip("Flush: panels lie on this roof plane as it is. A rack or rows: the "

@@ -35,30 +35,33 @@ from tiltyard.engine.assess import AssessmentError, assessment_part, choose_basi
 from tiltyard.engine.assessment import Mounting, StudySettings
 from tiltyard.engine.tilt import StudyOptions
 from tiltyard.engine.timegrid import REFERENCE_YEAR
+from tiltyard.engine.words import (
+    MONTH_ABBR,
+    MOUNTING_WORDS,
+    bearing,
+    compass,
+    compass_tick,
+    degree_text,
+    model_name,
+    mounting_words,
+    option_name,
+    schedule_words,
+)
 
 from .. import plots, theme
 from ..engine_process import EngineCall
 from ..plot_labels import Label, LabelLayer
 from ..study_model import (
     COL_OBJECTIVE,
-    MONTH_ABBR,
     StudySortProxy,
     StudyTableModel,
-    compass,
     day_of_year,
-    degree_text,
-    schedule_words,
-    short_name,
 )
 from ..widgets import CopyableTable, ValidatedField, View
 
 OBJECTIVES = (("annual total", "annual"), ("worst month", "worst-month"),
               ("chosen months", "months"))
 
-#: How the panels are held, in the user's words (the engine's mounting kinds).
-MOUNTING_CHOICES = (("flush on the roof", "flush"), ("fixed rack", "fixed-rack"),
-                    ("adjustable rack", "adjustable"), ("ground rows", "ground-rows"),
-                    ("flat-roof rows", "flat-roof-rows"))
 #: Tilt positions a year an adjustable rack may take.
 POSITION_CHOICES = (("2 a year", 2), ("4 a year", 4), ("12 a year", 12))
 
@@ -80,9 +83,6 @@ _TILT_RAMP = pg.ColorMap(pos=[0.0, 1.0], color=[QColor("#e3edf3"), QColor("#163c
 
 _OPTIMUM_WORDS = {"annual": "fixed optimum", "worst-month": "worst-month optimum",
                   "months": "chosen-months optimum"}
-
-_COMPASS_8 = ("N", "NE", "E", "SE", "S", "SW", "W", "NW")
-
 
 def _colour_bar() -> pg.ColorBarItem:
     """The map's colour scale (a plot of its own: made ahead, see :mod:`..plots`)."""
@@ -252,7 +252,7 @@ class StudyView(View):
                                   "months.")
         self.objective.currentIndexChanged.connect(lambda _i: self._changed())
         self.mounting = QComboBox()
-        for text, key in MOUNTING_CHOICES:
+        for key, text in MOUNTING_WORDS.items():
             self.mounting.addItem(text, key)
         self.mounting.setToolTip("How the panels will be held. Flush on the roof: the roof's "
                                  "own tilt and direction, the roof as it is. Fixed rack: one "
@@ -660,8 +660,8 @@ class StudyView(View):
             words = f"{basis.words} ({basis.reason})"
         except AssessmentError as exc:
             words = str(exc)
-        self.basis.setText(f"Sky basis: {words} · mounting {study.mounting} · sky diffuse "
-                           f"model {irr.model} · year {irr.year}, {irr.step_min} min steps")
+        self.basis.setText(f"Sky basis: {words} · mounting: {mounting_words(study.mounting)} · "
+                           f"sky diffuse: {model_name(irr.model)} · year {irr.year}, {irr.step_min} min steps")
         self.basis.setToolTip(study.sky_note)
         self.model.set_study(study)
         self._fit_table(len(study.options))
@@ -713,7 +713,7 @@ class StudyView(View):
         i = int(np.argmax(kwh))
         self.curve_opt.setData([tilt[i]], [kwh[i]])
         az = study.curve_azimuth_deg
-        cp.setLabel("bottom", f"Tilt (°), facing {az:.0f}° ({compass(az)})")
+        cp.setLabel("bottom", f"Tilt (°), facing {bearing(az)}")
         lo, hi = float(np.nanmin(kwh)), float(kwh[i])
         cp.setYRange(lo - 0.05 * (hi - lo), hi + 0.16 * (hi - lo), padding=0)
         ax = 0.0 if tilt[i] < 20 else (1.0 if tilt[i] > 70 else 0.5)
@@ -771,8 +771,7 @@ class StudyView(View):
         mp.setXRange(x0, x0 + d_az * len(x), padding=0)
         mp.setYRange(y0, y0 + d_t * len(tilt), padding=0)
         start = -180 if x[0] < 0 else 0
-        ticks = [(a, _COMPASS_8[((a % 360) // 45) % 8] + f" {a % 360}°")
-                 for a in range(start, start + 361, 45)]
+        ticks = [(a, compass_tick(a)) for a in range(start, start + 361, 45)]
         mp.getAxis("bottom").setTicks([ticks[::2], ticks[1::2]])
         yield
 
@@ -889,7 +888,7 @@ class StudyView(View):
         for row, opt in enumerate(study.options):
             name = ("▶ " if opt is rec else "") + (
                 "Best plane" if opt.kind == "fixed-optimal" and study.mounting == "flush"
-                else short_name(opt))
+                else option_name(opt))
             ticks.append((row, fm.elidedText(name, Qt.TextElideMode.ElideRight, 112)))
             x0s, widths, brushes, texts = [], [], [], []
             for p in opt.schedule:

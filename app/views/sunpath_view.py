@@ -37,21 +37,15 @@ from PySide6.QtWidgets import (
 )
 
 from tiltyard.engine.sunchart import sun_chart
+from tiltyard.engine.words import MONTH_ABBR, TIME_BASIS_WORDS, bearing, compass, compass_tick
 
 from .. import plots, theme
 from ..engine_process import EngineCall
 from ..plot_labels import Label, LabelLayer
 from ..widgets import CopyableTable, View
 
-#: Time bases offered, with the words used in the Preferences dialog.
-BASES = (("clock", "local clock time (with daylight saving)"),
-         ("standard", "local standard time"),
-         ("solar", "apparent solar time"))
 BASIS_SHORT = {"clock": "clock time", "standard": "standard time", "solar": "solar time"}
 
-COMPASS = ("N", "NNE", "NE", "ENE", "E", "ESE", "SE", "SSE",
-           "S", "SSW", "SW", "WSW", "W", "WNW", "NW", "NNW")
-MONTHS = ("Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec")
 
 HOUR_LINE_COLOR = "#8b9198"
 HOUR_TEXT_COLOR = "#4b525a"
@@ -65,11 +59,6 @@ PER_TURN = 6
 
 
 # -- small formatting helpers (no physics) -------------------------------------------
-
-def compass(azimuth_deg: float) -> str:
-    """Sixteen-point compass name of an azimuth (degrees clockwise from north)."""
-    return COMPASS[int(math.floor((azimuth_deg % 360.0) / 22.5 + 0.5)) % 16]
-
 
 def hhmm(hours: float) -> str:
     """Hours of the day as ``HH:MM`` (rounded to the minute); an em dash for NaN."""
@@ -197,7 +186,7 @@ class SunPathView(View):
         top.addSpacing(10)
         top.addWidget(QLabel("Times in"))
         self.basis = QComboBox()
-        for key, text in BASES:
+        for key, text in TIME_BASIS_WORDS.items():
             self.basis.addItem(text, key)
         self._set_basis(ctx.prefs.time_basis)
         self.basis.setToolTip("Time basis of the hour lines, the readout and the tables")
@@ -484,7 +473,7 @@ class SunPathView(View):
                    color=theme.TEXT, size="10pt")
         # x ticks: compass letters and degrees every 45°, minor ticks every 15°; the two
         # edges (both the direction away from the equator) carry the letter only, so it fits
-        major = [(v, compass(v) if v in (lo, hi) else f"{compass(v)} {v % 360:.0f}°")
+        major = [(v, compass(v, 8) if v in (lo, hi) else compass_tick(v))
                  for v in np.arange(lo, hi + 1, 45.0)]
         minor = [(v, "") for v in np.arange(lo, hi + 1, 15.0) if v % 45]
         p.getAxis("bottom").setTicks([major, minor])
@@ -578,7 +567,7 @@ class SunPathView(View):
     def _show_legend(self, chart) -> None:
         months = " ".join(
             f"<span style='color:{_hex(theme.month_color(m))}; font-size:13pt'>━</span>"
-            f"&nbsp;{MONTHS[m - 1]}" for m in range(1, 13))
+            f"&nbsp;{MONTH_ABBR[m - 1]}" for m in range(1, 13))
         hz = "rgba({},{},{},{:.2f})".format(*theme.HORIZON_FILL[:3], theme.HORIZON_FILL[3] / 255)
         basis = BASIS_SHORT[chart.basis]
         self.legend.setText(
@@ -667,7 +656,7 @@ class SunPathView(View):
                     "at sunrise" if polar is None else "—")
                 behind = hhmm(r.behind_horizon_h) if math.isfinite(r.behind_horizon_h) else (
                     "at sunset" if polar is None else "—")
-            cells = [f"{r.date.day} {MONTHS[r.date.month - 1]}", rise,
+            cells = [f"{r.date.day} {MONTH_ABBR[r.date.month - 1]}", rise,
                      hhmm(r.solar_noon_h), sset, f"{r.day_length_h:.2f}",
                      f"{r.noon_elevation_deg:.1f}", clears, behind, f"{r.direct_sun_h:.2f}"]
             items = []
@@ -737,8 +726,8 @@ class SunPathView(View):
         el = float(curve.elevation_deg[i])
         hidden = "" if curve.visible[i] else " · behind the site horizon"
         return (f"{curve.label}: {hhmm(curve.hour[i])} {BASIS_SHORT[self.chart.basis]} · "
-                f"azimuth {az:.1f}° ({compass(az)}) · elevation {el:.1f}°{hidden}")
+                f"azimuth {bearing(az, decimals=1)} · elevation {el:.1f}°{hidden}")
 
 
-__all__ = ["SunPathView", "chart_x", "compass", "duration", "hhmm", "polar_xy",
+__all__ = ["SunPathView", "chart_x", "duration", "hhmm", "polar_xy",
            "split_at_edges"]

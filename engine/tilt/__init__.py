@@ -24,7 +24,6 @@ yields per option), ``monthly_check`` (the Klein monthly-mean cross-check) and
 from .monthly_check import KLEIN_METHOD, MonthlyMethodOption, monthly_method_comparison
 from .monthly_check import _days_in_period_by_month as _days_in_period_by_month
 from .options import (
-    MONTH_NAMES,
     MOUNTINGS,
     OPTION_KINDS,
     SEASONAL_KINDS,
@@ -47,7 +46,8 @@ from .study import (
 )
 
 # the two private names above stay importable here for the tests
-__all__ = ["ALL_POA_COLUMNS", "KLEIN_METHOD", "PERIOD_COLUMNS", "MONTH_NAMES", "MOUNTINGS", "OPTION_KINDS", "SEASONAL_KINDS",
-           "MonthlyMethodOption", "OptionRows", "OptionYield", "Period", "RowSettings",
-           "StudyOption", "StudyOptions", "StudySettings", "TiltStudy", "monthly_method_comparison", "periods_poa",
+__all__ = ["ALL_POA_COLUMNS", "KLEIN_METHOD", "MOUNTINGS", "OPTION_KINDS", "PERIOD_COLUMNS",
+           "SEASONAL_KINDS", "MonthlyMethodOption", "OptionRows", "OptionYield", "Period",
+           "RowSettings", "StudyOption", "StudyOptions", "StudySettings", "TiltStudy",
+           "monthly_method_comparison", "periods_poa",
            "schedule_poa", "tilt_study"]

@@ -26,10 +26,6 @@ OPTION_KINDS = ("horizontal", "plane", "rule-of-thumb", "fixed-optimal", "two-se
 #: planes as they are, the fixed optimum as the best plane, the two-axis ceiling).
 SEASONAL_KINDS = (("two-season", 2), ("four-season", 4), ("monthly", 12))
 
-MONTH_NAMES = ("January", "February", "March", "April", "May", "June", "July", "August",
-               "September", "October", "November", "December")
-
-
 @dataclass(frozen=True)
 class StudySettings:
     """What the tilt study optimises, within which limits (the settings an assessment keeps).

@@ -13,6 +13,7 @@ from ..rows import GCR_DEFINITIONS, LIMITATION
 from ..site import Site
 from ..skyyear import SkyYear
 from ..specific_yield import LABEL
+from ..words import mounting_words
 from .monthly_check import KLEIN_METHOD
 from .options import SEASONAL_KINDS, StudyOption, StudyOptions, _score_monthly
 
@@ -115,7 +116,7 @@ class TiltStudy:
                     f"on the {o.objective_label} objective); the best plane for the site is a "
                     "reference")
         if not any(self.has_option(k) for k, _ in SEASONAL_KINDS):
-            return (f"{o.mounting} mounting: the fixed optimum on the {o.objective_label} "
+            return (f"{mounting_words(o.mounting)}: the fixed optimum on the {o.objective_label} "
                     "objective (no seasonal adjustment)")
         return (f"fixed optimum unless more adjustments raise the {o.objective_label}"
                 f" objective by at least {self.worth_pct:g} % per step")

@@ -18,9 +18,9 @@ from ..rows import irradiation_per_ground_m2, row_layout
 from ..site import Site
 from ..skyyear import SkyYear, sky_year
 from ..specific_yield import specific_yield
+from ..words import MONTH_ABBR
 from .monthly_check import monthly_method_comparison
 from .options import (
-    MONTH_NAMES,
     SEASONAL_KINDS,
     Period,
     StudyOption,
@@ -115,7 +115,7 @@ def tilt_study(site: Site, opts: StudyOptions | None = None,
     if opts.irradiance.sky == "clear":
         warnings.append("Clear-sky basis: every figure is an upper bound, not an expected "
                         "yield; cloudier months favour flatter tilts.")
-    inactive = [MONTH_NAMES[m][:3] for m in range(12) if not st.active[m]]
+    inactive = [MONTH_ABBR[m] for m in range(12) if not st.active[m]]
     if inactive:
         warnings.append("No useful daylight in " + ", ".join(inactive) + " (polar night or "
                         "near it): those months are left out of the worst-month objective.")

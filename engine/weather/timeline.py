@@ -12,6 +12,7 @@ import zoneinfo
 import numpy as np
 import pandas as pd
 
+from ..words import MONTH_ABBR
 from .common import (
     TYPICAL_LEAP_YEAR_DEFAULT,
     TYPICAL_YEAR_DEFAULT,
@@ -42,7 +43,7 @@ def _month_years_text(wall: pd.DatetimeIndex) -> str:
     parts = []
     for month, years in frame.groupby("m")["y"]:
         ys = "/".join(str(y) for y in sorted(set(years)))
-        parts.append(f"{pd.Timestamp(2001, month, 1):%b} {ys}")
+        parts.append(f"{MONTH_ABBR[month - 1]} {ys}")
     return ", ".join(parts)
 
 

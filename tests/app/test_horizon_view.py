@@ -282,7 +282,7 @@ def test_sky_choice_reaches_the_figures(qtbot, make_ctx, idle):
     assert "Perez 1990" in view.loss_note.text()
     ctx.set_settings(model="isotropic")
     idle(ctx.runner)
-    assert "isotropic sky diffuse" in view.loss_note.text()
+    assert "isotropic (Liu-Jordan) sky diffuse" in view.loss_note.text()
 
 
 @pytest.mark.parametrize("demo", ["larkmoor-dairy", "kelpie-creek-shed", "coral-lane-clinic",

@@ -15,6 +15,7 @@ from tiltyard.engine.assess import assessment_part
 from tiltyard.engine.assessment import Mounting, file_sha256
 from tiltyard.engine.daycurves import irradiance_day
 from tiltyard.engine.skyyear import IrradianceOptions
+from tiltyard.engine.words import degree_text
 
 
 def _open(qtbot, ctx, idle) -> IrradianceView:
@@ -137,7 +138,7 @@ def test_monthly_bars_have_one_series_per_option_of_the_assessment(qtbot, make_c
     for bar, opt in zip(view.bar_items[n_own:], added, strict=True):
         np.testing.assert_allclose(bar.opts["height"], opt.monthly_kwh_m2 / days, rtol=1e-12)
     rows = view.table_rows()
-    assert [r[0] for r in rows[n_own:]] == [o.label for o in added]
+    assert [r[0] for r in rows[n_own:]] == [degree_text(o.label) for o in added]
     assert rows[-1][3] == "—"                     # a tracking ceiling has no horizon loss
     # the published study's optimum joins the plane selector
     ctx.publish_study(study)

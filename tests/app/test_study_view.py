@@ -16,9 +16,7 @@ from PySide6.QtCore import QPoint, Qt
 from PySide6.QtGui import QColor, QGuiApplication
 
 from tiltyard.app import theme
-from tiltyard.app.study_model import schedule_words
 from tiltyard.app.views.study_view import OBJECTIVES, StudyView
-from tiltyard.engine.tilt import Period, StudyOption
 
 SIZE = (1130, 760)
 
@@ -53,23 +51,6 @@ def _column(view, header: str) -> int:
     m = view.proxy
     return next(c for c in range(m.columnCount())
                 if m.headerData(c, Qt.Orientation.Horizontal) == header)
-
-
-def test_schedule_words_read_as_dates_and_tilts():
-    # the wording asked for in the view's brief ("34° 1 Oct–31 Mar, 12° 1 Apr–30 Sep")
-    opt = StudyOption("Two-season schedule", "two-season",
-                      (Period("04-01", "09-30", 12.0, 180.0), Period("10-01", "03-31", 34.0, 180.0)),
-                      np.zeros(12), 0.0)
-    assert schedule_words(opt, 2023) == "12° 1 Apr–30 Sep, 34° 1 Oct–31 Mar; facing 180° (S)"
-    fixed = StudyOption("Horizontal", "horizontal", (Period("01-01", "12-31", 0.0, 0.0),),
-                        np.zeros(12), 0.0)
-    assert schedule_words(fixed, 2023) == "0° all year, facing 0° (N)"
-    monthly = StudyOption("Monthly schedule", "monthly",
-                          tuple(Period(f"{m:02d}-01", f"{m:02d}-{d}", 10.0 * m, 180.0)
-                                for m, d in zip(range(1, 13), (31, 28, 31, 30, 31, 30, 31, 31,
-                                                                30, 31, 30, 31), strict=True)),
-                          np.zeros(12), 0.0)
-    assert schedule_words(monthly, 2023).startswith("Jan 10°, Feb 20°, Mar 30°")
 
 
 def test_changing_the_objective_changes_the_options_and_publishes(qtbot, make_ctx, idle):

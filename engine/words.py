@@ -1,0 +1,392 @@
+"""Words: how Tiltyard writes months, compass points, models, bases, mountings and schedules.
+
+One place for the text that the command line, the desktop views and the
+feasibility sheet show, so the same thing reads the same everywhere. Nothing
+here computes: every function turns a value it is given into text.
+
+Schedules come in four forms, one per kind of place they appear:
+
+- :func:`schedule_words`, the short form of a table cell
+  (``"12° 1 Apr–30 Sep, 34° 1 Oct–31 Mar; facing 180° (S)"``), also in plain
+  ASCII for the command line (``plain=True``: ``"12 deg 1 Apr-30 Sep, ..."``);
+- :func:`schedule_sentence`, the sentence of the printed sheet
+  (``"12° from 1 Apr to 30 Sep, 34° from 1 Oct to 31 Mar; facing 180° (S)"``);
+- :func:`schedule_summary`, one narrow cell (``"2 periods: 12/34° facing 180° (S)"``);
+- :func:`schedule_code`, the machine-readable CSV code
+  (``"04-01..09-30 12/180; 10-01..03-31 34/180"``).
+
+A schedule is a sequence of periods, each with ``start`` and ``end``
+(``"MM-DD"``, inclusive, a period may run past 31 December), ``tilt_deg`` and
+``azimuth_deg`` (degrees; azimuth clockwise from true north). A period whose
+tilt is None follows the sun (the two-axis tracker). Periods may be objects
+with those attributes (:class:`tiltyard.engine.tilt.Period`) or mappings with
+those keys (a study's JSON document); an object with a ``schedule`` attribute
+(a :class:`tiltyard.engine.tilt.StudyOption`) stands for its schedule.
+
+No Qt here: the engine and the app both import this module.
+"""
+
+from __future__ import annotations
+
+import calendar
+import math
+from collections.abc import Mapping, Sequence
+
+#: Month names, January first.
+MONTH_NAMES = ("January", "February", "March", "April", "May", "June", "July", "August",
+               "September", "October", "November", "December")
+
+#: Three-letter month abbreviations, January first (table rows, chart axes).
+MONTH_ABBR = tuple(m[:3] for m in MONTH_NAMES)
+
+#: The eight compass points, clockwise from north.
+COMPASS_8 = ("N", "NE", "E", "SE", "S", "SW", "W", "NW")
+
+#: The sixteen compass points, clockwise from north.
+COMPASS_16 = ("N", "NNE", "NE", "ENE", "E", "ESE", "SE", "SSE", "S", "SSW", "SW", "WSW", "W",
+              "WNW", "NW", "NNW")
+
+#: Transposition and clear-sky models as the trade writes them.
+MODEL_NAMES = {"perez": "Perez 1990", "haydavies": "Hay-Davies",
+               "isotropic": "isotropic (Liu-Jordan)", "ineichen": "Ineichen-Perez",
+               "simplified_solis": "simplified Solis", "haurwitz": "Haurwitz"}
+
+#: The sky bases a user can choose, as a menu offers them (``file`` opens a file dialog).
+SKY_CHOICE_WORDS = {"auto": "best available (weather file, else monthly values, else clear sky)",
+                    "clear": "clear sky (upper bound)", "monthly": "monthly GHI values",
+                    "file": "weather file…"}
+
+#: How panels are held (the engine's mounting kinds, :data:`tiltyard.engine.site.MOUNTINGS`).
+MOUNTING_WORDS = {"flush": "flush on the roof", "fixed-rack": "fixed rack",
+                  "adjustable": "adjustable rack", "ground-rows": "ground rows",
+                  "flat-roof-rows": "flat-roof rows"}
+
+#: What each mounting means, as the sheet's assumptions state it.
+MOUNTING_SENTENCES = {
+    "flush": "panels flush on the roof: the roof's own tilt and direction, no seasonal "
+             "adjustment",
+    "fixed-rack": "a fixed rack: one tilt all year",
+    "adjustable": "an adjustable rack: seasonal tilt schedules",
+    "ground-rows": "fixed racks in rows on the ground",
+    "flat-roof-rows": "fixed racks in rows on a flat roof"}
+
+#: The clock that times are shown in.
+TIME_BASIS_WORDS = {"clock": "local clock time (with daylight saving)",
+                    "standard": "local standard time", "solar": "apparent solar time"}
+
+#: What a tilt study's objective measures.
+OBJECTIVE_WORDS = {"annual": "the annual total", "worst-month": "the weakest month",
+                   "months": "the chosen months"}
+
+#: Short names of the tilt study's option kinds (a site plane keeps its own label).
+OPTION_NAMES = {"horizontal": "Horizontal", "rule-of-thumb": "Rule of thumb",
+                "fixed-optimal": "Optimal fixed", "two-season": "Two-season",
+                "four-season": "Four-season", "monthly": "Monthly",
+                "two-axis": "Two-axis (ceiling)"}
+
+
+# -- months, degrees, directions ------------------------------------------------------
+
+def day_words(mmdd: str, year: int | None = None) -> str:
+    """A ``"MM-DD"`` date as day and month abbreviation: ``"04-01"`` -> ``"1 Apr"``.
+
+    Parameters
+    ----------
+    mmdd : str
+        Month and day, ``"MM-DD"``.
+    year : int, optional
+        When given, the date must exist in that year (``"02-29"`` only in a leap year).
+
+    Raises
+    ------
+    ValueError
+        Not a date of the year.
+    """
+    m, d = (int(x) for x in mmdd.split("-"))
+    last = calendar.monthrange(year if year is not None else 2024, m)[1] if 1 <= m <= 12 else 0
+    if not 1 <= d <= last:
+        raise ValueError(f"date = {mmdd!r}: not a day of the year")
+    return f"{d} {MONTH_ABBR[m - 1]}"
+
+
+def day_month(day, full: bool = False) -> str:
+    """A date's day and month, whatever the locale: ``"21 Dec"``, ``"21 December"`` (``full``).
+
+    ``day`` is anything with ``day`` and ``month`` attributes (a ``datetime.date``,
+    a ``pandas.Timestamp``).
+    """
+    return f"{day.day} {(MONTH_NAMES if full else MONTH_ABBR)[day.month - 1]}"
+
+
+def month_list(months: Sequence[int]) -> str:
+    """Month numbers (1-12) as abbreviations: ``[12, 1, 2]`` -> ``"Dec, Jan, Feb"``."""
+    return ", ".join(MONTH_ABBR[int(m) - 1] for m in months)
+
+
+def degrees(value: float, plain: bool = False) -> str:
+    """An angle to the degree, or to a tenth where it is not whole: ``"34°"``, ``"37.5°"``.
+
+    Within 0.05° of a whole number the angle is written whole. ``plain`` writes
+    ``"34 deg"`` (ASCII, for the command line's tables).
+    """
+    text = f"{value:.0f}" if abs(value - round(value)) < 0.05 else f"{value:.1f}"
+    return text + (" deg" if plain else "°")
+
+
+def degree_text(text: str) -> str:
+    """An engine label with ``" deg"`` written as the degree sign: ``"37 deg"`` -> ``"37°"``."""
+    return text.replace(" deg", "°")
+
+
+def compass(azimuth_deg: float, points: int = 16) -> str:
+    """The compass point nearest an azimuth.
+
+    Parameters
+    ----------
+    azimuth_deg : float
+        Degrees clockwise from true north; any value (taken modulo 360).
+    points : {16, 8}
+        Sixteen points (22.5° sectors) or eight (45° sectors).
+
+    Returns
+    -------
+    str
+        ``"N"``, ``"NNE"``, ... Each point owns the sector centred on it; an
+        azimuth exactly half-way between two points goes to the clockwise one
+        (rounding half up): with 16 points 11.25° is NNE and 348.75° is N,
+        with 8 points 22.5° is NE.
+
+    Raises
+    ------
+    ValueError
+        ``points`` not 8 or 16, or the azimuth not a finite number.
+    """
+    if points not in (8, 16):
+        raise ValueError(f"points = {points!r}: must be 8 or 16")
+    az = float(azimuth_deg)
+    if not math.isfinite(az):
+        raise ValueError(f"azimuth_deg = {azimuth_deg!r}: must be a finite number")
+    names = COMPASS_16 if points == 16 else COMPASS_8
+    return names[int(math.floor((az % 360.0) / (360.0 / points) + 0.5)) % points]
+
+
+def bearing(azimuth_deg: float, plain: bool = False, decimals: int = 0) -> str:
+    """An azimuth with its 16-point compass name: ``"180° (S)"``, ``"93.5° (E)"``.
+
+    The number is rounded to ``decimals`` and then taken within 0-360 (359.7°
+    reads ``"0° (N)"`` to the degree); the compass name is that of the azimuth
+    itself (:func:`compass`). ``plain`` writes ``"180 deg (S)"``.
+    """
+    unit = " deg" if plain else "°"
+    shown = round(float(azimuth_deg), decimals) % 360.0
+    return f"{shown:.{decimals}f}{unit} ({compass(azimuth_deg)})"
+
+
+def plane_words(tilt_deg: float, azimuth_deg: float) -> str:
+    """A fixed plane: ``"22° facing 196° (SSW)"``; a horizontal one ``"0° (flat)"``."""
+    return "0° (flat)" if tilt_deg == 0 else f"{degrees(tilt_deg)} facing {bearing(azimuth_deg)}"
+
+
+def compass_tick(azimuth_deg: float, sep: str = " ") -> str:
+    """A chart tick at a multiple of 45°: ``"SE 135°"`` (8 points, azimuth within 0-360)."""
+    return f"{compass(azimuth_deg, 8)}{sep}{azimuth_deg % 360.0:.0f}°"
+
+
+# -- models, bases, mountings, options ----------------------------------------------------
+
+def _lookup(table: Mapping[str, str], key: str, what: str) -> str:
+    try:
+        return table[key]
+    except KeyError:
+        raise ValueError(f"{what} = {key!r}: must be one of {', '.join(table)}") from None
+
+
+def _capital(text: str, capital: bool) -> str:
+    return text[:1].upper() + text[1:] if capital else text
+
+
+def model_name(key: str, capital: bool = False) -> str:
+    """A model key as the trade writes it: ``"perez"`` -> ``"Perez 1990"``.
+
+    ``capital`` capitalises the first letter (a menu item). Raises ValueError
+    for an unknown key.
+    """
+    return _capital(_lookup(MODEL_NAMES, key, "model"), capital)
+
+
+def sky_choice_words(key: str, capital: bool = False) -> str:
+    """A sky-basis choice as a menu offers it (:data:`SKY_CHOICE_WORDS`)."""
+    return _capital(_lookup(SKY_CHOICE_WORDS, key, "sky"), capital)
+
+
+def basis_words(kind: str, weather_name: str | None = None) -> str:
+    """The sky basis used, as a header or a sentence says it.
+
+    ``"clear sky: upper bound only"``, ``"on the site's monthly irradiation
+    values"``, ``"on the weather file NAME"`` (``"on the weather file"`` without
+    a name).
+    """
+    if kind == "file":
+        return "on the weather file" + (f" {weather_name}" if weather_name else "")
+    if kind == "monthly":
+        return "on the site's monthly irradiation values"
+    if kind == "clear":
+        return "clear sky: upper bound only"
+    raise ValueError(f"sky = {kind!r}: must be one of clear, monthly, file")
+
+
+def basis_label(kind: str, weather_name: str | None = None) -> str:
+    """The sky basis used, as a table cell or a chart title names it.
+
+    ``"clear sky (upper bound)"``, ``"monthly GHI values"``, ``"weather file NAME"``.
+    """
+    if kind == "file":
+        return "weather file" + (f" {weather_name}" if weather_name else "")
+    if kind in ("clear", "monthly"):
+        return SKY_CHOICE_WORDS[kind]
+    raise ValueError(f"sky = {kind!r}: must be one of clear, monthly, file")
+
+
+def mounting_words(kind: str) -> str:
+    """A mounting kind in the user's words: ``"fixed-rack"`` -> ``"fixed rack"``."""
+    return _lookup(MOUNTING_WORDS, kind, "mounting")
+
+
+def mounting_sentence(kind: str) -> str:
+    """What a mounting means, in a sentence for the sheet's assumptions."""
+    return _lookup(MOUNTING_SENTENCES, kind, "mounting")
+
+
+def time_basis_words(key: str) -> str:
+    """The clock times are shown in: ``"solar"`` -> ``"apparent solar time"``."""
+    return _lookup(TIME_BASIS_WORDS, key, "time_basis")
+
+
+def objective_words(objective: str, months: Sequence[int] = ()) -> str:
+    """What a study's objective measures: ``"the weakest month"``, ``"the total of Dec, Jan"``."""
+    if objective == "months":
+        return "the total of " + month_list(months)
+    return _lookup(OBJECTIVE_WORDS, objective, "objective")
+
+
+def option_name(option) -> str:
+    """Short name of a study option by its kind (a site plane keeps its own label)."""
+    return OPTION_NAMES.get(option.kind, option.label)
+
+
+# -- schedules ------------------------------------------------------------------------
+
+def _get(period, key: str):
+    return period[key] if isinstance(period, Mapping) else getattr(period, key)
+
+
+def _periods(schedule) -> list:
+    periods = list(getattr(schedule, "schedule", schedule))
+    if not periods:
+        raise ValueError("schedule = (): must hold at least one period")
+    return periods
+
+
+def _tracking(periods: list) -> bool:
+    return any(_get(p, "tilt_deg") is None for p in periods)
+
+
+def whole_month(period, year: int) -> int | None:
+    """The month number (1-12) if ``period`` is exactly one calendar month of ``year``."""
+    sm, sd = (int(x) for x in _get(period, "start").split("-"))
+    em, ed = (int(x) for x in _get(period, "end").split("-"))
+    if sd != 1 or sm != em:
+        return None
+    return sm if ed == calendar.monthrange(year, sm)[1] else None
+
+
+def _facing(periods: list, plain: bool) -> str:
+    az = _get(periods[0], "azimuth_deg")
+    return "" if az is None else f"facing {bearing(az, plain)}"
+
+
+def schedule_words(schedule, year: int, plain: bool = False) -> str:
+    """A schedule in the short form of a table cell.
+
+    ``"34° all year, facing 180° (S)"``; ``"12° 1 Apr–30 Sep, 34° 1 Oct–31 Mar;
+    facing 180° (S)"``; whole calendar months as ``"Jan 62°, Feb 55°, ...;
+    facing 180° (S)"``; ``"follows the sun all year (two-axis tracker)"``.
+    ``plain`` writes ASCII for the command line (``"34 deg"``, ``"1 Apr-30 Sep"``).
+    The facing direction is the first period's (a study's periods share one).
+    """
+    periods = _periods(schedule)
+    if _tracking(periods):
+        return "follows the sun all year (two-axis tracker)"
+    facing = _facing(periods, plain)
+    if len(periods) == 1:
+        return f"{degrees(_get(periods[0], 'tilt_deg'), plain)} all year" + (
+            f", {facing}" if facing else "")
+    months = [whole_month(p, year) for p in periods]
+    if all(m is not None for m in months):
+        parts = [f"{MONTH_ABBR[m - 1]} {degrees(_get(p, 'tilt_deg'), plain)}"
+                 for m, p in zip(months, periods, strict=True)]
+    else:
+        dash = "-" if plain else "–"
+        parts = [f"{degrees(_get(p, 'tilt_deg'), plain)} {day_words(_get(p, 'start'), year)}"
+                 f"{dash}{day_words(_get(p, 'end'), year)}" for p in periods]
+    return ", ".join(parts) + (f"; {facing}" if facing else "")
+
+
+def schedule_sentence(schedule, year: int) -> str:
+    """A schedule as the sheet's sentence.
+
+    ``"12° from 1 Apr to 30 Sep, 34° from 1 Oct to 31 Mar; facing 180° (S)"``;
+    one period, whole calendar months and the tracker read as in
+    :func:`schedule_words`.
+    """
+    periods = _periods(schedule)
+    if (_tracking(periods) or len(periods) == 1
+            or all(whole_month(p, year) is not None for p in periods)):
+        return schedule_words(periods, year)
+    parts = [f"{degrees(_get(p, 'tilt_deg'))} from {day_words(_get(p, 'start'), year)} to "
+             f"{day_words(_get(p, 'end'), year)}" for p in periods]
+    facing = _facing(periods, False)
+    return ", ".join(parts) + (f"; {facing}" if facing else "")
+
+
+def schedule_summary(schedule) -> str:
+    """A schedule in one narrow cell, without dates.
+
+    ``"0° (flat)"``; ``"37° facing 180° (S)"``; ``"2 periods: 34/12° facing
+    180° (S)"``; five periods or more as their range, ``"12 periods: 10° to 62°
+    facing 180° (S)"``; ``"follows the sun"``.
+    """
+    periods = _periods(schedule)
+    if _tracking(periods):
+        return "follows the sun"
+    tilts = [_get(p, "tilt_deg") for p in periods]
+    facing = _facing(periods, False)
+    if len(periods) == 1:
+        return plane_words(tilts[0], _get(periods[0], "azimuth_deg"))
+    if len(periods) <= 4:
+        which = "/".join(degrees(t)[:-1] for t in tilts) + "°"
+    else:
+        which = f"{degrees(min(tilts))} to {degrees(max(tilts))}"
+    return f"{len(periods)} periods: {which} {facing}"
+
+
+def schedule_code(schedule) -> str:
+    """A schedule as the CSV code ``MM-DD..MM-DD tilt/azimuth`` per period, ``"; "`` between.
+
+    ``"01-01..12-31 37/180"``; ``"tracking"`` for the two-axis tracker. Numbers
+    in Python's ``g`` format (shortest form, no unit).
+    """
+    periods = _periods(schedule)
+    if _tracking(periods):
+        return "tracking"
+    return "; ".join(f"{_get(p, 'start')}..{_get(p, 'end')} {_get(p, 'tilt_deg'):g}/"
+                     f"{_get(p, 'azimuth_deg'):g}" for p in periods)
+
+
+__all__ = ["COMPASS_16", "COMPASS_8", "MODEL_NAMES", "MONTH_ABBR", "MONTH_NAMES",
+           "MOUNTING_SENTENCES", "MOUNTING_WORDS", "OBJECTIVE_WORDS", "OPTION_NAMES", "SKY_CHOICE_WORDS",
+           "TIME_BASIS_WORDS", "basis_label", "basis_words", "bearing", "compass",
+           "compass_tick", "day_month", "day_words", "degree_text", "degrees", "model_name", "month_list",
+           "mounting_sentence", "mounting_words", "objective_words", "option_name", "plane_words", "schedule_code",
+           "schedule_sentence", "schedule_summary", "schedule_words", "sky_choice_words",
+           "time_basis_words", "whole_month"]
