@@ -175,10 +175,12 @@ class SiteView(View):
         planes = QGroupBox("Existing planes (roof slopes as they are)")
         pl = QVBoxLayout(planes)
         self.planes = QTableWidget(0, 4)
-        self.planes.setHorizontalHeaderLabels(["Label", "Tilt (°)", "Azimuth (° from N)",
-                                               "Panels"])
+        self.planes.setHorizontalHeaderLabels(["Label", "Tilt (°)", "Azimuth (°)", "Panels"])
+        self.planes.horizontalHeaderItem(2).setToolTip("Degrees clockwise from true north "
+                                                       "(south = 180°)")
         self.planes.horizontalHeader().setStretchLastSection(True)
-        self.planes.setColumnWidth(0, 200)
+        for col, width in enumerate((170, 60, 90)):
+            self.planes.setColumnWidth(col, width)
         self.planes.verticalHeader().setVisible(False)
         self.planes.setMinimumHeight(120)
         self.planes.itemChanged.connect(self._planes_edited)
