@@ -18,6 +18,7 @@ import os
 from pathlib import Path
 
 from PySide6.QtCore import QObject, QStandardPaths, Signal
+from PySide6.QtGui import QUndoCommand, QUndoStack
 
 from tiltyard.engine.assessment import (
     Assessment,
@@ -42,6 +43,33 @@ def _as_assessment(doc: Site | Assessment) -> Assessment:
     return doc if isinstance(doc, Assessment) else Assessment(doc)
 
 
+class _Edit(QUndoCommand):
+    """One accepted edit of the document: the assessment before and after it."""
+
+    def __init__(self, document: SiteDocument, before: Assessment, after: Assessment,
+                 text: str):
+        super().__init__(text)
+        self._doc, self._before, self._after = document, before, after
+
+    def redo(self) -> None:
+        self._doc._show(self._after)
+
+    def undo(self) -> None:
+        self._doc._show(self._before)
+
+
+def _edit_text(changes: dict) -> str:
+    """What an edit changed, for Edit → Undo …, in the user's words."""
+    names = {"name": "name", "latitude_deg": "latitude", "longitude_deg": "longitude",
+             "elevation_m": "elevation", "timezone": "time zone", "albedo": "albedo",
+             "horizon": "horizon", "obstacles": "obstacles", "planes": "planes",
+             "monthly_ghi_kwh_m2_day": "monthly GHI values", "notes": "notes",
+             "linke_turbidity": "turbidity", "sky": "sky basis", "weather": "weather file",
+             "model": "sky diffuse model", "study": "study settings", "mounting": "mounting",
+             "rows": "row settings", "interval_min": "interval", "year": "year"}
+    return "change " + ", ".join(names.get(k, k.replace("_", " ")) for k in changes)
+
+
 class SiteDocument(QObject):
     """Holds the current assessment; emits ``site_changed(Site)``,
     ``settings_changed(Assessment)``, ``replaced(Assessment)`` and ``state_changed()``."""
@@ -56,8 +84,10 @@ class SiteDocument(QObject):
         self._assessment = (_as_assessment(site) if site is not None
                             else demo_assessment(DEFAULT_DEMO))
         self._path: Path | None = None
-        self._dirty = False
+        self._dirty = False            # unsaved before any edit (a new or recovered site)
         self._demo_name: str | None = DEFAULT_DEMO if site is None else None
+        self.undo_stack = QUndoStack(self)
+        self.undo_stack.cleanChanged.connect(lambda _clean: self.state_changed.emit())
 
     # -- state ----------------------------------------------------------------
     @property
@@ -79,7 +109,9 @@ class SiteDocument(QObject):
 
     @property
     def dirty(self) -> bool:
-        return self._dirty
+        """Unsaved edits: the undo stack away from its clean (saved) state, or a document
+        that was never saved."""
+        return self._dirty or not self.undo_stack.isClean()
 
     @property
     def title(self) -> str:
@@ -102,10 +134,7 @@ class SiteDocument(QObject):
         except ValueError as exc:      # the settings no longer fit the edited site
             return SiteError("site", "", str(exc))
         if new != self._site:
-            self._assessment = assessment
-            self._dirty = True
-            self.site_changed.emit(new)
-            self.state_changed.emit()
+            self.undo_stack.push(_Edit(self, self._assessment, assessment, _edit_text(changes)))
         return None
 
     def set_settings(self, **changes) -> ValueError | None:
@@ -116,11 +145,17 @@ class SiteDocument(QObject):
         except ValueError as exc:
             return exc
         if new != self._assessment:
-            self._assessment = new
-            self._dirty = True
-            self.settings_changed.emit(new)
-            self.state_changed.emit()
+            self.undo_stack.push(_Edit(self, self._assessment, new, _edit_text(changes)))
         return None
+
+    def _show(self, assessment: Assessment) -> None:
+        """Make ``assessment`` current (an edit, its undo or its redo) and say what changed."""
+        before, self._assessment = self._assessment, assessment
+        if assessment.site != before.site:
+            self.site_changed.emit(assessment.site)
+        if assessment.with_site(before.site) != before:
+            self.settings_changed.emit(assessment)
+        self.state_changed.emit()
 
     def replace(self, site: Site | Assessment, path: str | os.PathLike | None = None,
                 dirty: bool = False, demo_name: str | None = None) -> None:
@@ -130,6 +165,7 @@ class SiteDocument(QObject):
         self._path = Path(path) if path is not None else None
         self._dirty = dirty
         self._demo_name = demo_name
+        self.undo_stack.clear()           # no undoing into the previous site
         self.replaced.emit(self._assessment)
         self.site_changed.emit(self._assessment.site)
         self.state_changed.emit()
@@ -151,6 +187,7 @@ class SiteDocument(QObject):
         save_assessment(self._assessment, target)
         self._path = target
         self._dirty = False
+        self.undo_stack.setClean()
         self._demo_name = None
         self.state_changed.emit()
         return target
@@ -162,7 +199,7 @@ class SiteDocument(QObject):
 
     def write_autosave(self) -> Path | None:
         """Write the unsaved site to the autosave file (only when there are edits)."""
-        if not self._dirty:
+        if not self.dirty:
             return None
         target = self.autosave_path()
         save_assessment(self._assessment, target)

@@ -143,6 +143,7 @@ class StudyView(StudyChartDrawing, View):
 
         self._loading = False
         ctx.document.replaced.connect(self._load_settings)
+        ctx.document.settings_changed.connect(self._settings_changed)
         self._load_settings(ctx.assessment)
 
     # -- construction ---------------------------------------------------------
@@ -449,6 +450,17 @@ class StudyView(StudyChartDrawing, View):
         kw = self._kwargs()
         mounting = Mounting(self.mounting.currentData(), int(self.positions.currentData()))
         self.ctx.set_settings(study=StudySettings(**kw), mounting=mounting)
+
+    def _settings_changed(self, assessment) -> None:
+        """Settings changed elsewhere (an undo, a redo): show them unless they are the
+        editor's own."""
+        try:
+            shown = (StudySettings(**self._kwargs()),
+                     Mounting(self.mounting.currentData(), int(self.positions.currentData())))
+        except ValueError:
+            shown = None
+        if shown != (assessment.study, assessment.mounting):
+            self._load_settings(assessment)
 
     def _load_settings(self, assessment) -> None:
         """Show a newly opened site's own study settings and mounting in the editor."""

@@ -159,3 +159,53 @@ def test_the_window_opens_a_site_with_its_saved_settings(qtbot, tmp_path):
     assert w2.ctx.assessment.model == "isotropic" and w2.document.path == path
     w.runner.shutdown(60000)
     w2.runner.shutdown(60000)
+
+
+def test_undo_and_redo_every_edit_and_the_dirty_mark_follows(qtbot, make_ctx, idle, tmp_path):
+    from tiltyard.engine.site import Obstacle
+
+    ctx = make_ctx("kelpie-creek-shed")
+    doc = ctx.document
+    view = _show(qtbot, StudyView(ctx))
+    idle(ctx.runner)
+    start = ctx.assessment
+    assert not doc.dirty and not doc.undo_stack.canUndo()
+    assert doc.propose(elevation_m=700.0) is None                        # a site field
+    tree = Obstacle("gum tree", 45.0, 10.0, 20.0, 8.0)
+    assert doc.propose(obstacles=ctx.site.obstacles + (tree,)) is None   # an obstacle
+    view.objective.setCurrentIndex(view.objective.findData("worst-month"))  # a setting
+    assert doc.undo_stack.count() == 3 and doc.dirty
+    assert doc.undo_stack.undoText() == "change study settings, mounting"
+    doc.undo_stack.undo()
+    assert view.objective.currentData() == "annual"                      # the editor follows
+    doc.undo_stack.undo()
+    assert tree not in ctx.site.obstacles
+    doc.undo_stack.undo()
+    assert ctx.assessment == start and not doc.dirty                     # back to clean
+    doc.undo_stack.redo()
+    assert ctx.site.elevation_m == 700.0 and doc.dirty
+    doc.save(tmp_path / "kelpie.json")
+    assert not doc.dirty                                                 # saved is clean
+    doc.undo_stack.undo()
+    assert doc.dirty
+    doc.open_demo("larkmoor-dairy")                                      # a new document
+    assert not doc.undo_stack.canUndo() and not doc.dirty
+    idle(ctx.runner)
+
+
+def test_the_edit_menu_undoes_with_the_usual_shortcuts(qtbot):
+    from PySide6.QtGui import QKeySequence
+
+    from tiltyard.app.desktop import create_window
+
+    w = create_window("larkmoor-dairy")
+    qtbot.addWidget(w)
+    assert w.undo_action.shortcut() == QKeySequence(QKeySequence.StandardKey.Undo)
+    assert w.redo_action.shortcut() == QKeySequence(QKeySequence.StandardKey.Redo)
+    assert not w.undo_action.isEnabled()
+    w.document.propose(name="Larkmoor dairy, new parlour roof")
+    assert w.undo_action.isEnabled() and w.windowTitle().startswith("*")
+    w.undo_action.trigger()
+    assert w.ctx.site.name == "Larkmoor dairy, milking-shed roof"
+    assert not w.windowTitle().startswith("*")
+    w.runner.shutdown(60000)
