@@ -11,10 +11,13 @@ Sheet show.
 
 from __future__ import annotations
 
+import datetime as _dt
+
 from PySide6.QtCore import QObject, Signal
 
 from tiltyard.engine.assessment import Assessment
 from tiltyard.engine.site import Site
+from tiltyard.engine.timegrid import REFERENCE_YEAR
 
 from .document import SiteDocument
 from .settings import Preferences
@@ -25,6 +28,7 @@ class AppContext(QObject):
     """Shared state with change signals."""
 
     study_changed = Signal(object)      # TiltStudy or None
+    design_date_changed = Signal(object)  # datetime.date
     preferences_changed = Signal(object)
     message = Signal(str, str)          # level ("error"|"warning"|"info"), text
 
@@ -35,6 +39,7 @@ class AppContext(QObject):
         self.runner = runner
         self.prefs = prefs
         self.study = None
+        self.design_date = self.default_design_date(document.site)
         document.replaced.connect(self._on_replaced)
 
     @property
@@ -57,9 +62,23 @@ class AppContext(QObject):
         self.study = study
         self.study_changed.emit(study)
 
-    def _on_replaced(self, _assessment) -> None:
+    @staticmethod
+    def default_design_date(site: Site) -> _dt.date:
+        """The day every view shows first: the summer solstice of the site's hemisphere in
+        the reference year (21 June north of the equator, 21 December south)."""
+        return _dt.date(REFERENCE_YEAR, 6, 21) if site.latitude_deg >= 0 else \
+            _dt.date(REFERENCE_YEAR, 12, 21)
+
+    def set_design_date(self, day: _dt.date) -> None:
+        """The one design date the Sun path and Irradiance views share."""
+        if day != self.design_date:
+            self.design_date = day
+            self.design_date_changed.emit(day)
+
+    def _on_replaced(self, assessment) -> None:
         """A new document: nothing computed for the previous site stays."""
         self.publish_study(None)
+        self.set_design_date(self.default_design_date(assessment.site))
 
     def set_preferences(self, prefs: Preferences) -> None:
         self.prefs = prefs

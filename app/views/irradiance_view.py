@@ -240,8 +240,9 @@ class IrradianceView(View):
         self.date_edit.setCalendarPopup(True)
         self.date_edit.setDisplayFormat("d MMMM yyyy")
         self.date_edit.setDateRange(QDate(REFERENCE_YEAR, 1, 1), QDate(REFERENCE_YEAR, 12, 31))
-        self.date_edit.setDate(QDate(REFERENCE_YEAR, 6, 21) if ctx.site.latitude_deg >= 0
-                               else QDate(REFERENCE_YEAR, 12, 21))
+        self.date_edit.setDate(QDate(REFERENCE_YEAR, ctx.design_date.month,
+                                     ctx.design_date.day))
+        ctx.design_date_changed.connect(self._design_date_changed)
         self.date_edit.setToolTip(f"A date of the reference year {REFERENCE_YEAR} "
                                   "(the year every figure is computed for)")
         self.date_edit.dateChanged.connect(self._date_picked)
@@ -452,9 +453,20 @@ class IrradianceView(View):
         if not self._updating:
             self._request(day=True, year=False)
 
-    def _date_picked(self, _date) -> None:
+    def _date_picked(self, date) -> None:
         if not self._updating:
+            d = date.toPython()
+            if (d.month, d.day) != (self.ctx.design_date.month, self.ctx.design_date.day):
+                self.ctx.set_design_date(d)     # shared with the Sun path view
             self._request(day=True, year=False)
+
+    def _design_date_changed(self, day) -> None:
+        """The shared design date, in the reference year every figure here is for (29
+        February becomes 28 February in a non-leap year)."""
+        d = self.date_edit.date()
+        if (d.month(), d.day()) != (day.month, day.day):
+            q = QDate(REFERENCE_YEAR, day.month, day.day)
+            self.date_edit.setDate(q if q.isValid() else QDate(REFERENCE_YEAR, day.month, 28))
 
     def open_weather_dialog(self) -> WeatherDialog:
         """Open the weather-file dialog (window-modal, not blocking) and return it."""

@@ -180,8 +180,9 @@ class SunPathView(View):
         self.date_edit.setCalendarPopup(True)
         self.date_edit.setDisplayFormat("d MMM yyyy")
         self.date_edit.setDateRange(QDate(1901, 1, 1), QDate(2099, 12, 31))
-        self.date_edit.setDate(QDate.currentDate())
-        self.date_edit.setToolTip("The date drawn in bold and described below the charts")
+        self.date_edit.setDate(QDate(ctx.design_date))
+        self.date_edit.setToolTip("The date drawn in bold and described below the charts "
+                                  "(shared with the Irradiance view)")
         top.addWidget(self.date_edit)
         top.addSpacing(10)
         top.addWidget(QLabel("Times in"))
@@ -258,7 +259,9 @@ class SunPathView(View):
         outer.addWidget(lower, 0)
 
         # -- signals ----------------------------------------------------------------
-        self.date_edit.dateChanged.connect(lambda _d: self.mark_stale())
+        self.date_edit.dateChanged.connect(
+            lambda d: (ctx.set_design_date(d.toPython()), self.mark_stale()))
+        ctx.design_date_changed.connect(self._design_date_changed)
         self.basis.currentIndexChanged.connect(lambda _i: self.mark_stale())
         ctx.preferences_changed.connect(lambda prefs: self._set_basis(prefs.time_basis))
         self._proxies = [
@@ -402,6 +405,10 @@ class SunPathView(View):
                                 f"{abs(site.longitude_deg):.2f}° {ew} · {site.timezone}")
 
     # -- computation ------------------------------------------------------------------
+    def _design_date_changed(self, day) -> None:
+        if self.date_edit.date().toPython() != day:
+            self.date_edit.setDate(QDate(day))           # marks the view stale
+
     def refresh(self) -> None:
         super().refresh()
         site = self.ctx.site

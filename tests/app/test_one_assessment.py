@@ -209,3 +209,23 @@ def test_the_edit_menu_undoes_with_the_usual_shortcuts(qtbot):
     assert w.ctx.site.name == "Larkmoor dairy, milking-shed roof"
     assert not w.windowTitle().startswith("*")
     w.runner.shutdown(60000)
+
+
+def test_one_design_date_for_the_sun_path_and_the_irradiance_views(qtbot, make_ctx, idle):
+    from PySide6.QtCore import QDate
+
+    from tiltyard.app.views.sunpath_view import SunPathView
+
+    ctx = make_ctx("kelpie-creek-shed")                        # southern hemisphere
+    sun = SunPathView(ctx)
+    qtbot.addWidget(sun)
+    irr = _show(qtbot, IrradianceView(ctx))
+    # the summer solstice of the site's hemisphere in both (not today's date)
+    assert sun.date_edit.date() == QDate(2023, 12, 21) == irr.date_edit.date()
+    sun.date_edit.setDate(QDate(2023, 3, 20))
+    assert irr.date_edit.date() == QDate(2023, 3, 20)
+    irr.date_edit.setDate(QDate(2023, 9, 23))
+    assert sun.date_edit.date() == QDate(2023, 9, 23)
+    ctx.document.open_demo("larkmoor-dairy")                   # northern: a new default
+    assert sun.date_edit.date() == QDate(2023, 6, 21) == irr.date_edit.date()
+    idle(ctx.runner)
