@@ -285,7 +285,7 @@ def _month_key(m: Measure, rect: QRectF, months, s: float, frame: QRectF) -> lis
     ops = fit_text(m, "21st of the other months:", QRectF(rect.left(), rect.top(),
                                                            rect.width(), lh), font,
                    min_size=LEGEND_PT, role="legend").ops
-    cols = 2
+    cols = 4                       # two rows for the eight months drawn
     cw = rect.width() / cols
     for i, month in enumerate(months):
         r, c = divmod(i, cols)
@@ -294,8 +294,8 @@ def _month_key(m: Measure, rect: QRectF, months, s: float, frame: QRectF) -> lis
             break
         x = rect.left() + c * cw
         ops += _line_sample(theme.month_color(month).name(), 1.2, month_dash(month),
-                            frame=frame)(QRectF(x, y, 18.0, lh))
-        ops += fit_text(m, MONTH_ABBR[month - 1], QRectF(x + 21.0, y, cw - 22.0, lh), font,
+                            frame=frame)(QRectF(x, y, 12.0, lh))
+        ops += fit_text(m, MONTH_ABBR[month - 1], QRectF(x + 14.0, y, cw - 15.0, lh), font,
                         min_size=LEGEND_PT, role="legend.month").ops
     for op in ops:
         op.frame = QRectF(frame)
@@ -474,7 +474,7 @@ def sun_path_chart(m: Measure, frame: QRectF, chart, basis_words: str, s: float 
     ops += _legend(m, lrect, entries, s, frame, below)
     # the solstice and equinox months are drawn in their own styles, keyed above
     drawn = sorted({p.month for p in months if len(p)} - {3, 6, 9, 12})
-    key = QRectF(lrect.left(), below[0] + 2.0, lrect.width(), lrect.bottom() - below[0] - 2.0)
+    key = QRectF(lrect.left(), below[0] + 2.0, lrect.width(), frame.bottom() - below[0] - 2.0)
     ops += _month_key(m, key, drawn, s, frame)
     return ops
 
