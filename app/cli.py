@@ -132,6 +132,12 @@ def build_parser() -> argparse.ArgumentParser:
                                         "preference)")
     s.add_argument("--prepared", type=_date, default=None, metavar="YYYY-MM-DD",
                    help="date prepared (default: today)")
+    s.add_argument("--client", default=None, metavar="NAME",
+                   help="who the sheet is prepared for (default: the site file's)")
+    s.add_argument("--address", default=None, metavar="TEXT",
+                   help="the site's address on the sheet (default: the site file's)")
+    s.add_argument("--reference", default=None, metavar="TEXT",
+                   help="your job or quote reference on the sheet (default: the site file's)")
     s.add_argument("--times", choices=TIME_BASES, default=None,
                    help="time basis of the sun-path hour lines: clock (local clock time with "
                         "daylight saving), standard or solar (default: the app's preference, "
@@ -740,6 +746,15 @@ def cmd_sheet(args) -> int:
             raise UserError(f"--hourly-options {args.hourly_options}: {err}") from None
     assessment = _assessment(args)
     _refuse_outputs_over_inputs(wanted, args.site, assessment)
+    given = {k: getattr(args, k).strip() for k in ("client", "address", "reference")
+             if getattr(args, k) is not None}
+    if given:                   # who the sheet is for: no figure changes with it
+        from tiltyard.engine.site import SiteError
+
+        try:
+            assessment = assessment.with_site(assessment.site.with_changes(**given))
+        except SiteError as err:
+            raise UserError(f"--{err.field.split('.')[-1]}: {err.reason}") from None
     prefs = None
     if None in (args.preparer, args.organisation, args.paper, args.times):
         prefs = _sheet_preferences()

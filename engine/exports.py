@@ -32,7 +32,7 @@ import pandas as pd
 from .allsky import weather_json_dict
 from .horizon_loss import PlaneHorizonLoss, schedule_horizon_loss
 from .jobs import model_references
-from .site import Site, site_to_dict
+from .site import CLIENT_KEYS, Site, site_to_dict
 from .skyyear import SkyYear, sky_year
 from .sunchart import SunChart, sun_chart
 from .tilt import (
@@ -52,6 +52,7 @@ from .words import (
     model_name,
     mounting_sentence,
     objective_words,
+    plural,
     schedule_code,
 )
 
@@ -330,13 +331,25 @@ def options_to_dict(opts: StudyOptions) -> dict:
     return _plain(out)
 
 
-def input_digest(site: Site, opts: StudyOptions) -> str:
-    """SHA-256 (hex) of the site file's JSON and the study options, canonically serialised.
+def input_digest(site: Site, opts: StudyOptions, basis: str | None = None,
+                 mounting: str | None = None) -> str:
+    """SHA-256 (hex) of the site file's JSON, the study options, the sky basis and the mounting,
+    canonically serialised.
 
     Keys sorted, no whitespace, floats in Python's shortest round-trip form:
-    the same site and options give the same digest on any machine.
+    the same site and options give the same digest on any machine. ``basis``
+    (the sky basis used, default the options' own) and ``mounting`` (default
+    the options' own) are hashed as their own keys, so two sheets on different
+    bases or mountings never share a digest. Who the sheet is prepared for
+    (the site's client, address and reference) decides no figure and is left
+    out.
     """
-    doc = {"site": site_to_dict(site), "study_options": options_to_dict(opts)}
+    sd = site_to_dict(site)
+    for key in CLIENT_KEYS:
+        sd.pop(key, None)
+    doc = {"site": sd, "study_options": options_to_dict(opts),
+           "basis": basis if basis is not None else opts.irradiance.sky,
+           "mounting": mounting if mounting is not None else opts.mounting}
     text = json.dumps(_plain(doc), sort_keys=True, separators=(",", ":"), ensure_ascii=False,
                       allow_nan=False)
     return hashlib.sha256(text.encode("utf-8")).hexdigest()
@@ -390,6 +403,17 @@ class SheetFigures:
         upper bound), when the basis is not the clear sky.
     weather_warnings : tuple of str
         Site-fit warnings of a weather file the user accepted.
+    weakest_month : (int, float) or None
+        The month (1-12) with the least irradiation on the recommended schedule
+        among the months with useful daylight, and its total, kWh/m².
+    dark_months : tuple of int
+        Months with little or no sun (the study's months without useful
+        daylight, under 1 % of the best month on the horizontal).
+    polar_night : (str, str) or None
+        First and last day (``"MM-DD"``) of the days the sun does not rise at
+        all, when there are such days.
+    tilt_min_deg : float
+        The lowest tilt an optimised option may take (self-cleaning and run-off).
     """
 
     study: TiltStudy
@@ -408,6 +432,10 @@ class SheetFigures:
     basis_words: str = ""
     clear_sky_bound_kwh_m2: float | None = None
     weather_warnings: tuple = ()
+    weakest_month: tuple | None = None
+    dark_months: tuple = ()
+    polar_night: tuple | None = None
+    tilt_min_deg: float = 0.0
 
     @property
     def short_digest(self) -> str:
@@ -416,8 +444,9 @@ class SheetFigures:
 
     @property
     def reproducibility(self) -> str:
-        return (f"Tiltyard {self.version}; inputs {self.short_digest} (first 12 hex digits of "
-                "the SHA-256 of the site file and the study options)")
+        return (f"Tiltyard {self.version}; inputs {self.short_digest} (the first 12 characters "
+                "of a fingerprint of the site, the study settings, the sky basis and the "
+                "mounting: the same inputs always give the same fingerprint)")
 
 
 def _gain(a: float, b: float) -> float | None:
@@ -481,6 +510,35 @@ def _models_text(opts: StudyOptions, study: TiltStudy) -> list[tuple[str, str]]:
     return out
 
 
+def polar_night(sky: SkyYear) -> tuple | None:
+    """First and last day (``"MM-DD"``) of the run of days on which the sun never rises.
+
+    A day counts when no interval of it has any part with the sun above the
+    astronomical horizon (``sky.sun_up_fraction``); the run may span the new
+    year. None when the sun rises every day; for several runs, the longest.
+    """
+    days = sky.n_days
+    up = np.zeros(days)
+    np.add.at(up, sky.day_index, sky.sun_up_fraction)
+    dark = up <= 0.0
+    if not dark.any() or dark.all():
+        return None
+    start = int(np.flatnonzero(~dark)[0])          # roll so that the year starts sunlit
+    rolled = np.roll(dark, -start)
+    best, run, first = (0, 0), 0, 0
+    for i, d in enumerate(rolled):
+        if d:
+            first = i if run == 0 else first
+            run += 1
+            if run > best[1] - best[0]:
+                best = (first, i + 1)
+        else:
+            run = 0
+    dates = pd.Timestamp(f"{sky.options.year}-01-01") + pd.to_timedelta(
+        [(best[0] + start) % days, (best[1] - 1 + start) % days], unit="D")
+    return tuple(d.strftime("%m-%d") for d in dates)
+
+
 def sheet_figures(study: TiltStudy, sky: SkyYear | None = None, result=None) -> SheetFigures:
     """Gather every figure and statement the feasibility sheet prints.
 
@@ -526,18 +584,24 @@ def sheet_figures(study: TiltStudy, sky: SkyYear | None = None, result=None) -> 
         ("Albedo", _albedo_text(site) + "; ground-reflected light from the unobstructed GHI"),
         ("Time convention", f"year {irr.year}, {irr.step_min}-minute intervals: "
                             + MIDPOINT_CONVENTION),
-        ("Horizon", f"{len(site.horizon.azimuth_deg)} measured horizon points and "
-                    f"{len(site.obstacles)} obstacles; azimuths clockwise from true north"),
+        ("Horizon", f"{plural(len(site.horizon.azimuth_deg), 'measured horizon point')} and "
+                    f"{plural(len(site.obstacles), 'obstacle')}; azimuths clockwise from true "
+                    "north"),
         ("Weather data", _weather_text(opts)),
         ("Mounting", mounting_sentence(opts.mounting)
                      + (f", at most {opts.max_positions} tilt positions a year"
                         if opts.mounting == "adjustable" else "")),
-        ("Study", f"objective: {objective_words(opts.objective, opts.months)}; tilts {opts.tilt_min_deg:g}° to "
-                  f"{opts.tilt_max_deg:g}° by {opts.tilt_step_deg:g}°; azimuth {az}; periods "
-                  f"of at least {opts.min_days_between} days; rule: "
+        ("Study", f"objective: {objective_words(opts.objective, opts.months)}; tilts from "
+                  f"{opts.tilt_min_deg:g}° to {opts.tilt_max_deg:g}° in steps of "
+                  f"{opts.tilt_step_deg:g}°; azimuth {az}; periods of at least "
+                  f"{opts.min_days_between} days; rule: "
                   + degree_text(study.recommendation_rule)),
     ]
     notes = tuple(w for w in study.warnings)
+    monthly_rec = np.asarray(rec["monthly_kwh_m2"], dtype=float)
+    active = [m for m in study.active_months if 1 <= m <= 12] or list(range(1, 13))
+    weakest = min(active, key=lambda m: monthly_rec[m - 1])
+    low = tuple(m for m in range(1, 13) if m not in active)
     basis, bound, fit = basis_words(irr.sky), None, ()
     if result is not None:
         basis = result.basis.words
@@ -551,8 +615,10 @@ def sheet_figures(study: TiltStudy, sky: SkyYear | None = None, result=None) -> 
         horizon_loss=loss, options=options_table(study), monthly=monthly_table(study),
         assumptions=tuple(assumptions), cautions=SHEET_CAUTIONS,
         notes=notes, turbidity_source=sky.turbidity_source,
-        digest=input_digest(site, opts), version=tool_version(), basis_words=basis,
-        clear_sky_bound_kwh_m2=bound, weather_warnings=fit)
+        digest=input_digest(site, opts, irr.sky, opts.mounting), version=tool_version(),
+        basis_words=basis, clear_sky_bound_kwh_m2=bound, weather_warnings=fit,
+        weakest_month=(weakest, float(monthly_rec[weakest - 1])), dark_months=low,
+        polar_night=polar_night(sky), tilt_min_deg=float(opts.tilt_min_deg))
 
 
 __all__ = ["SHEET_CAUTIONS", "check_option_kinds",

@@ -31,6 +31,14 @@ FORMAT_NAME = "tiltyard-site"
 #: Version 1 files load as they are and are written as version 2.
 FORMAT_VERSION = 2
 
+#: Who a sheet is prepared for: the site's optional ``prepared_for`` object (format 2; a
+#: reader that does not know it ignores it, and it decides no figure).
+CLIENT_FIELDS = ("client", "address", "reference")
+#: The site-file keys of :data:`CLIENT_FIELDS` (left out of the inputs digest).
+CLIENT_KEYS = ("prepared_for",)
+#: Longest client, address or reference, characters.
+CLIENT_FIELD_MAX = 300
+
 #: How panels are held (see :data:`tiltyard.engine.tilt.MOUNTINGS` for what each allows).
 MOUNTINGS = ("flush", "fixed-rack", "adjustable", "ground-rows", "flat-roof-rows")
 
@@ -231,6 +239,9 @@ class Site:
     linke_turbidity: tuple | None = None
     monthly_ghi_kwh_m2_day: tuple | None = None
     notes: str = ""
+    client: str = ""
+    address: str = ""
+    reference: str = ""
 
     def __post_init__(self):
         if not isinstance(self.name, str) or not self.name.strip():
@@ -277,6 +288,13 @@ class Site:
                                        0, 12, "kWh/m2/day"))
         if not isinstance(self.notes, str):
             raise SiteError("notes", self.notes, "must be text")
+        for key in CLIENT_FIELDS:
+            value = getattr(self, key)
+            if not isinstance(value, str):
+                raise SiteError(f"prepared_for.{key}", value, "must be text")
+            if len(value) > CLIENT_FIELD_MAX:
+                raise SiteError(f"prepared_for.{key}", value,
+                                f"must be at most {CLIENT_FIELD_MAX} characters")
 
     # -- conveniences -------------------------------------------------------
     @property
@@ -395,7 +413,21 @@ def site_from_dict(d: dict) -> Site:
         linke_turbidity=tuple(lt) if isinstance(lt, list) else lt,
         monthly_ghi_kwh_m2_day=tuple(ghi) if isinstance(ghi, list) else ghi,
         notes=d.get("notes", "") or "",
+        **_client_from_dict(d.get("prepared_for")),
     )
+
+
+def _client_from_dict(d) -> dict:
+    """The optional ``prepared_for`` object: who the sheet is for (absent or null: nobody)."""
+    if d is None:
+        return {}
+    if not isinstance(d, dict):
+        raise SiteError("prepared_for", d, "must be an object with client, address, reference")
+    unknown = sorted(set(d) - set(CLIENT_FIELDS))
+    if unknown:
+        raise SiteError(f"prepared_for.{unknown[0]}", d[unknown[0]],
+                        "is not a field this Tiltyard knows (client, address, reference)")
+    return {k: (d.get(k) if d.get(k) is not None else "") for k in CLIENT_FIELDS}
 
 
 def site_to_dict(site: Site) -> dict:
@@ -421,6 +453,8 @@ def site_to_dict(site: Site) -> dict:
     }
     if site.monthly_ghi_kwh_m2_day is not None:
         d["monthly_ghi_kwh_m2_day"] = list(site.monthly_ghi_kwh_m2_day)
+    if any(getattr(site, k) for k in CLIENT_FIELDS):
+        d["prepared_for"] = {k: getattr(site, k) for k in CLIENT_FIELDS}
     return d
 
 

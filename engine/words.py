@@ -30,6 +30,7 @@ from __future__ import annotations
 
 import calendar
 import math
+import re
 from collections.abc import Mapping, Sequence
 
 #: Month names, January first.
@@ -134,8 +135,44 @@ def degrees(value: float, plain: bool = False) -> str:
 
 
 def degree_text(text: str) -> str:
-    """An engine label with ``" deg"`` written as the degree sign: ``"37 deg"`` -> ``"37°"``."""
-    return text.replace(" deg", "°")
+    """An engine label with ``" deg"`` written as the degree sign: ``"37 deg"`` -> ``"37°"``.
+
+    Only the whole word ``deg`` is replaced: ``"1 degree"`` stays as it is.
+    """
+    return re.sub(r" deg\b", "°", text)
+
+
+def plural(n: int, word: str, many: str | None = None) -> str:
+    """A count and its noun: ``plural(1, "obstacle")`` -> ``"1 obstacle"``, ``"2 obstacles"``.
+
+    ``many`` is the plural form where it is not ``word + "s"``.
+    """
+    n = int(n)
+    return f"{n} {word if n == 1 else (many or word + 's')}"
+
+
+#: Program words that engine messages may carry, and how a client reads them.
+_CLIENT_REWRITES = (
+    (re.compile(r"\s*\(pass reference_year= to choose another\)"), ""),
+    (re.compile(r"timestamp_label='(start|end|middle)'"), r"timestamps marking the interval \1"),
+    (re.compile(r"\s*\(coefficients '[^']*'\)"), ""),
+    (re.compile(r"\bfrom the ineichen clear sky\b"), "from the Ineichen-Perez clear-sky model"),
+    (re.compile(r"\bpvlib monthly climatology\b"), "monthly climatology"),
+    (re.compile(r"\bGHI\b"), "global horizontal irradiation"),
+)
+
+
+def client_text(text: str) -> str:
+    """An engine statement as a client reads it on the sheet.
+
+    Degree signs for ``deg`` (:func:`degree_text`), no program parameter names
+    or code literals (``timestamp_label='end'`` becomes "timestamps marking the
+    interval end"), trade abbreviations written out.
+    """
+    text = degree_text(text)
+    for pattern, repl in _CLIENT_REWRITES:
+        text = pattern.sub(repl, text)
+    return text
 
 
 def compass(azimuth_deg: float, points: int = 16) -> str:
@@ -274,6 +311,92 @@ def option_name(option) -> str:
     return OPTION_NAMES.get(option.kind, option.label)
 
 
+
+# -- the feasibility sheet's sentences -------------------------------------------------
+
+#: Lowest tilt of an optimised option by default, degrees: rain rinses panels and water runs
+#: off from about this tilt (common practice, no source).
+MIN_TILT_DEFAULT_DEG = 10.0
+
+
+def key_heading(mounting: str, objective: str, months: Sequence[int], basis: str) -> str:
+    """The key-figure box's heading: what the figures are of, for the mounting, and the basis.
+
+    ``"This roof as it is · on the site's monthly irradiation values"`` (flush);
+    ``"Best fixed tilt for the annual total · ..."`` (a fixed rack or rows);
+    ``"Recommended for the weakest month · clear sky: upper bound only"`` (adjustable).
+    """
+    goal = objective_words(objective, months)
+    if mounting == "flush":
+        what = "This roof as it is"
+    elif mounting == "adjustable":
+        what = f"Recommended for {goal}"
+    else:
+        _lookup(MOUNTING_WORDS, mounting, "mounting")
+        what = f"Best fixed tilt for {goal}"
+    return f"{what} · {basis}"
+
+
+def clear_sky_advice() -> str:
+    """What the key box says when only a clear sky is known for a site."""
+    return ("Only a clear sky is known for this site, so every figure here is an upper bound, "
+            "not an expected value. The site's twelve monthly mean daily irradiation values "
+            "(from a solar atlas or a local table) or a typical-year weather file would give "
+            "an expected value.")
+
+
+def min_tilt_sentence(tilt_min_deg: float, mounting: str) -> str:
+    """The sheet's line on the lowest tilt the optimised options may take."""
+    if tilt_min_deg <= 0:
+        return ("No minimum tilt was set: an optimised option may lie flat, where rain does "
+                "not rinse the panels and water can stand on them.")
+    held = (f"the optimised options compared are held at {degrees(tilt_min_deg)} or steeper, "
+            "so that rain rinses the panels and water runs off (common practice; the limit "
+            "can be changed)")
+    if mounting == "flush":
+        return f"The roof is taken as it is; {held}."
+    return held[0].upper() + held[1:] + "."
+
+
+def month_names(months: Sequence[int]) -> str:
+    """Month numbers as full names joined in prose: ``[12, 1]`` -> ``"December and January"``."""
+    names = [MONTH_NAMES[int(m) - 1] for m in months]
+    if len(names) <= 1:
+        return "".join(names)
+    return ", ".join(names[:-1]) + " and " + names[-1]
+
+
+def weakest_month_sentence(month: int, kwh_m2: float, dark_months: Sequence[int] = (),
+                           polar_night: tuple | None = None, year: int | None = None) -> str:
+    """The weakest month with useful daylight, the months with little or no sun, polar night.
+
+    ``"Weakest month: December, 18 kWh/m² on this plane."``; for a polar site
+    ``"Weakest sunlit month: February, 76 kWh/m² on this plane. December and
+    January get almost no sun (under 1 % of the best month on a horizontal
+    plane); the sun does not rise from 27 Nov to 15 Jan."``
+    """
+    which = "Weakest sunlit month" if dark_months or polar_night else "Weakest month"
+    text = f"{which}: {MONTH_NAMES[int(month) - 1]}, {kwh_m2:.0f} kWh/m² on this plane."
+    if dark_months:
+        verb = "gets" if len(dark_months) == 1 else "get"
+        text += (f" {month_names(dark_months)} {verb} almost no sun (under 1 % of the best "
+                 "month on a horizontal plane)")
+        text += ";" if polar_night else "."
+    if polar_night:
+        lead = " the sun" if dark_months else " The sun"
+        text += (f"{lead} does not rise at all from {day_words(polar_night[0], year)} to "
+                 f"{day_words(polar_night[1], year)}.")
+    return text
+
+
+def prepared_for_words(client: str = "", address: str = "", reference: str = "") -> str:
+    """Who the sheet is for, the blank fields left out: ``"Hollin Farm · Moor Lane ·
+    reference LM-14"``; ``""`` when all three are blank (no label then either)."""
+    parts = [x.strip() for x in (client, address) if x and x.strip()]
+    if reference and reference.strip():
+        parts.append(f"reference {reference.strip()}")
+    return " · ".join(" ".join(p.split()) for p in parts)
+
 # -- schedules ------------------------------------------------------------------------
 
 def _get(period, key: str):
@@ -383,7 +506,9 @@ def schedule_code(schedule) -> str:
                      f"{_get(p, 'azimuth_deg'):g}" for p in periods)
 
 
-__all__ = ["COMPASS_16", "COMPASS_8", "MODEL_NAMES", "MONTH_ABBR", "MONTH_NAMES",
+__all__ = ["COMPASS_16", "COMPASS_8", "MIN_TILT_DEFAULT_DEG", "MODEL_NAMES", "MONTH_ABBR",
+           "MONTH_NAMES", "clear_sky_advice", "client_text", "key_heading", "min_tilt_sentence",
+           "month_names", "plural", "prepared_for_words", "weakest_month_sentence",
            "MOUNTING_SENTENCES", "MOUNTING_WORDS", "OBJECTIVE_WORDS", "OPTION_NAMES", "SKY_CHOICE_WORDS",
            "TIME_BASIS_WORDS", "basis_label", "basis_words", "bearing", "compass",
            "compass_tick", "day_month", "day_words", "degree_text", "degrees", "model_name", "month_list",

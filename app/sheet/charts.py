@@ -32,6 +32,8 @@ from .layout import (
     shape,
 )
 
+#: Smallest chart label, points (ticks, legends, hour labels).
+LEGEND_PT = 7.0
 GRID = "#d5d8d3"
 AXIS = "#5b6570"
 HORIZON_FILL = "#b9bdb6"
@@ -181,8 +183,8 @@ def _axes_ops(m: Measure, frame: QRectF, ax: Axes, xticks, yticks, x_label: str,
               s: float, x_grid: bool = True, x_tick_boxes=None) -> list:
     ops = []
     plot = ax.plot
-    tick_font = Font(6.6 * s, condensed=True)
-    label_font = Font(7.0 * s)
+    tick_font = Font(max(LEGEND_PT, 6.6 * s), condensed=True)
+    label_font = Font(max(LEGEND_PT, 7.0 * s))
     grid = QPainterPath()
     for v, _t in yticks:
         y = float(ax.py(v))
@@ -201,8 +203,10 @@ def _axes_ops(m: Measure, frame: QRectF, ax: Axes, xticks, yticks, x_label: str,
     for v, t in yticks:
         y = float(ax.py(v))
         box = QRectF(frame.left(), y - lh / 2.0, plot.left() - frame.left() - 2.5, lh)
+        if box.bottom() > plot.bottom() + 1.0:      # the lowest label clear of the x labels
+            box.moveBottom(plot.bottom() + 1.0)
         box = box.intersected(QRectF(frame.left(), frame.top(), frame.width(), frame.height()))
-        ops += fit_text(m, t, box, tick_font, min_size=5.0, align="right", color=TEXT,
+        ops += fit_text(m, t, box, tick_font, min_size=LEGEND_PT, align="right", color=TEXT,
                         valign="middle").ops
     # x tick labels under the plot
     n = max(1, len(xticks))
@@ -218,17 +222,17 @@ def _axes_ops(m: Measure, frame: QRectF, ax: Axes, xticks, yticks, x_label: str,
         align = "center"
         if i == 0 and x - w / 2.0 < frame.left():
             align = "left"
-        ops += fit_text(m, t, box, tick_font, min_size=5.0, align=align).ops
+        ops += fit_text(m, t, box, tick_font, min_size=LEGEND_PT - 0.5, align=align).ops
     # unit labels: x centred under the tick labels, y above the axis (left-aligned)
     lf = m.line_height(label_font)
     xb = QRectF(plot.left(), plot.bottom() + 1.5 + lh + 1.0, plot.width(), lf)
     xb = xb.intersected(frame)
-    ops += fit_text(m, x_label, xb, label_font, min_size=5.5, align="center", color=TEXT,
+    ops += fit_text(m, x_label, xb, label_font, min_size=LEGEND_PT, align="center", color=TEXT,
                     role="x-label").ops
     yb = QRectF(frame.left(), plot.top() - lh / 2.0 - lf - 1.0, frame.right() - frame.left(),
                 lf)
     yb = yb.intersected(frame)
-    ops += fit_text(m, y_label, yb, label_font, min_size=5.5, color=TEXT, role="y-label").ops
+    ops += fit_text(m, y_label, yb, label_font, min_size=LEGEND_PT, color=TEXT, role="y-label").ops
     return ops
 
 
@@ -239,24 +243,60 @@ def _title(m: Measure, frame: QRectF, text: str, s: float, role: str) -> tuple[l
     return fit_text(m, text, box, f, min_size=6.5, role=role).ops, h
 
 
-def _legend(m: Measure, rect: QRectF, entries, s: float, frame: QRectF) -> list:
-    """Legend rows: (sample(rect) -> ops, text); text wraps to two lines, shrinks, elides."""
+def _legend(m: Measure, rect: QRectF, entries, s: float, frame: QRectF, out=None) -> list:
+    """Legend rows: (sample(rect) -> ops, text); text wraps to two lines, shrinks, elides.
+
+    ``out``, a list, receives the y below the last row."""
     ops = []
-    font = Font(6.8 * s)
+    font = Font(max(LEGEND_PT, 6.8 * s))
     lh = m.line_height(font)
     sample_w = 20.0 * s
     y = rect.top()
     for sample, text in entries:
         text_w = rect.width() - sample_w - 4.0
-        h = natural_height(m, text, text_w, font, 2)
+        h = natural_height(m, text, text_w, font, 3)
         if y + h > rect.bottom():
             h = rect.bottom() - y
             if h < m.line_height(font.sized(5.0)):
                 break
         box = QRectF(rect.left() + sample_w + 4.0, y, text_w, h)
-        ops += fit_text(m, text, box, font, min_size=5.0, max_lines=2, role="legend").ops
+        ops += fit_text(m, text, box, font, min_size=LEGEND_PT, max_lines=3, role="legend").ops
         ops += sample(QRectF(rect.left(), y, sample_w, lh))
         y += h + 2.5 * s
+    for op in ops:
+        op.frame = QRectF(frame)
+    if out is not None:
+        out.append(y)
+    return ops
+
+
+def month_dash(month: int):
+    """The 21st of a month: solid from January to June, dashed from July to December, so the
+    months the sun takes the same path (January and November...) differ in pattern too."""
+    return None if month <= 6 else DASHES[1]
+
+
+def _month_key(m: Measure, rect: QRectF, months, s: float, frame: QRectF) -> list:
+    """The key of the month paths' colours: a swatch of each month's line and its name."""
+    if not months:
+        return []
+    font = Font(max(LEGEND_PT, 6.8 * s))
+    lh = m.line_height(font)
+    ops = fit_text(m, "21st of the other months:", QRectF(rect.left(), rect.top(),
+                                                           rect.width(), lh), font,
+                   min_size=LEGEND_PT, role="legend").ops
+    cols = 4                       # two rows for the eight months drawn
+    cw = rect.width() / cols
+    for i, month in enumerate(months):
+        r, c = divmod(i, cols)
+        y = rect.top() + lh + 1.5 + r * (lh + 1.0)
+        if y + lh > rect.bottom():
+            break
+        x = rect.left() + c * cw
+        ops += _line_sample(theme.month_color(month).name(), 1.2, month_dash(month),
+                            frame=frame)(QRectF(x, y, 12.0, lh))
+        ops += fit_text(m, MONTH_ABBR[month - 1], QRectF(x + 14.0, y, cw - 15.0, lh), font,
+                        min_size=LEGEND_PT, role="legend.month").ops
     for op in ops:
         op.frame = QRectF(frame)
     return ops
@@ -322,9 +362,9 @@ def sun_path_chart(m: Measure, frame: QRectF, chart, basis_words: str, s: float 
     ops, th = _title(m, frame, "Sun path through the year, with the site horizon", s,
                      "title.sunpath")
     legend_w = min(150.0 * s, frame.width() * 0.28)
-    tick_font = Font(6.6 * s, condensed=True)
+    tick_font = Font(max(LEGEND_PT, 6.6 * s), condensed=True)
     lh = m.line_height(tick_font)
-    label_h = m.line_height(Font(7.0 * s))
+    label_h = m.line_height(Font(max(LEGEND_PT, 7.0 * s)))
     left = frame.left() + m.width("90°", tick_font) + 4.0
     plot = QRectF(left, frame.top() + th + label_h + lh / 2.0 + 4.0,
                   frame.right() - legend_w - 10.0 - left, 0.0)
@@ -349,7 +389,8 @@ def sun_path_chart(m: Measure, frame: QRectF, chart, basis_words: str, s: float 
             continue
         x, y = wrap_break(p.azimuth_deg, p.elevation_deg, centre)
         ops.append(shape(polyline(ax.px(x), ax.py(y)), frame,
-                         pen(theme.month_color(p.month).name(), 0.6), clip=plot,
+                         pen(theme.month_color(p.month).name(), 0.8, month_dash(p.month)),
+                         clip=plot,
                          role=f"path.{p.label}"))
     # hour lines
     hour_path = QPainterPath()
@@ -393,7 +434,7 @@ def sun_path_chart(m: Measure, frame: QRectF, chart, basis_words: str, s: float 
     ops.append(shape(polyline(px_, py_), frame, pen(HORIZON_LINE, 0.9), clip=plot,
                      role="horizon-line"))
     # hour labels, clear of each other, inside the plot
-    hf = Font(6.0 * s, condensed=True)
+    hf = Font(max(LEGEND_PT - 0.5, 6.0 * s), condensed=True)
     hh = m.line_height(hf)
     taken = []
     for hl in labels:
@@ -424,14 +465,17 @@ def sun_path_chart(m: Measure, frame: QRectF, chart, basis_words: str, s: float 
         when = f", {day_month(p.date)}" if "solstice" in p.label else ""
         extra = "" if len(p) else ": the sun stays below the horizon"
         entries.append((_line_sample(color, width, dash, frame=frame), name + when + extra))
-    entries.append((_line_sample(theme.month_color(4).name(), 0.8, None, frame=frame),
-                    "21st of the other months (colour by month)"))
     entries.append((_line_sample(HOUR_LINE, 0.6, (1.0, 1.4), frame=frame),
                     f"hour lines, {basis_words}"))
     entries.append((_fill_sample(frame), "site horizon and obstacles: the sun is hidden in "
                                          "the hatched area"))
     lrect = QRectF(frame.right() - legend_w, plot.top(), legend_w, plot.height())
-    ops += _legend(m, lrect, entries, s, frame)
+    below = []
+    ops += _legend(m, lrect, entries, s, frame, below)
+    # the solstice and equinox months are drawn in their own styles, keyed above
+    drawn = sorted({p.month for p in months if len(p)} - {3, 6, 9, 12})
+    key = QRectF(lrect.left(), below[0] + 2.0, lrect.width(), frame.bottom() - below[0] - 2.0)
+    ops += _month_key(m, key, drawn, s, frame)
     return ops
 
 
@@ -453,9 +497,9 @@ def monthly_chart(m: Measure, frame: QRectF, series, s: float = 1.0,
     """Monthly irradiation of several options, one line with markers per option."""
     ops, th = _title(m, frame, title, s, "title.monthly")
     legend_w = min(150.0 * s, frame.width() * 0.28)
-    tick_font = Font(6.6 * s, condensed=True)
+    tick_font = Font(max(LEGEND_PT, 6.6 * s), condensed=True)
     lh = m.line_height(tick_font)
-    label_h = m.line_height(Font(7.0 * s))
+    label_h = m.line_height(Font(max(LEGEND_PT, 7.0 * s)))
     vmax = max((max(v.values) for v in series), default=1.0)
     step = nice_step(vmax * 1.05, 6)
     ymax = max(step, math.ceil(vmax * 1.04 / step) * step)

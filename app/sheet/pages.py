@@ -19,11 +19,17 @@ from PySide6.QtCore import QRectF
 
 from tiltyard.engine.words import (
     MONTH_ABBR,
+    clear_sky_advice,
+    client_text,
     degree_text,
+    key_heading,
+    min_tilt_sentence,
     objective_words,
     option_name,
+    prepared_for_words,
     schedule_sentence,
     time_basis_words,
+    weakest_month_sentence,
 )
 
 from .. import theme
@@ -38,6 +44,7 @@ from .content import (
     prepared_line,
 )
 from .layout import (
+    EPS,
     MUTED,
     TEXT,
     Column,
@@ -59,7 +66,15 @@ SCALES = (1.0, 0.95, 0.9, 0.85, 0.8, 0.75, 0.7)
 #: Smallest chart height on page 1 at scale 1, points.
 MIN_CHART_H = 150.0
 
+#: Smallest body and table text, points; smallest footer text (print-safe sizes, common
+#: practice, no source).
+BODY_MIN_PT = 8.0
+FOOTER_PT = 6.5
+
 PANEL = "#f1f2ef"
+CAUTION = "#7a4f00"
+CAUTION_FILL = "#fbf6ea"
+TILE_EDGE = "#b8c9d4"
 RULE = "#c9cdc6"
 
 
@@ -120,24 +135,28 @@ def build_sheet(figures, sun, meta: SheetMeta | None = None, paper: str = "a4") 
     meta = meta or SheetMeta()
     ctx = _Ctx(figures, sun, meta, paper)
     m = Measure()
-    pages, scales = [], []
-    for build in (_page1, _page2):
-        for s in SCALES:
-            page, ok = build(m, ctx, s)
-            if ok:
-                break
-        pages.append(page)
-        scales.append(s)
+    for s in SCALES:
+        page, ok = _page1(m, ctx, s)
+        if ok:
+            break
+    details = _detail_pages(m, ctx)
+    pages = [page] + details
+    scales = [s] + [1.0] * len(details)
     for i, page in enumerate(pages):
         _footer(m, ctx, page, i + 1, len(pages))
     return SheetDocument(paper, ctx.w, ctx.h, pages,
                          f"Feasibility sheet — {ctx.site.name}", figures, meta, tuple(scales))
 
 
+def _pt(size: float, s: float) -> float:
+    """A body text size at font scale ``s``, never below :data:`BODY_MIN_PT`."""
+    return max(BODY_MIN_PT, size * s)
+
+
 # -- shared pieces --------------------------------------------------------------------------------
 
 def _footer_height(m: Measure) -> float:
-    return m.line_height(Font(6.5)) + 5.0
+    return 2 * m.line_height(Font(FOOTER_PT), 1.12) + 5.0
 
 
 def _body(m: Measure, ctx: _Ctx) -> QRectF:
@@ -152,22 +171,23 @@ def _footer(m: Measure, ctx: _Ctx, page: Page, number: int, total: int) -> None:
     frame = QRectF(c.left(), top, c.width(), fh)
     page.frames["footer"] = frame
     page.add(hrule(frame, top, RULE, 0.5))
-    f = Font(6.5)
+    f = Font(FOOTER_PT)
     right = (f"Tiltyard {ctx.f.version} · inputs {ctx.f.short_digest} · page {number} of "
              f"{total}")
     rw = min(m.width(right, f) + 2.0, c.width() * 0.5)
     box_r = QRectF(c.right() - rw, top + 4.0, rw, fh - 4.0)
     box_l = QRectF(c.left(), top + 4.0, c.width() - rw - 10.0, fh - 4.0)
-    page.add(fit_text(m, right, box_r, f, min_size=5.0, align="right", color=MUTED,
+    page.add(fit_text(m, right, box_r, f, min_size=FOOTER_PT, align="right", color=MUTED,
                       role="footer.right").ops)
     page.add(fit_text(m, "Preliminary feasibility estimate, not a design. Safety and sizing "
                          "belong to local codes and licensed installers.", box_l, f,
-                      min_size=5.0, color=MUTED, role="footer.left").ops)
+                      min_size=FOOTER_PT, max_lines=2, color=MUTED, role="footer.left").ops)
 
 
 def _heading(col: Column, text: str, s: float, role: str, gap_before: float = 7.0) -> list:
     col.gap(gap_before * s)
-    return col.text(text, Font(9.5 * s, bold=True), min_size=7.0, max_lines=2,
+    return col.text(text, Font(max(BODY_MIN_PT, 9.5 * s), bold=True), min_size=BODY_MIN_PT,
+                    max_lines=2,
                     gap_after=2.5 * s, role=role, color=theme.ACCENT)
 
 
@@ -180,15 +200,20 @@ def _page1(m: Measure, ctx: _Ctx, s: float):
     page.add(hrule(body, body.top(), theme.ACCENT, 2.0))
     col.gap(6.0)
     page.add(col.text("SOLAR SITE FEASIBILITY SHEET · PRELIMINARY ESTIMATE",
-                      Font(7.5 * s, bold=True), min_size=5.5, max_lines=1,
+                      Font(_pt(8.0, s), bold=True), min_size=BODY_MIN_PT, max_lines=1,
                       color=theme.ACCENT, gap_after=3.0 * s, role="kicker"))
     page.add(col.text(ctx.site.name, Font(17.0 * s, bold=True), min_size=9.0 * s, max_lines=3,
                       gap_after=3.0 * s, role="site-name"))
-    page.add(col.text(location_line(ctx.site), Font(8.5 * s), min_size=6.0, max_lines=2,
-                      gap_after=1.5 * s, role="location"))
-    page.add(col.text(prepared_line(ctx.meta), Font(8.5 * s), min_size=6.0, max_lines=2,
-                      gap_after=3.0 * s, role="prepared"))
-    page.add(col.text(SCOPE, Font(7.6 * s, italic=True), min_size=5.5, max_lines=3,
+    page.add(col.text(location_line(ctx.site), Font(_pt(8.5, s)), min_size=BODY_MIN_PT,
+                      max_lines=2, gap_after=1.5 * s, role="location"))
+    site = ctx.site
+    who = prepared_for_words(site.client, site.address, site.reference)
+    if who:                     # blank fields leave no label behind
+        page.add(col.text(f"Prepared for {who}", Font(_pt(8.5, s)), min_size=BODY_MIN_PT,
+                          max_lines=3, gap_after=1.5 * s, role="prepared-for"))
+    page.add(col.text(prepared_line(ctx.meta), Font(_pt(8.5, s)), min_size=BODY_MIN_PT,
+                      max_lines=2, gap_after=3.0 * s, role="prepared"))
+    page.add(col.text(SCOPE, Font(_pt(8.0, s), italic=True), min_size=BODY_MIN_PT, max_lines=3,
                       color=MUTED, gap_after=8.0 * s, role="scope"))
     header = QRectF(body.left(), body.top(), body.width(), col.y - body.top())
     page.frames["header"] = header
@@ -278,53 +303,72 @@ def _key_figures(m: Measure, ctx: _Ctx, frame: QRectF, s: float) -> tuple[list, 
     col = Column(m, inner)
     ops = []
     opts = ctx.study.options_used
-    ops += col.text(f"Key figures · recommended for {objective_words(opts.objective, opts.months)}",
-                    Font(8.0 * s, bold=True), min_size=6.0, max_lines=2, color=theme.ACCENT,
+    small = Font(BODY_MIN_PT)
+    heading = key_heading(ctx.study.mounting, opts.objective, opts.months, ctx.f.basis_words)
+    ops += col.text(f"Key figures · {heading}", Font(_pt(9.0, s), bold=True),
+                    min_size=BODY_MIN_PT, max_lines=2, color=theme.ACCENT,
                     gap_after=2.0 * s, role="key.heading")
-    ops += col.text(degree_text(ctx.rec.label), Font(12.5 * s, bold=True), min_size=8.0,
-                    max_lines=2, gap_after=1.5 * s, role="key.option")
-    ops += col.text(schedule_sentence(ctx.rec, ctx.year), Font(9.5 * s), min_size=6.5,
-                    max_lines=3, gap_after=6.0 * s, role="key.schedule")
+    ops += col.text(degree_text(ctx.rec.label), Font(_pt(12.5, s), bold=True),
+                    min_size=BODY_MIN_PT, max_lines=2, gap_after=1.5 * s, role="key.option")
+    ops += col.text(schedule_sentence(ctx.rec, ctx.year), Font(_pt(9.5, s)),
+                    min_size=BODY_MIN_PT, max_lines=3, gap_after=6.0 * s, role="key.schedule")
     tiles = _tiles(ctx)
-    ncol = len(tiles) if len(tiles) <= 5 else -(-len(tiles) // 2)
-    ncol = min(ncol, 5)
-    nrow = -(-len(tiles) // ncol)
+    # rows of at most four (five when that makes one row), every row filling the width, so
+    # a figure left out leaves no hole
+    per_row = len(tiles) if len(tiles) <= 5 else 4
+    rows = [tiles[i:i + per_row] for i in range(0, len(tiles), per_row)]
+    if len(rows) > 1 and len(rows[-1]) == 1:          # no lone tile: balance the rows
+        per_row = -(-len(tiles) // len(rows))
+        rows = [tiles[i:i + per_row] for i in range(0, len(tiles), per_row)]
     gap = 6.0 * s
-    tw = (inner.width() - (ncol - 1) * gap) / ncol
-    vf = Font(14.0 * s, bold=True)
-    cf = Font(6.8 * s)
+    vf = Font(_pt(14.0, s), bold=True)
+    cf = small
     vh = m.line_height(vf)
-    ch = 3 * m.line_height(cf, 1.12)
+    ch = 4 * m.line_height(cf, 1.12)
     th = 4.0 + vh + 2.0 + ch + 4.0
-    grid = col.take(nrow * th + (nrow - 1) * gap)
-    for i, (value, caption, role) in enumerate(tiles):
-        r, c = divmod(i, ncol)
-        box = QRectF(grid.left() + c * (tw + gap), grid.top() + r * (th + gap), tw, th)
-        box = box.intersected(grid)
-        if box.height() < th - 0.01:
-            col.overflow = True
-            continue
-        ops.append(shape(rect_path(box.adjusted(0.25, 0.25, -0.25, -0.25)), box,
-                         pen("#b8c9d4", 0.5), "#ffffff", role="tile"))
-        vb = QRectF(box.left() + 5.0, box.top() + 4.0, box.width() - 10.0, vh)
-        color = theme.ACCENT if role == "key.annual" else TEXT
-        ops += fit_text(m, value, vb, vf, min_size=8.0, color=color, role=role).ops
-        cb = QRectF(box.left() + 5.0, vb.bottom() + 2.0, box.width() - 10.0, ch)
-        ops += fit_text(m, caption, cb, cf, min_size=6.0 * s, max_lines=3, color=MUTED,
-                        role=role + ".caption").ops
+    grid = col.take(len(rows) * th + (len(rows) - 1) * gap)
+    for r, row in enumerate(rows):
+        tw = (inner.width() - (len(row) - 1) * gap) / len(row)
+        for c, (value, caption, role) in enumerate(row):
+            box = QRectF(grid.left() + c * (tw + gap), grid.top() + r * (th + gap), tw, th)
+            box = box.intersected(grid)
+            if box.height() < th - 0.01:
+                col.overflow = True
+                continue
+            # the headline figure stands out by its heavier frame, which survives grey print
+            lead = role == "key.annual"
+            edge = pen(theme.ACCENT, 1.8) if lead else pen(TILE_EDGE, 0.5)
+            inset = 0.9 if lead else 0.25
+            ops.append(shape(rect_path(box.adjusted(inset, inset, -inset, -inset)), box,
+                             edge, "#ffffff", role="tile"))
+            vb = QRectF(box.left() + 5.0, box.top() + 4.0, box.width() - 10.0, vh)
+            ops += fit_text(m, value, vb, vf, min_size=BODY_MIN_PT, color=TEXT, role=role).ops
+            cb = QRectF(box.left() + 5.0, vb.bottom() + 2.0, box.width() - 10.0, ch)
+            fitted = fit_text(m, caption, cb, cf, min_size=BODY_MIN_PT, max_lines=4,
+                              color=MUTED, role=role + ".caption")
+            col.overflow = col.overflow or fitted.elided
+            ops += fitted.ops
     col.gap(5.0 * s)
+    lines = []
+    if opts.irradiance.sky == "clear":
+        lines.append((clear_sky_advice(), True, "key.clear_sky"))
+    lines.append((min_tilt_sentence(ctx.f.tilt_min_deg, ctx.study.mounting), False,
+                  "key.min_tilt"))
+    if ctx.f.weakest_month is not None:
+        month, value = ctx.f.weakest_month
+        lines.append((weakest_month_sentence(month, value, ctx.f.dark_months,
+                                             ctx.f.polar_night, ctx.year), False,
+                      "key.weakest_month"))
     rule = degree_text(ctx.study.recommendation_rule)
     rule = rule[0].upper() + rule[1:]
-    basis = ("Clear-sky basis: every figure is an upper bound, not an expected yield. "
-             if opts.irradiance.sky == "clear" else "")
-    ops += col.text(f"{basis}Rule: {rule}. The two-axis tracker is a ceiling to judge the "
-                    "others by, not a recommendation.", Font(7.0 * s), min_size=5.5,
-                    max_lines=3, color=TEXT, role="key.rule")
+    lines.append((f"Rule: {rule}. The two-axis tracker is a ceiling to judge the others by, "
+                  "not a recommendation.", False, "key.rule"))
     for i, warning in enumerate(ctx.f.weather_warnings):    # accepted, so shown on page 1
-        col.gap(2.0 * s)
-        ops += col.text(f"Weather data warning, accepted by the preparer: {warning}",
-                        Font(7.0 * s, bold=True), min_size=5.5, max_lines=3, color=TEXT,
-                        role=f"key.weather_warning.{i}")
+        lines.append((f"Weather data warning, accepted by the preparer: {client_text(warning)}",
+                      True, f"key.weather_warning.{i}"))
+    for text, bold, role in lines:
+        ops += col.text(text, Font(BODY_MIN_PT, bold=bold), min_size=BODY_MIN_PT,
+                        max_lines=4, color=TEXT, gap_after=2.0 * s, role=role)
     height = col.y - frame.top() + pad
     return ops, min(height, frame.height()), col.overflow or height > frame.height()
 
@@ -356,63 +400,101 @@ def _chart_series(ctx: _Ctx) -> list:
     return series
 
 
-# -- page 2 --------------------------------------------------------------------------------------
+# -- page 2 and on ---------------------------------------------------------------------------
 
-def _page2(m: Measure, ctx: _Ctx, s: float):
-    page = Page(ctx.w, ctx.h, ctx.content())
-    body = _body(m, ctx)
-    # running head
-    hf = Font(9.0 * s, bold=True)
-    hh = m.line_height(hf)
-    right_text = "Feasibility sheet · details"
-    rf = Font(7.5 * s)
-    rw = m.width(right_text, rf) + 2.0
-    page.add(fit_text(m, ctx.site.name, QRectF(body.left(), body.top(), body.width() - rw - 12,
-                                                hh), hf, min_size=7.0, max_lines=1,
-                      role="head.site").ops)
-    page.add(fit_text(m, right_text, QRectF(body.right() - rw, body.top(), rw, hh), rf,
-                      align="right", valign="bottom", color=MUTED, role="head.right").ops)
-    y = body.top() + hh + 3.0
-    page.add(hrule(body, y, RULE, 0.6))
-    # cautions at the bottom, sized first so they always fit whole
-    _, ch = _cautions(m, ctx, body, s)
-    col = Column(m, QRectF(body.left(), y + 2.0, body.width(),
-                           body.bottom() - ch - 10.0 * s - (y + 2.0)))
-    page.add(_heading(col, "Options compared", s, "section.options", gap_before=4.0))
-    page.add(_options_table(m, ctx, col, s))
-    page.add(_heading(col, "Monthly irradiation on the plane (kWh/m²)", s, "section.monthly"))
-    page.add(_monthly_table(m, ctx, col, s))
+class _Flow:
+    """Pages of details, filled from the top; a block that does not fit starts a new page."""
+
+    def __init__(self, m: Measure, ctx: _Ctx):
+        self.m, self.ctx = m, ctx
+        self.pages: list[Page] = []
+        self._new_page()
+
+    def _new_page(self) -> None:
+        m, ctx = self.m, self.ctx
+        page = Page(ctx.w, ctx.h, ctx.content())
+        body = _body(m, ctx)
+        hf = Font(9.0, bold=True)
+        hh = m.line_height(hf)
+        right_text = "Feasibility sheet · details" + (" (continued)" if self.pages else "")
+        rf = Font(BODY_MIN_PT)
+        rw = m.width(right_text, rf) + 2.0
+        page.add(fit_text(m, ctx.site.name, QRectF(body.left(), body.top(),
+                                                    body.width() - rw - 12, hh), hf,
+                          min_size=BODY_MIN_PT, max_lines=1, role="head.site").ops)
+        page.add(fit_text(m, right_text, QRectF(body.right() - rw, body.top(), rw, hh), rf,
+                          align="right", valign="bottom", color=MUTED, role="head.right").ops)
+        y = body.top() + hh + 3.0
+        page.add(hrule(body, y, RULE, 0.6))
+        self.col = Column(m, QRectF(body.left(), y + 2.0, body.width(), body.bottom() - y - 2.0))
+        self.page = page
+        self.pages.append(page)
+
+    def place(self, build) -> None:
+        """``build(column) -> ops``, laid whole on this page, else on a new one."""
+        col = self.col
+        trial = Column(self.m, QRectF(col.rect.left(), col.y, col.rect.width(), 1e5))
+        build(trial)
+        need = trial.y - col.y
+        if need > col.remaining + EPS and col.y > col.rect.top() + 1.0:
+            self._new_page()
+        self.page.add(build(self.col))
+
+
+def _detail_pages(m: Measure, ctx: _Ctx) -> list[Page]:
+    """The options and monthly tables, the study's notes, the assumptions and the cautions,
+    flowing over as many pages as they need (nothing is cut or shrunk)."""
+    flow = _Flow(m, ctx)
+    flow.place(lambda col: _heading(col, "Options compared", 1.0, "section.options",
+                                    gap_before=4.0) + _options_table(m, ctx, col, 1.0))
+    flow.place(lambda col: _heading(col, "Monthly irradiation on the plane (kWh/m²)", 1.0,
+                                    "section.monthly") + _monthly_table(m, ctx, col, 1.0))
     # the clear-sky caveat is stated in the key figures and the assumptions already
     notes = [n for n in ctx.f.notes if not n.startswith("Clear-sky basis")
              and n not in ctx.f.weather_warnings]                # those are on page 1
-    if notes:
-        page.add(_heading(col, "Notes from the study", s, "section.notes"))
-        for note in notes:
-            page.add(col.text("• " + degree_text(note), Font(7.0 * s), min_size=5.5,
-                              max_lines=3, gap_after=1.5 * s, role="note"))
-    page.add(_heading(col, "Assumptions", s, "section.assumptions"))
+
+    def note(text, heading=None):
+        def build(col):
+            ops = _heading(col, heading, 1.0, "section.notes") if heading else []
+            return ops + col.text("• " + client_text(text), Font(BODY_MIN_PT),
+                                  min_size=BODY_MIN_PT, gap_after=1.5, role="note")
+        return build
+
+    for i, text in enumerate(notes):
+        flow.place(note(text, "Notes from the study" if i == 0 else None))
     rows = list(ctx.f.assumptions) + [("Reproducibility", ctx.f.reproducibility)]
-    page.add(_pairs(m, col, rows, s))
-    # the cautions follow the assumptions, or stay at the foot of the page if short of room
-    top = min(col.y + 10.0 * s, body.bottom() - ch)
-    caution_box = QRectF(body.left(), top, body.width(), ch)
-    page.frames["cautions"] = caution_box
-    cops, _ = _cautions(m, ctx, caution_box, s)
-    page.add(shape(rect_path(caution_box.adjusted(0.4, 0.4, -0.4, -0.4)), caution_box,
-                   pen("#8a5a00", 0.8), "#fbf6ea", role="cautions-box"))
-    page.add(cops)
-    return page, not col.overflow
+
+    def pair(row, heading=None):
+        def build(col):
+            ops = _heading(col, heading, 1.0, "section.assumptions") if heading else []
+            return ops + _pairs(m, col, [row], 1.0)
+        return build
+
+    for i, row in enumerate(rows):
+        flow.place(pair(row, "Assumptions" if i == 0 else None))
+
+    def cautions(col):
+        col.gap(10.0)
+        _, ch = _cautions(m, ctx, QRectF(col.rect.left(), col.y, col.rect.width(), 1e4), 1.0)
+        box = col.take(ch)
+        ops, _ = _cautions(m, ctx, box, 1.0)
+        flow.page.frames["cautions"] = box
+        return [shape(rect_path(box.adjusted(0.4, 0.4, -0.4, -0.4)), box,
+                      pen(CAUTION, 0.8), CAUTION_FILL, role="cautions-box")] + ops
+
+    flow.place(cautions)
+    return flow.pages
 
 
 def _cautions(m: Measure, ctx: _Ctx, frame: QRectF, s: float) -> tuple[list, float]:
     pad = 6.0 * s
     inner = QRectF(frame.left() + pad, frame.top() + pad, frame.width() - 2 * pad, 1e4)
     col = Column(m, inner)
-    ops = col.text("Cautions", Font(9.0 * s, bold=True), max_lines=1, color="#8a5a00",
+    ops = col.text("Cautions", Font(_pt(9.5, s), bold=True), max_lines=1, color=CAUTION,
                    gap_after=2.0 * s, role="section.cautions")
     for i, text in enumerate(ctx.f.cautions):
-        ops += col.text("• " + text, Font(7.4 * s, bold=(i == 0)), max_lines=4,
-                        gap_after=1.5 * s, role=f"caution.{i}")
+        ops += col.text("• " + text, Font(BODY_MIN_PT, bold=(i == 0)), gap_after=1.5 * s,
+                        role=f"caution.{i}")
     return ops, col.y - frame.top() + pad
 
 
@@ -429,8 +511,8 @@ def _table(m: Measure, col: Column, columns, rows, s: float, role: str) -> list:
         xs.append(xs[-1] + frac * width)
     xs[-1] = col.rect.right()
     hpad, vpad = 2.5 * s, 1.6 * s
-    head_font = Font(6.7 * s, bold=True)
-    body_font = Font(7.0 * s, condensed=True)
+    head_font = Font(BODY_MIN_PT, bold=True, condensed=True)
+    body_font = Font(BODY_MIN_PT, condensed=True)
 
     def row_height(texts, font, limits):
         h = 0.0
@@ -447,7 +529,7 @@ def _table(m: Measure, col: Column, columns, rows, s: float, role: str) -> list:
         cell = QRectF(xs[i] + hpad, hbox.top() + vpad, xs[i + 1] - xs[i] - 2 * hpad,
                       max(0.0, hbox.height() - 2 * vpad))
         align = columns[i][2]
-        ops += fit_text(m, t, cell, head_font, min_size=5.5, max_lines=4, align=align,
+        ops += fit_text(m, t, cell, head_font, min_size=BODY_MIN_PT, max_lines=4, align=align,
                         valign="bottom", role=f"{role}.head").ops
     ops.append(hrule(hbox, hbox.bottom(), AXIS_GREY, 0.6))
     limits = [c[3] for c in columns]
@@ -464,7 +546,7 @@ def _table(m: Measure, col: Column, columns, rows, s: float, role: str) -> list:
         for i, t in enumerate(r["cells"]):
             cell = QRectF(xs[i] + hpad, box.top() + vpad, xs[i + 1] - xs[i] - 2 * hpad,
                           max(0.0, box.height() - 2 * vpad))
-            ops += fit_text(m, t, cell, font, min_size=6.0 * s, max_lines=limits[i],
+            ops += fit_text(m, t, cell, font, min_size=BODY_MIN_PT, max_lines=limits[i],
                             align=columns[i][2], color=r.get("color", TEXT),
                             role=f"{role}.cell.{i}").ops
         ops.append(hrule(box, box.bottom(), RULE, 0.35))
@@ -493,7 +575,7 @@ def _options_table(m: Measure, ctx: _Ctx, col: Column, s: float) -> list:
     for opt, (_i, r) in zip(ctx.study.options, table.iterrows(), strict=True):
         name = option_name(opt)
         if opt.kind == "rule-of-thumb":
-            name = "Rule of thumb (tilt = latitude)"
+            name = "Rule of thumb (tilt equal to latitude)"
         if opt is ctx.rec:
             name = "★ " + name
         adjust = "continuous" if opt.kind == "two-axis" else str(int(r["adjustments_per_year"]))
@@ -522,24 +604,20 @@ def _monthly_table(m: Measure, ctx: _Ctx, col: Column, s: float) -> list:
 
 
 def _pairs(m: Measure, col: Column, rows, s: float) -> list:
-    """Label and text rows (assumptions)."""
+    """Label and text rows (assumptions), each as long as its text needs."""
     ops = []
     lw = 0.17 * col.rect.width()
-    lf = Font(6.9 * s, bold=True)
-    tf = Font(6.9 * s)
+    lf = Font(BODY_MIN_PT, bold=True)
+    tf = Font(BODY_MIN_PT)
     for label, text in rows:
+        text = client_text(text)
         tw = col.rect.width() - lw - 6.0
-        h = max(natural_height(m, degree_text(text), tw, tf, 6),
-                natural_height(m, label, lw, lf, 2))
+        h = max(natural_height(m, text, tw, tf), natural_height(m, label, lw, lf))
         box = col.take(h)
-        if box.height() < m.line_height(tf.sized(5.0)):
-            col.overflow = True
-            break
         ops += fit_text(m, label, QRectF(box.left(), box.top(), lw, box.height()), lf,
-                        min_size=5.0, max_lines=2, role=f"assumption.label.{label}").ops
-        fitted = fit_text(m, degree_text(text), QRectF(box.left() + lw + 6.0, box.top(), tw,
-                                                       box.height()), tf, min_size=5.0,
-                          max_lines=6, role=f"assumption.{label}")
+                        min_size=BODY_MIN_PT, role=f"assumption.label.{label}").ops
+        fitted = fit_text(m, text, QRectF(box.left() + lw + 6.0, box.top(), tw, box.height()),
+                          tf, min_size=BODY_MIN_PT, role=f"assumption.{label}")
         if fitted.elided:
             col.overflow = True
         ops += fitted.ops

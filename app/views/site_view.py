@@ -229,7 +229,20 @@ class SiteView(View):
         self.notes.textChanged.connect(self._notes_edited)
         nl.addWidget(self.notes)
         grid.addWidget(notes, 3, 0, 1, 2)
-        grid.setRowStretch(4, 1)
+
+        client = QGroupBox("Prepared for (printed on the feasibility sheet)")
+        cl = QFormLayout(client)
+        self.client_fields = {}
+        for key, label, hint in (("client", "Client", "the client's name"),
+                                 ("address", "Site address", "where the site is"),
+                                 ("reference", "Reference", "your job or quote number")):
+            e = QLineEdit()
+            e.setPlaceholderText(hint + " (left blank: not printed)")
+            e.editingFinished.connect(lambda key=key, e=e: self._client_edited(key, e.text()))
+            cl.addRow(label, e)
+            self.client_fields[key] = e
+        grid.addWidget(client, 4, 0, 1, 2)
+        grid.setRowStretch(5, 1)
         grid.setColumnStretch(0, 1)
         grid.setColumnStretch(1, 1)
         self.show_site(ctx.site)
@@ -383,6 +396,10 @@ class SiteView(View):
         if values is not None:
             self._propose(monthly_ghi_kwh_m2_day=values)
 
+    def _client_edited(self, key: str, text: str) -> None:
+        if getattr(self.ctx.site, key) != text.strip():
+            self._propose(**{key: text.strip()})
+
     def _notes_edited(self) -> None:
         self._propose(notes=self.notes.toPlainText())
 
@@ -482,6 +499,9 @@ class SiteView(View):
                     e.setText(_fmt(v, 2) if use else "")
             if self.notes.toPlainText() != site.notes:
                 self.notes.setPlainText(site.notes)
+            for key, e in self.client_fields.items():
+                if not e.hasFocus():
+                    e.setText(getattr(site, key))
             if not self.planes.hasFocus():
                 self.planes.setRowCount(len(site.planes))
                 for r, p in enumerate(site.planes):

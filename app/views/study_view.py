@@ -34,6 +34,7 @@ from tiltyard.engine.assessment import Mounting, StudySettings
 from tiltyard.engine.tilt import StudyOptions
 from tiltyard.engine.timegrid import REFERENCE_YEAR
 from tiltyard.engine.words import (
+    MIN_TILT_DEFAULT_DEG,
     MONTH_ABBR,
     MOUNTING_WORDS,
     degree_text,
@@ -103,7 +104,7 @@ class StudyView(StudyChartDrawing, View):
         super().__init__(ctx, parent)
         self.study = None            # the result on screen
         # last accepted value of each field (stands in for a field being edited)
-        self._good = {"tilt_min_deg": 0.0, "tilt_max_deg": 90.0, "tilt_step_deg": 1.0,
+        self._good = {"tilt_min_deg": MIN_TILT_DEFAULT_DEG, "tilt_max_deg": 90.0, "tilt_step_deg": 1.0,
                       "azimuth_deg": None, "min_days_between": 30, "switch_a": None,
                       "switch_b": None}
         self._year = REFERENCE_YEAR
@@ -246,7 +247,7 @@ class StudyView(StudyChartDrawing, View):
         sl.addWidget(self.switch_b, 1, 1, Qt.AlignmentFlag.AlignTop)
         form.addRow("Switch on", sw_row)
 
-        for name, text in (("tilt_min_deg", "0"), ("tilt_max_deg", "90"),
+        for name, text in (("tilt_min_deg", f"{MIN_TILT_DEFAULT_DEG:g}"), ("tilt_max_deg", "90"),
                            ("tilt_step_deg", "1"), ("min_days_between", "30")):
             self.fields[name].edit.setText(text)
 

@@ -12,6 +12,7 @@ import pandas as pd
 
 from ..site import MOUNTINGS
 from ..skyyear import IrradianceOptions
+from ..words import MIN_TILT_DEFAULT_DEG
 
 OPTION_KINDS = ("horizontal", "plane", "rule-of-thumb", "fixed-optimal", "two-season",
                 "four-season", "monthly", "two-axis")
@@ -39,6 +40,10 @@ class StudySettings:
         Months (1-12) for the ``months`` objective.
     tilt_min_deg, tilt_max_deg, tilt_step_deg : float
         Candidate tilts: ``tilt_min_deg`` to ``tilt_max_deg`` by ``tilt_step_deg``.
+        The lowest defaults to 10° (:data:`tiltyard.engine.words.MIN_TILT_DEFAULT_DEG`):
+        rain rinses panels and water runs off from about there (common practice, no
+        source). It bounds every optimised option; the horizontal reference, the site's
+        planes as they are, the rule of thumb and the two-axis ceiling keep their tilts.
     azimuth_deg : float or None
         Fixed azimuth for every optimised option (the roof faces where it
         faces); None lets the fixed optimum choose its azimuth, and schedules
@@ -52,7 +57,7 @@ class StudySettings:
 
     objective: str = "annual"
     months: tuple = ()
-    tilt_min_deg: float = 0.0
+    tilt_min_deg: float = MIN_TILT_DEFAULT_DEG   # run-off: common practice, no source
     tilt_max_deg: float = 90.0
     tilt_step_deg: float = 1.0
     azimuth_deg: float | None = None

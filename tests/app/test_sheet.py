@@ -120,7 +120,7 @@ def test_page_count_and_size_for_both_papers(qapp, lark_sheet):
     letter = pdf_bytes(build_sheet(result.figures, result.sun, META, "letter"))
     for data, (w, h) in ((a4, (595.0, 842.0)), (letter, (612.0, 792.0))):
         reader = pypdf.PdfReader(io.BytesIO(data))
-        assert len(reader.pages) == 2
+        assert len(reader.pages) in (2, 3)        # the details flow on when they need to
         for page in reader.pages:
             box = page.mediabox
             # ISO 216 A4 (210 x 297 mm) and US Letter (8.5 x 11 in) in points: 1 pt
@@ -154,8 +154,11 @@ def test_pdf_is_vector_with_selectable_text_and_embedded_fonts(lark_sheet):
         content = page.get_contents().get_data()
         ops = re.findall(rb"(?<=\s)(l|c|Tj|TJ)(?=\s)", content)
         # page 1's charts are thousands of path segments; page 2 has the tables' rules
-        assert ops.count(b"l") + ops.count(b"c") > (1000 if i == 0 else 20)
-        assert ops.count(b"Tj") + ops.count(b"TJ") > 300    # text drawn as text
+        if i < 2:
+            assert ops.count(b"l") + ops.count(b"c") > (1000 if i == 0 else 20)
+            assert ops.count(b"Tj") + ops.count(b"TJ") > 300    # text drawn as text
+        else:                                   # a continuation page: text still text
+            assert ops.count(b"Tj") + ops.count(b"TJ") > 10
         fonts = res["/Font"]
         assert len(fonts) >= 1
         for _n, ref in fonts.items():
@@ -181,7 +184,7 @@ def test_long_name_and_every_option_fit(qapp):
     result = compute_sheet(site, study, META, "a4")
     for paper in ("a4", "letter"):
         doc = build_sheet(result.figures, result.sun, META, paper)
-        assert doc.page_count == 2
+        assert doc.page_count >= 2
         _check_in_frames(doc)
         text = pdf_text(pdf_bytes(doc))
         assert site.name in text                      # the title wraps but keeps every word
@@ -199,7 +202,7 @@ def test_the_arctic_sheet_fits(qapp):
     site = load_demo("tarnvik-cabin")       # polar day and polar night on one chart
     result = compute_sheet(site, coarse_study(site), META, "a4")
     _check_in_frames(result.document)
-    assert result.document.scales == (1.0, 1.0)
+    assert set(result.document.scales) == {1.0}
     legend = " ".join(o.text for o in result.document.pages[0].texts() if o.role == "legend")
     assert "stays below the horizon" in legend             # no sunrise on 21 December
 
@@ -249,7 +252,7 @@ def test_view_previews_the_pages(qtbot, idle, make_ctx, artefacts_dir, demo):
     ctx = make_ctx(demo)
     view = _view(qtbot, idle, ctx)
     pv = view.preview
-    assert pv is not None and len(pv.images) == 2
+    assert pv is not None and len(pv.images) == pv.document.page_count >= 2
     # the sheet's study is the open assessment's, the one the Tilt study view shows
     assert pv.result.study.options_used == ctx.assessment.study_options(
         pv.result.study.options_used.irradiance)
@@ -273,7 +276,9 @@ def test_view_follows_study_preferences_and_paper(qtbot, idle, make_ctx):
     assert view.preview is not first
     study = view.preview.result.study
     assert study.options_used.objective == "months" and study.options_used.months == (11, 12, 1)
-    assert "recommended for the total of Nov, Dec, Jan" in view.preview.document.pages[0].text()
+    page1 = view.preview.document.pages[0].text()
+    # a flush roof is taken as it is; the objective is its own key figure
+    assert "This roof as it is" in page1 and "the total of Nov, Dec, Jan" in page1
     assert any(o.role == "key.objective" for o in view.preview.document.pages[0].texts())
     ctx.set_preferences(settings.Preferences(preparer="Ann Example", organisation="Sunny Ltd",
                                              paper="letter"))
@@ -317,7 +322,8 @@ def test_view_exports_the_engines_data_and_reports_failures(qtbot, idle, make_ct
     assert asked[0][1].endswith("larkmoor-dairy-milking-shed-roof-sheet.pdf")
     study, sky = view.preview.result.study, view.preview.result.sky
     data = (tmp_path / "out-pdf.pdf").read_bytes()
-    assert data.startswith(b"%PDF") and len(pypdf.PdfReader(io.BytesIO(data)).pages) == 2
+    assert data.startswith(b"%PDF") and len(pypdf.PdfReader(io.BytesIO(data)).pages) == \
+        view.preview.document.page_count
     assert (tmp_path / "out-monthly.csv").read_text("utf-8") == monthly_csv_text(study)
     assert (tmp_path / "out-options.csv").read_text("utf-8") == options_csv_text(study)
     # the JSON export is the sheet's document: the study with the assessment's header
@@ -360,7 +366,7 @@ def test_print_and_print_preview(qtbot, idle, make_ctx, tmp_path, monkeypatch):
     view.ask_print = lambda p: True
     assert view.print_sheet(printer) is True
     reader = pypdf.PdfReader(str(out))
-    assert len(reader.pages) == 2
+    assert len(reader.pages) == view.preview.document.page_count
     # printed on the sheet's paper, the pages as laid out
     assert float(reader.pages[0].mediabox.width) == pytest.approx(595.0, abs=1.0)
     assert "Kelpie Creek machinery shed" in pdf_text(out.read_bytes())

@@ -188,8 +188,8 @@ def test_bad_tilt_range_shows_the_range_and_keeps_the_result(qtbot, make_ctx, id
     assert ctx.study is before_study
 
     view.tilt_max.edit.clear()
-    qtbot.keyClicks(view.tilt_max.edit, "-5")            # below the lowest tilt (0)
-    assert "tilt range = 0:-5" in view.tilt_max.message
+    qtbot.keyClicks(view.tilt_max.edit, "-5")            # below the lowest tilt (10)
+    assert "tilt range = 10:-5" in view.tilt_max.message
     view.tilt_step.edit.clear()
     qtbot.keyClicks(view.tilt_step.edit, "five")
     assert "is not a number" in view.tilt_step.message
