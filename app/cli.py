@@ -8,6 +8,7 @@ fault for a problem report.
 from __future__ import annotations
 
 import argparse
+import contextlib
 import datetime as _dt
 import json
 import os
@@ -782,11 +783,13 @@ def cmd_sheet(args) -> int:
     _refuse_outputs_over_inputs(wanted, args.site, assessment)
     prefs = None
     if None in (args.preparer, args.organisation, args.paper, args.times):
-        prefs = _sheet_preferences()
+        with _signals_as_exceptions.deferred():     # the preferences are read with Qt
+            prefs = _sheet_preferences()
     paper = args.paper or (prefs.paper if prefs is not None else "a4")
     basis = args.times or (prefs.time_basis if prefs is not None else "clock")
-    _ensure_gui_app()
-    from tiltyard.app.sheet import SheetMeta, lay_out, pdf_bytes
+    with _signals_as_exceptions.deferred():
+        _ensure_gui_app()
+        from tiltyard.app.sheet import SheetMeta, lay_out, pdf_bytes
 
     meta = SheetMeta(
         preparer=args.preparer if args.preparer is not None else prefs.preparer,
@@ -795,7 +798,8 @@ def cmd_sheet(args) -> int:
     assessed = _assess(assessment)
     site = assessed.site
     try:
-        result = lay_out(assessed.sheet_data(time_basis=basis), meta, paper)
+        with _signals_as_exceptions.deferred():
+            result = lay_out(assessed.sheet_data(time_basis=basis), meta, paper)
         chosen = select_options(result.study, kinds)
     except ValueError as err:
         raise UserError(str(err)) from None
@@ -804,7 +808,8 @@ def cmd_sheet(args) -> int:
     data = {}
     for flag, _path in wanted:
         if flag == "-o":
-            data[flag] = pdf_bytes(result.document)
+            with _signals_as_exceptions.deferred():
+                data[flag] = pdf_bytes(result.document)
         elif flag == "--csv-monthly":
             data[flag] = monthly_csv_text(result.study).encode("utf-8")
         elif flag == "--csv-options":
@@ -891,7 +896,25 @@ class _Terminated(BaseException):
 
 class _signals_as_exceptions:
     """SIGTERM raises :class:`_Terminated` while a command runs (SIGINT raises
-    KeyboardInterrupt already); the previous handler comes back afterwards."""
+    KeyboardInterrupt already); the previous handler comes back afterwards.
+
+    Inside :meth:`deferred` (Qt's import and painting, where an exception raised by a
+    signal handler aborts the interpreter) SIGTERM waits until the block ends."""
+
+    _depth = 0
+    _pending = False
+
+    @classmethod
+    @contextlib.contextmanager
+    def deferred(cls):
+        cls._depth += 1
+        try:
+            yield
+        finally:
+            cls._depth -= 1
+        if cls._depth == 0 and cls._pending:
+            cls._pending = False
+            raise _Terminated()
 
     def __enter__(self):
         import signal
@@ -903,8 +926,11 @@ class _signals_as_exceptions:
             pass
         return self
 
-    @staticmethod
-    def _raise(signum, frame):
+    @classmethod
+    def _raise(cls, signum, frame):
+        if cls._depth:
+            cls._pending = True
+            return
         raise _Terminated()
 
     def __exit__(self, *exc):
