@@ -8,6 +8,7 @@ fault for a problem report.
 from __future__ import annotations
 
 import argparse
+import contextlib
 import datetime as _dt
 import json
 import os
@@ -34,6 +35,10 @@ class _Parser(argparse.ArgumentParser):
         raise SystemExit(EXIT_INPUT)
 
 
+#: Dates ``--date`` takes (the years ``--year`` takes).
+DATE_RANGE = (_dt.date(1900, 1, 1), _dt.date(2100, 12, 31))
+
+
 def _date(text: str) -> _dt.date:
     if not re.fullmatch(r"[0-9]{4}-[0-9]{2}-[0-9]{2}", text):
         raise argparse.ArgumentTypeError(f"{text!r}: expected a date as YYYY-MM-DD")
@@ -41,6 +46,14 @@ def _date(text: str) -> _dt.date:
         return _dt.date.fromisoformat(text)
     except ValueError as err:  # e.g. "day is out of range for month"
         raise argparse.ArgumentTypeError(f"{text!r}: no such date ({err})") from None
+
+
+def _sun_date(text: str) -> _dt.date:
+    day = _date(text)
+    if not DATE_RANGE[0] <= day <= DATE_RANGE[1]:
+        raise argparse.ArgumentTypeError(f"{text}: must be between {DATE_RANGE[0]} and "
+                                         f"{DATE_RANGE[1]}")
+    return day
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -68,7 +81,8 @@ def build_parser() -> argparse.ArgumentParser:
                        description="Sun events and path for one local date. Times are local "
                                    "clock time with the zone's daylight saving.")
     s.add_argument("site", metavar="SITE", help=SITE_HELP)
-    s.add_argument("--date", type=_date, required=True, help="local date, YYYY-MM-DD")
+    s.add_argument("--date", type=_sun_date, required=True,
+                   help=f"local date, YYYY-MM-DD, {DATE_RANGE[0]} to {DATE_RANGE[1]}")
     s.add_argument("--step", type=float, default=10.0, metavar="MIN",
                    help="path sampling step in minutes (default 10)")
     s.add_argument("--json", action="store_true", help="write one JSON document to stdout")
@@ -167,10 +181,13 @@ def _add_study_options(s) -> None:
     site file's saved settings (its ``assessment`` section), else the defaults."""
     from tiltyard.engine.plane import TRANSPOSITION_MODELS
     from tiltyard.engine.site import MOUNTINGS
+    from tiltyard.engine.sky import CLEARSKY_MODELS
     from tiltyard.engine.timegrid import REFERENCE_YEAR, STEPS_MIN
 
     s.add_argument("--model", choices=TRANSPOSITION_MODELS, default=None,
                    help="sky diffuse model (default perez)")
+    s.add_argument("--clearsky", choices=CLEARSKY_MODELS, default=None,
+                   help="clear-sky model (default ineichen, up to 4000 m elevation)")
     s.add_argument("--objective", default=None, metavar="OBJ",
                    help="annual (default), worst-month, or months=11,12,1")
     s.add_argument("--mounting", choices=MOUNTINGS, default=None,
@@ -326,10 +343,29 @@ def _study_changes(args, a) -> dict:
     if args.mounting is not None or args.max_positions is not None:
         changes["mounting"] = Mounting(args.mounting or a.mounting.kind,
                                        args.max_positions or a.mounting.max_positions)
-    for flag, key in (("model", "model"), ("year", "year"), ("step", "interval_min")):
+    for flag, key in (("model", "model"), ("year", "year"), ("step", "interval_min"),
+                      ("clearsky", "clearsky_model")):
         if getattr(args, flag, None) is not None:
             changes[key] = getattr(args, flag)
     return changes
+
+
+#: The command-line option that sets each engine setting, for messages in the user's words.
+_OPTION_OF_SETTING = {
+    "tilt range": "--tilt-range", "tilt_step_deg": "--tilt-step", "azimuth_deg": "--azimuth",
+    "min_days_between": "--min-days", "switch_dates": "--switch-dates",
+    "objective": "--objective", "months": "--objective months", "row_tilt_deg": "--row-tilt",
+    "collector_length_m": "--row-length", "row_design_date": "--row-date",
+    "loss_fraction": "--loss", "year": "--year", "solar_constant_w_m2": "--solar-constant",
+    "max_positions": "--max-positions", "model": "--model", "clearsky_model": "--clearsky"}
+_SETTING_RE = re.compile(r"\b(" + "|".join(map(re.escape, _OPTION_OF_SETTING)) + r")( = |\))")
+
+
+def _in_option_words(text: str) -> str:
+    """An engine message about a setting given on the command line, naming the option
+    (``--tilt-step 0: ...``) instead of the internal field (``tilt_step_deg = 0: ...``)."""
+    return _SETTING_RE.sub(lambda m: _OPTION_OF_SETTING[m.group(1)]
+                           + (" " if m.group(2) == " = " else ")"), text)
 
 
 def _assessment(args, study: bool = True):
@@ -343,7 +379,7 @@ def _assessment(args, study: bool = True):
             changes.update(_study_changes(args, replace(a, **changes)))
         return replace(a, **changes)
     except ValueError as err:
-        raise UserError(str(err)) from None
+        raise UserError(_in_option_words(str(err))) from None
 
 
 def _assess(a):
@@ -592,7 +628,7 @@ def cmd_irradiance(args) -> int:
     try:
         a = replace(a, **changes)
     except ValueError as err:
-        raise UserError(str(err)) from None
+        raise UserError(_in_option_words(str(err))) from None
     result = _assess(a)
     try:
         res = result.irradiance(args.tilt, args.azimuth)
@@ -717,7 +753,7 @@ def cmd_sheet(args) -> int:
         select_options,
         study_json_text,
     )
-    from tiltyard.engine.site import write_bytes_atomically
+    from tiltyard.engine.site import write_files_atomically
 
     wanted = [("-o", args.output), ("--csv-monthly", args.csv_monthly),
               ("--csv-options", args.csv_options), ("--csv-hourly", args.csv_hourly),
@@ -757,11 +793,13 @@ def cmd_sheet(args) -> int:
             raise UserError(f"--{err.field.split('.')[-1]}: {err.reason}") from None
     prefs = None
     if None in (args.preparer, args.organisation, args.paper, args.times):
-        prefs = _sheet_preferences()
+        with _signals_as_exceptions.deferred():     # the preferences are read with Qt
+            prefs = _sheet_preferences()
     paper = args.paper or (prefs.paper if prefs is not None else "a4")
     basis = args.times or (prefs.time_basis if prefs is not None else "clock")
-    _ensure_gui_app()
-    from tiltyard.app.sheet import SheetMeta, lay_out, pdf_bytes
+    with _signals_as_exceptions.deferred():
+        _ensure_gui_app()
+        from tiltyard.app.sheet import SheetMeta, lay_out, pdf_bytes
 
     meta = SheetMeta(
         preparer=args.preparer if args.preparer is not None else prefs.preparer,
@@ -770,7 +808,8 @@ def cmd_sheet(args) -> int:
     assessed = _assess(assessment)
     site = assessed.site
     try:
-        result = lay_out(assessed.sheet_data(time_basis=basis), meta, paper)
+        with _signals_as_exceptions.deferred():
+            result = lay_out(assessed.sheet_data(time_basis=basis), meta, paper)
         chosen = select_options(result.study, kinds)
     except ValueError as err:
         raise UserError(str(err)) from None
@@ -779,7 +818,8 @@ def cmd_sheet(args) -> int:
     data = {}
     for flag, _path in wanted:
         if flag == "-o":
-            data[flag] = pdf_bytes(result.document)
+            with _signals_as_exceptions.deferred():
+                data[flag] = pdf_bytes(result.document)
         elif flag == "--csv-monthly":
             data[flag] = monthly_csv_text(result.study).encode("utf-8")
         elif flag == "--csv-options":
@@ -788,11 +828,17 @@ def cmd_sheet(args) -> int:
             data[flag] = hourly_csv_text(result.sky, site, chosen).encode("utf-8")
         else:
             data[flag] = study_json_text(result.study, assessed).encode("utf-8")
+    # every file to a temporary file first, then all renamed: a failure while writing
+    # (a full disk, a signal) leaves every output as it was
+    try:
+        write_files_atomically([(path, data[flag]) for flag, path in wanted])
+    except OSError as err:
+        target = getattr(err, "target", None)
+        where = next((f"{flag} {path}" for flag, path in wanted if str(Path(path)) == target),
+                     "the outputs")
+        raise UserError(f"{where}: cannot write ({err.strerror or err}); no output was "
+                        "changed") from None
     for flag, path in wanted:
-        try:
-            write_bytes_atomically(path, data[flag])
-        except OSError as err:
-            raise UserError(f"{flag} {path}: cannot write ({err.strerror or err})") from None
         what = (f"feasibility sheet, {result.document.page_count} pages, "
                 f"{'A4' if paper == 'a4' else 'US Letter'}" if flag == "-o" else flag[2:])
         print(f"wrote {path} ({what})")
@@ -817,19 +863,29 @@ def main(argv: list[str] | None = None) -> int:
         return _open_app(argv[0] if argv else None)
     parser = build_parser()
     try:
-        args = parser.parse_args(argv)
+        args = parser.parse_args(_negative_values_joined(parser, argv))
     except SystemExit as stop:
         code = stop.code
         return code if isinstance(code, int) else (EXIT_OK if code is None else EXIT_INPUT)
     from tiltyard.engine.site import SiteError
 
+    if not args.verbose:   # library warnings (pandas, pvlib, numpy) are for --verbose only
+        import warnings
+        warnings.simplefilter("ignore")
     try:
         if args.command is None:
             return _open_app(None)
-        return COMMANDS[args.command](args)
+        with _signals_as_exceptions():
+            return COMMANDS[args.command](args)
     except (UserError, SiteError) as err:
         sys.stderr.write(f"tiltyard: {_one_line(err)}\n")
         return EXIT_INPUT
+    except (KeyboardInterrupt, _Terminated) as stop:
+        # the write in progress has removed its temporary file on the way out
+        code = _Terminated.code_of(stop)
+        sys.stderr.write(f"tiltyard: stopped by {'SIGINT' if code == 130 else 'SIGTERM'}; "
+                         "no output was changed by the unfinished step\n")
+        return code
     except BrokenPipeError:
         return EXIT_OK
     except Exception as err:  # an internal fault: one line, traceback on request
@@ -838,6 +894,91 @@ def main(argv: list[str] | None = None) -> int:
         sys.stderr.write(f"tiltyard: internal fault: {type(err).__name__}: {_one_line(err)} "
                          "(run again with --verbose and report it)\n")
         return EXIT_FAULT
+
+
+class _Terminated(BaseException):
+    """SIGTERM during a command: unwinds like Ctrl-C, so temporary files are removed."""
+
+    @staticmethod
+    def code_of(stop: BaseException) -> int:
+        return 143 if isinstance(stop, _Terminated) else 130
+
+
+class _signals_as_exceptions:
+    """SIGTERM raises :class:`_Terminated` while a command runs (SIGINT raises
+    KeyboardInterrupt already); the previous handler comes back afterwards.
+
+    Inside :meth:`deferred` (Qt's import and painting, where an exception raised by a
+    signal handler aborts the interpreter) SIGTERM waits until the block ends."""
+
+    _depth = 0
+    _pending = False
+
+    @classmethod
+    @contextlib.contextmanager
+    def deferred(cls):
+        cls._depth += 1
+        try:
+            yield
+        finally:
+            cls._depth -= 1
+        if cls._depth == 0 and cls._pending:
+            cls._pending = False
+            raise _Terminated()
+
+    def __enter__(self):
+        import signal
+
+        self._old = None
+        try:
+            self._old = signal.signal(signal.SIGTERM, self._raise)
+        except ValueError:          # not the main thread (a test runner's thread)
+            pass
+        return self
+
+    @classmethod
+    def _raise(cls, signum, frame):
+        if cls._depth:
+            cls._pending = True
+            return
+        raise _Terminated()
+
+    def __exit__(self, *exc):
+        import signal
+
+        if self._old is not None:
+            signal.signal(signal.SIGTERM, self._old)
+        return False
+
+
+def _negative_values_joined(parser, argv: list[str]) -> list[str]:
+    """``--time-zone -05:00`` as ``--time-zone=-05:00``: argparse takes any word starting
+    with '-' after an option for another option (unless it is a plain negative number), so
+    a value that starts with '-' is joined to the option that takes it."""
+    takes_value, known = set(), set()
+    parsers = [parser] + [a for act in parser._actions
+                          if isinstance(act, argparse._SubParsersAction)
+                          for a in act.choices.values()]
+    for p in parsers:
+        for act in p._actions:
+            known.update(act.option_strings)
+            if act.option_strings and act.nargs is None:
+                takes_value.update(act.option_strings)
+    out, i = [], 0
+    while i < len(argv):
+        word = argv[i]
+        if word == "--":
+            out += argv[i:]
+            break
+        following = argv[i + 1] if i + 1 < len(argv) else None
+        if (word in takes_value and following is not None and following.startswith("-")
+                and following != "-" and following.split("=", 1)[0] not in known):
+            out.append(f"{word}={following}")
+            i += 2
+            continue
+        out.append(word)
+        i += 1
+    return out
 
 
 def _open_app(site_arg: str | None) -> int:

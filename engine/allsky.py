@@ -815,7 +815,9 @@ def load_weather_for_site(path, site: Site, *, columns=None, timestamp_label=Non
     try:
         weather = read_weather_file(p, latitude_deg=site.latitude_deg,
                                     longitude_deg=site.longitude_deg)
-    except WeatherImportError as exc:
+    except _UNFORESEEN_BAD_FILE as exc:      # a header or field no reader check foresaw
+        if not isinstance(exc, WeatherImportError):
+            raise _as_import_error(p, exc) from None
         if "format not recognised" not in exc.reason:
             raise
         if cmap is None:
@@ -861,7 +863,18 @@ def _read_csv_for_site(path: Path, site: Site, cmap: ColumnMap, timestamp_label,
         if text.startswith(("timezone", "UTC offset")):
             raise WeatherOptionError("timezone", timezone, text.removeprefix(
                 f"timezone {timezone!r} is ")) from None
-        raise
+        raise _as_import_error(path, exc) from None
+    except (IndexError, KeyError, TypeError, OverflowError) as exc:
+        raise _as_import_error(path, exc) from None
+
+
+#: Failures of a reader on a file no check of its own foresaw: bad input, reported as such.
+_UNFORESEEN_BAD_FILE = (ValueError, IndexError, KeyError, TypeError, OverflowError)
+
+
+def _as_import_error(path: Path, exc: Exception) -> WeatherImportError:
+    text = " ".join(str(exc).split())[:200]
+    return WeatherImportError(path.name, None, f"cannot be read ({type(exc).__name__}: {text})")
 
 
 def weather_json_dict(weather: WeatherData) -> dict:

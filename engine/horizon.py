@@ -82,12 +82,47 @@ def obstacle_elevation_deg(obstacles, azimuth_deg) -> np.ndarray:
     equally high across its width, a conservative simplification.
     """
     az = np.mod(np.asarray(azimuth_deg, dtype=float), 360.0)
-    out = np.full_like(az, -90.0)
-    for ob in obstacles:
-        half = ob.width_deg / 2.0
-        delta = np.abs((az - ob.bearing_deg + 180.0) % 360.0 - 180.0)
-        out = np.where(delta <= half, np.maximum(out, ob.elevation_deg), out)
-    return out
+    out = np.full(az.size, -90.0)
+    if not len(obstacles) or not az.size:
+        return out.reshape(az.shape)
+    flat = az.ravel()
+    order = np.argsort(flat, kind="stable")
+    sorted_az = flat[order]
+    bearing = np.array([ob.bearing_deg for ob in obstacles], dtype=float)
+    half = np.array([ob.width_deg for ob in obstacles], dtype=float) / 2.0
+    elev = np.array([ob.elevation_deg for ob in obstacles], dtype=float)
+    # candidates: the sorted samples within each span widened by a hair (spans that cross
+    # north are split in two); the exact test below decides, as for one obstacle at a time
+    eps = 1e-9
+    lo, hi = bearing - half - eps, bearing + half + eps
+    pieces = [(lo, hi)]
+    pieces.append((np.where(lo < 0, lo + 360.0, np.inf), np.where(lo < 0, 360.0, -np.inf)))
+    pieces.append((np.where(hi >= 360.0, 0.0, np.inf), np.where(hi >= 360.0, hi - 360.0, -np.inf)))
+    for a, b in pieces:
+        start = np.searchsorted(sorted_az, a, side="left")
+        stop = np.searchsorted(sorted_az, b, side="right")
+        _raise_spans(out, order, sorted_az, start, np.maximum(stop, start), bearing, half, elev)
+    return out.reshape(az.shape)
+
+
+def _raise_spans(out, order, sorted_az, start, stop, bearing, half, elev,
+                 chunk: int = 4_000_000) -> None:
+    """``out[order[start_i:stop_i]]`` raised to ``elev_i`` where the sample lies within
+    obstacle i's span, for every obstacle at once (in chunks of at most ``chunk`` samples)."""
+    counts = stop - start
+    first = 0
+    while first < counts.size:
+        total = np.cumsum(counts[first:])
+        last = first + max(int(np.searchsorted(total, chunk, side="right")), 1)
+        n = counts[first:last]
+        if n.sum():
+            which = np.repeat(np.arange(first, last), n)
+            offset = np.arange(n.sum()) - np.repeat(np.cumsum(n) - n, n)
+            pos = start[which] + offset
+            delta = np.abs((sorted_az[pos] - bearing[which] + 180.0) % 360.0 - 180.0)
+            keep = delta <= half[which]
+            np.maximum.at(out, order[pos[keep]], elev[which[keep]])
+        first = last
 
 
 def site_horizon_deg(site: Site, azimuth_deg) -> np.ndarray:

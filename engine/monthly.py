@@ -106,6 +106,33 @@ def erbs_monthly_diffuse_fraction(kt_bar, sunset_hour_angle_deg):
     return np.where(ws <= ERBS_SUNSET_HOUR_ANGLE_SPLIT_DEG, winter, summer)
 
 
+def first_dark_daylight_month(latitude_deg: float, ghi_kwh_m2_day):
+    """Index (0 = January) of the first month with daylight but no global irradiation.
+
+    Parameters
+    ----------
+    latitude_deg : float
+        Site latitude.
+    ghi_kwh_m2_day : sequence of 12 float
+        Monthly mean daily global horizontal irradiation, January first.
+
+    Returns
+    -------
+    int or None
+        The month's index, or None if every month with daylight has some.
+
+    References
+    ----------
+    A month whose mean day has daylight (H0 > 0, Duffie & Beckman 2013, eq. 1.10.3)
+    always receives some global irradiation (common practice, no source).
+    """
+    h0 = monthly_mean_extraterrestrial_kwh_m2_day(latitude_deg)
+    for i, (value, top) in enumerate(zip(ghi_kwh_m2_day, h0, strict=True)):
+        if value <= 0.0 < top:
+            return i
+    return None
+
+
 def monthly_mean_extraterrestrial_kwh_m2_day(latitude_deg, solar_constant_w_m2=1361.0):
     """Extraterrestrial horizontal irradiation on the mean day of each month.
 

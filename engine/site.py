@@ -17,13 +17,14 @@ import math
 import numbers
 import os
 import re
-import stat
-import tempfile
 from dataclasses import dataclass, field, replace
 from importlib import resources
 from pathlib import Path
 from typing import Any
 from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
+
+from . import site_limits as _limits
+from .atomic_files import write_bytes_atomically, write_files_atomically  # noqa: F401 (re-export)
 
 FORMAT_NAME = "tiltyard-site"
 #: Version 2 added a plane's ``mounting`` and the ``assessment`` section (sky basis,
@@ -92,7 +93,10 @@ def _number(field_name: str, value: Any, lo: float | None = None, hi: float | No
     """Validate one finite number within [lo, hi] and return it as float."""
     if isinstance(value, bool) or not isinstance(value, numbers.Real):
         raise SiteError(field_name, value, "must be a number")
-    value_f = float(value)
+    try:
+        value_f = float(value)
+    except OverflowError:           # an int too large for a float
+        value_f = math.inf
     if not math.isfinite(value_f):
         raise SiteError(field_name, value, "must be a finite number")
     rng = _range_text(lo, hi, unit)
@@ -110,6 +114,18 @@ def _range_text(lo, hi, unit):
     if lo is not None:
         return f"at least {lo:g}{u}"
     return f"at most {hi:g}{u}"
+
+
+def _text(field_name: str, value: Any, limit: int) -> str:
+    """Validate a text field: a str of at most ``limit`` characters, storable as UTF-8."""
+    if not isinstance(value, str):
+        raise SiteError(field_name, value, "must be text")
+    if len(value) > limit:
+        raise SiteError(field_name, value, f"must be at most {limit} characters")
+    bad = _limits.check_text(value)
+    if bad:
+        raise SiteError(field_name, value, bad)
+    return value
 
 
 def _twelve(field_name: str, values: Any, lo: float, hi: float, unit: str = "") -> tuple:
@@ -246,8 +262,7 @@ class Site:
     def __post_init__(self):
         if not isinstance(self.name, str) or not self.name.strip():
             raise SiteError("name", self.name, "must be a non-empty text")
-        if len(self.name) > 200:
-            raise SiteError("name", self.name, "must be at most 200 characters")
+        _text("name", self.name, 200)
         object.__setattr__(self, "latitude_deg",
                            _number("latitude_deg", self.latitude_deg, -90, 90, "deg"))
         object.__setattr__(self, "longitude_deg",
@@ -258,7 +273,7 @@ class Site:
             raise SiteError("timezone", self.timezone, "must be an IANA time zone name")
         try:
             ZoneInfo(self.timezone)
-        except (ZoneInfoNotFoundError, ValueError):
+        except (ZoneInfoNotFoundError, ValueError, OSError):   # OSError: "America" is a folder
             raise SiteError("timezone", self.timezone,
                             "is not a known IANA time zone (for example 'Europe/London')") from None
         if isinstance(self.albedo, (list, tuple)):
@@ -286,8 +301,20 @@ class Site:
             object.__setattr__(self, "monthly_ghi_kwh_m2_day",
                                _twelve("monthly_ghi_kwh_m2_day", self.monthly_ghi_kwh_m2_day,
                                        0, 12, "kWh/m2/day"))
-        if not isinstance(self.notes, str):
-            raise SiteError("notes", self.notes, "must be text")
+            from .monthly import first_dark_daylight_month
+
+            i = first_dark_daylight_month(self.latitude_deg, self.monthly_ghi_kwh_m2_day)
+            if i is not None:     # decided once, here, for every sky basis and command
+                raise SiteError(f"monthly_ghi_kwh_m2_day[{i}]", self.monthly_ghi_kwh_m2_day[i],
+                                "must be more than 0 in a month with daylight (every month "
+                                "but those of polar night)")
+        _text("notes", self.notes, _limits.MAX_NOTES_CHARS)
+        for what, items, limit in (("horizon.azimuth_deg", self.horizon.azimuth_deg,
+                                    _limits.MAX_HORIZON_POINTS),
+                                   ("obstacles", self.obstacles, _limits.MAX_OBSTACLES),
+                                   ("planes", self.planes, _limits.MAX_PLANES)):
+            if len(items) > limit:
+                raise SiteError(what, f"{len(items)} items", f"may hold at most {limit}")
         for key in CLIENT_FIELDS:
             value = getattr(self, key)
             if not isinstance(value, str):
@@ -320,12 +347,21 @@ class Site:
 
 # -- JSON mapping -----------------------------------------------------------
 
+def _label(d: dict, default: str) -> str:
+    label = d.get("label")
+    if label is None:
+        label = default
+    if isinstance(label, (int, float)) and not isinstance(label, bool):
+        label = str(label)
+    return _text("label", label, _limits.MAX_LABEL_CHARS)
+
+
 def _obstacle_from_dict(d: dict, i: int) -> Obstacle:
     prefix = f"obstacles[{i}]"
     if not isinstance(d, dict):
         raise SiteError(prefix, d, "must be an object")
     try:
-        label = str(d.get("label", f"obstacle {i + 1}"))
+        label = _label(d, f"obstacle {i + 1}")
         for key in ("distance_m", "height_m"):
             if key not in d:
                 raise SiteError(f"{prefix}.{key}", None, "is required")
@@ -352,7 +388,7 @@ def _plane_from_dict(d: dict, i: int) -> Plane:
         if key not in d:
             raise SiteError(f"{prefix}.{key}", None, "is required")
     try:
-        return Plane(str(d.get("label", f"plane {i + 1}")), d["tilt_deg"], d["azimuth_deg"],
+        return Plane(_label(d, f"plane {i + 1}"), d["tilt_deg"], d["azimuth_deg"],
                      d.get("mounting", "flush"))
     except SiteError as err:
         raise SiteError(f"{prefix}.{err.field}", err.value, err.reason) from None
@@ -394,6 +430,12 @@ def site_from_dict(d: dict) -> Site:
         raise SiteError("obstacles", obstacles, "must be a list")
     if not isinstance(planes, list):
         raise SiteError("planes", planes, "must be a list")
+    for what, items, limit in (("obstacles", obstacles, _limits.MAX_OBSTACLES),
+                               ("planes", planes, _limits.MAX_PLANES),
+                               ("horizon.azimuth_deg", horizon.get("azimuth_deg") or [],
+                                _limits.MAX_HORIZON_POINTS)):
+        if len(items) > limit:
+            raise SiteError(what, f"{len(items)} items", f"may hold at most {limit}")
     albedo = d.get("albedo", 0.2)
     if isinstance(albedo, list):
         albedo = tuple(albedo)
@@ -469,7 +511,10 @@ def load_site_document(path: str | os.PathLike) -> dict:
     """
     path = Path(path)
     try:
+        _limits.check_file_size(path)
         text = path.read_text(encoding="utf-8")
+    except _limits.SiteFileTooLarge as err:
+        raise SiteError("(file)", str(path), str(err), str(path)) from None
     except FileNotFoundError:
         raise SiteError("(file)", str(path), "does not exist", str(path)) from None
     except UnicodeDecodeError as err:
@@ -477,13 +522,15 @@ def load_site_document(path: str | os.PathLike) -> dict:
     except OSError as err:
         raise SiteError("(file)", str(path), f"cannot be read ({err.strerror})", str(path)) from None
     try:
-        return json.loads(text)
+        return _limits.parse_site_json(text)
     except json.JSONDecodeError as err:
         lines = text.splitlines()
         # the error may sit just past the last line (a file cut short)
         shown = lines[err.lineno - 1].strip()[:40] if 0 < err.lineno <= len(lines) else ""
         raise SiteError(f"line {err.lineno}, column {err.colno}", shown,
                         f"is not valid JSON ({err.msg})", str(path)) from None
+    except ValueError as err:       # nested too deep
+        raise SiteError("(file)", str(path), str(err), str(path)) from None
 
 
 def load_site(path: str | os.PathLike) -> Site:
@@ -511,49 +558,6 @@ def atomic_write_text(path: str | os.PathLike, text: str) -> None:
     point leaves either the old file or the new one, never a truncated file.
     """
     write_bytes_atomically(path, text.encode("utf-8"))
-
-
-def write_bytes_atomically(path: str | os.PathLike, data: bytes) -> None:
-    """Write ``data`` to ``path`` atomically (temp file, fsync, rename)."""
-    path = Path(path)
-    folder = path.parent if str(path.parent) else Path(".")
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=folder)
-    try:
-        with os.fdopen(fd, "wb") as fh:
-            # mkstemp makes an owner-only file; give the new file the old file's
-            # permissions, or the usual ones (0666 less the umask) for a new file
-            os.chmod(tmp, _target_mode(path))
-            fh.write(data)
-            fh.flush()
-            os.fsync(fh.fileno())
-        os.replace(tmp, path)
-    except BaseException:
-        try:
-            os.unlink(tmp)
-        except FileNotFoundError:
-            pass
-        raise
-    try:  # make the rename itself durable where the platform allows it
-        dir_fd = os.open(folder, os.O_RDONLY)
-    except OSError:
-        return
-    try:
-        os.fsync(dir_fd)
-    except OSError:
-        pass
-    finally:
-        os.close(dir_fd)
-
-
-def _target_mode(path: Path) -> int:
-    """Permission bits a file written at ``path`` should get."""
-    try:
-        return stat.S_IMODE(os.stat(path).st_mode)
-    except OSError:
-        pass
-    mask = os.umask(0o022)  # reading the umask means setting it; put it straight back
-    os.umask(mask)
-    return 0o666 & ~mask
 
 
 def save_site(site: Site, path: str | os.PathLike) -> None:

@@ -28,6 +28,12 @@ SOLAR_CONSTANT_W_M2 = 1361.0
 
 CLEARSKY_MODELS = ("ineichen", "simplified_solis", "haurwitz")
 
+#: Highest site the Ineichen-Perez clear sky is used for, m. Above it its altitude terms
+#: (``cg1 = 5.09e-5 h + 0.868``, ``fh1 = exp(-h / 8000)``; Ineichen & Perez 2002) drive
+#: clear-sky GHI towards, and past, the extraterrestrial irradiance (our own check: 94 %
+#: of H0 at 4000 m, 99 % at 6000 m; pvlib issue #285 reports the same at 20 km).
+INEICHEN_MAX_ELEVATION_M = 4000.0
+
 CLEARSKY_REFERENCES = {
     "ineichen": "Ineichen, P. & Perez, R. (2002). A new airmass independent formulation for "
                 "the Linke turbidity coefficient. Solar Energy 73(3), 151-157.",
@@ -351,7 +357,8 @@ def clear_sky(times: pd.DatetimeIndex, position: pd.DataFrame, site: Site,
 
     Notes
     -----
-    Ineichen-Perez output is bounded by the extraterrestrial irradiance
+    Ineichen-Perez is refused above :data:`INEICHEN_MAX_ELEVATION_M` (ValueError
+    naming ``elevation_m``). Its output is bounded by the extraterrestrial irradiance
     (DNI by ``dni_extra``, GHI by ``dni_extra cos(z)``): at sites above about
     4000 m its altitude terms would otherwise exceed it. The note says when
     the bound was applied.
@@ -367,6 +374,12 @@ def clear_sky(times: pd.DatetimeIndex, position: pd.DataFrame, site: Site,
     app_zen = position["apparent_zenith"].to_numpy()
     pressure = site_pressure_pa(site.elevation_m)
     note = "clear-sky irradiance: an upper bound, not an expected yield"
+    if model == "ineichen" and site.elevation_m > INEICHEN_MAX_ELEVATION_M:
+        raise ValueError(
+            f"elevation_m = {site.elevation_m:g} m: above {INEICHEN_MAX_ELEVATION_M:g} m the "
+            "Ineichen-Perez clear sky is not physical (its altitude terms approach the "
+            "extraterrestrial irradiance); choose the simplified Solis clear-sky model "
+            "(--clearsky simplified_solis, or clearsky_model in the site file's assessment)")
     if model == "ineichen":
         lt, source = linke_turbidity(times, site)
         am_rel = pvlib.atmosphere.get_relative_airmass(app_zen)

@@ -82,8 +82,29 @@ class StudySettings:
         if not 1 <= int(self.min_days_between) <= 120:
             raise ValueError(f"min_days_between = {self.min_days_between!r}: must be between 1 "
                              "and 120 days")
-        if self.switch_dates is not None and len(self.switch_dates) != 2:
-            raise ValueError(f"switch_dates = {self.switch_dates!r}: give two dates MM-DD")
+        if self.switch_dates is not None:
+            _check_switch_dates(self.switch_dates, int(self.min_days_between))
+
+
+def _check_switch_dates(dates, min_days: int) -> None:
+    """Two distinct MM-DD dates at least ``min_days`` apart both ways round the year
+    (a non-leap year of 365 days, as the study's reference year)."""
+    if isinstance(dates, str) or len(dates) != 2:
+        raise ValueError(f"switch_dates = {dates!r}: give two dates MM-DD")
+    days = []
+    for text in dates:
+        try:
+            if not isinstance(text, str) or len(text) != 5 or text[2] != "-":
+                raise ValueError
+            days.append(pd.Timestamp(f"2023-{text}").day_of_year)
+        except ValueError:
+            raise ValueError(f"switch_dates = {dates!r}: {text!r} is not a date MM-DD") from None
+    gap = abs(days[1] - days[0])
+    shorter = min(gap, 365 - gap)
+    if shorter < min_days:
+        raise ValueError(f"switch_dates = {','.join(dates)}: the seasons between them must "
+                         f"each be at least {min_days} days (min_days_between); the shorter "
+                         f"is {shorter}")
 
 
 @dataclass(frozen=True)

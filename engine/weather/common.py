@@ -268,6 +268,15 @@ def _fixed_zone(hours: float) -> datetime.timezone:
     return datetime.timezone(datetime.timedelta(minutes=round(hours * 60)))
 
 
+def _header_zone(file: str, hours) -> datetime.timezone:
+    """The fixed zone of a TMY3, TMY2 or EPW header (line 1), or an import error naming it."""
+    try:
+        return _fixed_zone(float(hours))
+    except (TypeError, ValueError) as exc:
+        raise WeatherImportError(file, 1, f"time zone {hours!r} h in the header: "
+                                 f"{str(exc).removeprefix('UTC offset ')}") from None
+
+
 def _zone_name(tz: datetime.tzinfo) -> str:
     if isinstance(tz, zoneinfo.ZoneInfo):
         return tz.key
@@ -301,7 +310,7 @@ def _parse_timezone(timezone) -> datetime.tzinfo | None:
         return _fixed_zone(sign * hours)
     try:
         return zoneinfo.ZoneInfo(text)
-    except (zoneinfo.ZoneInfoNotFoundError, ValueError):
+    except (zoneinfo.ZoneInfoNotFoundError, ValueError, OSError):   # OSError: a folder
         raise ValueError(
             f"timezone {timezone!r} is neither an IANA zone name (e.g. 'Europe/Berlin') "
             "nor a fixed UTC offset (e.g. '+01:00', 'UTC-05:00')"
@@ -370,6 +379,8 @@ def _parse_timestamps(text: pd.Series, lines: np.ndarray, file: str, column: str
     ``24:00`` is read as midnight of the following day (the end-of-day
     convention of hour-ending files).
     """
+    if len(text) == 0:
+        raise WeatherImportError(file, None, "holds no data rows after its header")
     text = text.astype("str").str.strip()
     empty = (text == "").to_numpy()
     if empty.any():
@@ -395,7 +406,14 @@ def _parse_timestamps(text: pd.Series, lines: np.ndarray, file: str, column: str
         kwargs.setdefault("format", "ISO8601")
     elif timestamp_format is None:
         kwargs["dayfirst"] = dayfirst
-    parsed = pd.to_datetime(text, **kwargs)
+    try:
+        parsed = pd.to_datetime(text, **kwargs)
+    except (pd.errors.OutOfBoundsDatetime, OverflowError):
+        i = _first_out_of_bounds(text, kwargs)
+        raise WeatherImportError(
+            file, int(lines[i]), f"column {column!r}: timestamp {text.iloc[i]!r} is outside "
+            f"the years {pd.Timestamp.min.year + 1} to {pd.Timestamp.max.year - 1} that can "
+            "be read") from None
     bad = parsed.isna().to_numpy()
     if bad.any():
         i = int(np.flatnonzero(bad)[0])
@@ -409,6 +427,16 @@ def _parse_timestamps(text: pd.Series, lines: np.ndarray, file: str, column: str
     if hour24.any():
         index = index + pd.to_timedelta(hour24.astype(np.int64), unit="D")
     return index
+
+
+def _first_out_of_bounds(text: pd.Series, kwargs: dict) -> int:
+    """Index of the first timestamp text that pandas cannot hold (0 if none is found)."""
+    for i, item in enumerate(text):
+        try:
+            pd.to_datetime(pd.Series([item]), **kwargs)
+        except (pd.errors.OutOfBoundsDatetime, OverflowError):
+            return i
+    return 0
 
 
 def _to_numeric(raw: pd.Series, lines: np.ndarray, file: str, column: str,

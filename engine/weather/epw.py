@@ -14,7 +14,7 @@ import numpy as np
 import pandas as pd
 import pvlib
 
-from .common import WeatherImportError, _fixed_zone, _to_numeric
+from .common import WeatherImportError, _header_zone, _to_numeric
 
 #: Missing-value rules of the EPW data dictionary (EnergyPlus Auxiliary
 #: Programs): radiation fields >= 9999, dry bulb 99.9, wind speed 999.
@@ -63,5 +63,5 @@ def _read_epw(path: Path):
              "wind_speed": "Wind Speed"}
     raw = pd.DataFrame({q: table[q].to_numpy() for q in names})
     site = (float(meta["latitude"]), float(meta["longitude"]), float(meta["altitude"]))
-    return raw, names, labels, lines, _fixed_zone(float(meta["TZ"])), site, _EPW_MISSING, \
+    return raw, names, labels, lines, _header_zone(file, meta["TZ"]), site, _EPW_MISSING, \
         records_per_hour

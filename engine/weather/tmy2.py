@@ -14,7 +14,7 @@ import numpy as np
 import pandas as pd
 import pvlib
 
-from .common import DATA_COLUMNS, DEFAULT_MISSING_VALUES, WeatherImportError, _fixed_zone
+from .common import DATA_COLUMNS, DEFAULT_MISSING_VALUES, WeatherImportError, _header_zone
 
 _TMY2_MISSING = {q: (DEFAULT_MISSING_VALUES, None) for q in DATA_COLUMNS}
 
@@ -42,4 +42,4 @@ def _read_tmy2(path: Path):
     # DryBulb in tenths of degC, Wspd in tenths of m/s (Marion & Urban 1995, Table 3-2,
     # as quoted in the pvlib read_tmy2 docstring)
     scale = {"temp_air": 0.1, "wind_speed": 0.1}
-    return raw, names, labels, lines, _fixed_zone(float(meta["TZ"])), site, _TMY2_MISSING, scale
+    return raw, names, labels, lines, _header_zone(file, meta["TZ"]), site, _TMY2_MISSING, scale

@@ -18,7 +18,7 @@ from .common import (
     DATA_COLUMNS,
     DEFAULT_MISSING_VALUES,
     WeatherImportError,
-    _fixed_zone,
+    _header_zone,
     _parse_timestamps,
 )
 
@@ -51,4 +51,4 @@ def _read_tmy3(path: Path):
              "temp_air": "Dry-bulb (C)", "wind_speed": "Wspd (m/s)"}
     raw = pd.DataFrame({q: table[q].to_numpy() for q in names if q in table.columns})
     site = (float(meta["latitude"]), float(meta["longitude"]), float(meta["altitude"]))
-    return raw, names, labels, lines, _fixed_zone(float(meta["TZ"])), site, _TMY3_MISSING, None
+    return raw, names, labels, lines, _header_zone(file, meta["TZ"]), site, _TMY3_MISSING, None

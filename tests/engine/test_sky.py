@@ -423,7 +423,7 @@ def test_clear_sky_ghi_never_exceeds_extraterrestrial_horizontal(site):
     # the models are given the refracted (apparent) zenith, so their bound is
     # G_on cos(apparent zenith)
     bound = extraterrestrial_on_plane(e0, app_zen, app_zen)
-    for model in CLEARSKY_MODELS:
+    for model in _models_for(site):
         cs = clear_sky(t, pos, site, model, e0)
         # energy conservation: GHI <= G_on cos(z) (Duffie & Beckman 2013,
         # eq. 1.10.1); tolerance 1e-9 W/m2
@@ -432,7 +432,15 @@ def test_clear_sky_ghi_never_exceeds_extraterrestrial_horizontal(site):
         assert cs.data["ghi"].max() > 500.0
 
 
-def test_ineichen_is_capped_where_its_altitude_terms_overshoot():
+def _models_for(site):
+    """The clear-sky models used at ``site`` (Ineichen-Perez only up to its altitude range)."""
+    from tiltyard.engine.sky import INEICHEN_MAX_ELEVATION_M
+
+    return [m for m in CLEARSKY_MODELS
+            if m != "ineichen" or site.elevation_m <= INEICHEN_MAX_ELEVATION_M]
+
+
+def test_ineichen_is_refused_where_its_altitude_terms_overshoot():
     site = INVARIANT_SITES[-1]
     t = _hourly_year()
     pos = solar_position(t, site)
@@ -448,11 +456,13 @@ def test_ineichen_is_capped_where_its_altitude_terms_overshoot():
     # pvlib issue #285: Ineichen-Perez exceeds the extraterrestrial irradiance
     # at high altitude; at 5200 m by several per cent at high sun
     assert np.nanmax(np.asarray(raw["ghi"]) / np.where(bound > 100, bound, np.nan)) > 1.03
-    cs = clear_sky(t, pos, site, "ineichen", e0)
-    assert "capped" in cs.note
-    d = cs.data
-    cos_z = np.maximum(np.cos(np.radians(pos["apparent_zenith"].to_numpy())), 0.0)
-    # closure kept after the cap: ghi = dni cos z + dhi; tolerance 1e-6 W/m2
+    with pytest.raises(ValueError, match="elevation_m = 5200 m.*simplified_solis"):
+        clear_sky(t, pos, site, "ineichen", e0)
+    top = INVARIANT_SITES[1]                      # 4000 m: the highest Ineichen serves
+    d = clear_sky(t, solar_position(t, top), top, "ineichen", e0).data
+    cos_z = np.maximum(np.cos(np.radians(solar_position(t, top)["apparent_zenith"]
+                                         .to_numpy())), 0.0)
+    # closure kept (capped or not): ghi = dni cos z + dhi; tolerance 1e-6 W/m2
     np.testing.assert_allclose(d["ghi"], d["dni"] * cos_z + d["dhi"], rtol=0, atol=1e-6)
     low = Site("low", 45.0, 7.0)
     assert "capped" not in clear_sky(t, solar_position(t, low), low, "ineichen").note
@@ -468,7 +478,7 @@ def test_ineichen_is_capped_where_its_altitude_terms_overshoot():
     ids=lambda v: v.name if isinstance(v, Site) else str(v),
 )
 def test_year_job_ghi_stays_below_extraterrestrial_horizontal(site, hourly_tol_w_m2):
-    for model in CLEARSKY_MODELS:
+    for model in _models_for(site):
         res = irradiance_year(site, 0.0, 180.0, IrradianceOptions(clearsky_model=model,
                                                                   model="isotropic"))
         s = res.series
