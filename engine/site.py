@@ -25,6 +25,7 @@ from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 
 from . import site_limits as _limits
 from .atomic_files import write_bytes_atomically, write_files_atomically  # noqa: F401 (re-export)
+from .monthly import first_dark_daylight_month
 
 FORMAT_NAME = "tiltyard-site"
 #: Version 2 added a plane's ``mounting`` and the ``assessment`` section (sky basis,
@@ -301,8 +302,6 @@ class Site:
             object.__setattr__(self, "monthly_ghi_kwh_m2_day",
                                _twelve("monthly_ghi_kwh_m2_day", self.monthly_ghi_kwh_m2_day,
                                        0, 12, "kWh/m2/day"))
-            from .monthly import first_dark_daylight_month
-
             i = first_dark_daylight_month(self.latitude_deg, self.monthly_ghi_kwh_m2_day)
             if i is not None:     # decided once, here, for every sky basis and command
                 raise SiteError(f"monthly_ghi_kwh_m2_day[{i}]", self.monthly_ghi_kwh_m2_day[i],
