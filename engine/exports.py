@@ -377,8 +377,8 @@ class SheetFigures:
     recommended : dict
         The recommended option's row of the JSON document.
     gains_over_planes : tuple of (str, float or None)
-        The recommended option's annual gain over each existing site plane,
-        percent (from the JSON document's annual values).
+        The recommended option's gain over each existing site plane on the
+        study's objective, percent (from the JSON document's objective values).
     horizon_loss : tiltyard.engine.horizon_loss.PlaneHorizonLoss
         The site horizon's cost to the recommended schedule.
     options : pandas.DataFrame
@@ -570,7 +570,9 @@ def sheet_figures(study: TiltStudy, sky: SkyYear | None = None, result=None) -> 
     doc = study_document(study, result)
     d = doc["study"]
     rec = next(r for r in d["options"] if r["label"] == d["recommended"])
-    planes = tuple((r["label"], _gain(rec["annual_kwh_m2"], r["annual_kwh_m2"]))
+    # on the study's objective, as every other gain (the annual total when that is it)
+    planes = tuple((r["label"], _gain(rec["objective_value_kwh_m2"],
+                                      r["objective_value_kwh_m2"]))
                    for r in d["options"] if r["kind"] == "plane")
     loss = option_horizon_loss(sky, site, study.recommended)
     irr = opts.irradiance

@@ -257,18 +257,22 @@ def _tiles(ctx: _Ctx) -> list[tuple[str, str, str]]:
         tiles.append((f"{kwh(f.clear_sky_bound_kwh_m2)} kWh/m²",
                       "under a clear sky every day: the upper bound, not an expected value",
                       "key.clear_bound"))
-    tiles.append((f"{pct(rec['gain_vs_horizontal_pct'])} %", "over a horizontal plane",
+    opts = ctx.study.options_used
+    # gains and shares are on the study's objective: say so when it is not the year
+    on = ("" if opts.objective == "annual"
+          else f", in {objective_words(opts.objective, opts.months)}")
+    tiles.append((f"{pct(rec['gain_vs_horizontal_pct'])} %", f"over a horizontal plane{on}",
                   "key.gain_horizontal"))
     if not flush:
         for i, (label, g) in enumerate(f.gains_over_planes):
-            tiles.append((f"{pct(g)} %", f"over the existing plane “{label}”",
+            tiles.append((f"{pct(g)} %", f"over the existing plane “{label}”{on}",
                           f"key.gain_plane.{i}"))
     fixed = ctx.study.option("fixed-optimal")
     fp = fixed.schedule[0]
     if flush:
         tiles.append((f"{pct(rec['share_of_best_plane_pct'], signed=False)} %",
                       f"of the best plane for the site ({fp.tilt_deg:g}° facing "
-                      f"{fp.azimuth_deg:g}°)", "key.share_best"))
+                      f"{fp.azimuth_deg:g}°){on}", "key.share_best"))
     elif ctx.rec is fixed:
         two = next((r for r in d["options"] if r["kind"] == "two-season"), None)
         cap = (f"over the fixed optimum: this is the fixed optimum; a two-season schedule "
@@ -287,7 +291,6 @@ def _tiles(ctx: _Ctx) -> list[tuple[str, str, str]]:
         cap = (f"gained below the horizontal: {kwh(-loss.loss_kwh_m2)} kWh/m² a year (open "
                f"horizon: {kwh(loss.open_kwh_m2)})")
     tiles.append((f"{pct(loss.loss_pct, signed=False)} %", cap, "key.horizon_loss"))
-    opts = ctx.study.options_used
     if opts.objective != "annual":
         tiles.append((f"{kwh(rec['objective_value_kwh_m2'])} kWh/m²",
                       f"objective value: {objective_words(opts.objective, opts.months)}", "key.objective"))
