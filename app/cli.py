@@ -382,8 +382,9 @@ def _assessment(args, study: bool = True):
         raise UserError(_in_option_words(str(err))) from None
 
 
-def _assess(a):
-    """assess(a) with every bad-input failure as one line for the user."""
+def _assess(a, site_arg: str):
+    """assess(a) with every bad-input failure as one line for the user, naming the site
+    file (or demo) when the site is at fault, the weather file when the file is."""
     from tiltyard.engine.allsky import WeatherOptionError
     from tiltyard.engine.assess import AssessmentError, assess
     from tiltyard.engine.weather import WeatherImportError
@@ -401,9 +402,10 @@ def _assess(a):
             hint = " (options --columns, --time-label, --time-zone)"
         raise UserError(f"{where}: {err}{hint}") from None
     except (AssessmentError, OSError) as err:
-        raise UserError(str(err)) from None
-    except ValueError as err:
-        raise UserError(str(err)) from None
+        about_site = a.sky == "monthly" and a.site.monthly_ghi_kwh_m2_day is None
+        raise UserError(f"{site_arg}: {err}" if about_site else str(err)) from None
+    except ValueError as err:        # the site's own values (its elevation, its monthly GHI)
+        raise UserError(f"{site_arg}: {err}") from None
 
 
 def _weather_report(result) -> None:
@@ -431,7 +433,7 @@ def cmd_study(args) -> int:
     from tiltyard.engine.exports import study_json_text
     from tiltyard.engine.jobs import CAUTION
 
-    result = _assess(_assessment(args))
+    result = _assess(_assessment(args), args.site)
     try:
         st = result.study()
     except ValueError as err:
@@ -629,7 +631,7 @@ def cmd_irradiance(args) -> int:
         a = replace(a, **changes)
     except ValueError as err:
         raise UserError(_in_option_words(str(err))) from None
-    result = _assess(a)
+    result = _assess(a, args.site)
     try:
         res = result.irradiance(args.tilt, args.azimuth)
     except ValueError as err:
@@ -805,7 +807,7 @@ def cmd_sheet(args) -> int:
         preparer=args.preparer if args.preparer is not None else prefs.preparer,
         organisation=args.organisation if args.organisation is not None else prefs.organisation,
         prepared=args.prepared or datetime.date.today(), time_basis=basis)
-    assessed = _assess(assessment)
+    assessed = _assess(assessment, args.site)
     site = assessed.site
     try:
         with _signals_as_exceptions.deferred():

@@ -22,8 +22,35 @@ _EPW_MISSING = {"ghi": ((), 9999.0), "dni": ((), 9999.0), "dhi": ((), 9999.0),
                 "temp_air": ((99.9,), None), "wind_speed": ((), 999.0)}
 
 
+def _check_dates(path: Path, file: str) -> None:
+    """Refuse a data record with an impossible date or hour, naming its line, before the
+    file is parsed (the parser would only say that a date did not convert).
+
+    EPW data dictionary (EnergyPlus Auxiliary Programs): fields 1-4 are year, month,
+    day and hour 1..24 of each record, after 8 header records.
+    """
+    try:
+        raw = pd.read_csv(path, header=None, skiprows=8, usecols=range(4), dtype=str,
+                          skip_blank_lines=False, encoding="utf-8", encoding_errors="replace")
+    except (ValueError, pd.errors.ParserError, OSError):
+        return                                  # the parser's own message says what is wrong
+    lines = 9 + np.arange(len(raw))
+    fields = {name: _to_numeric(raw[i], lines, file, name)
+              for i, name in enumerate(("year", "month", "day", "hour"))}
+    dates = pd.to_datetime(pd.DataFrame({k: fields[k] for k in ("year", "month", "day")}),
+                           errors="coerce")
+    bad = dates.isna().to_numpy() | ~np.isin(fields["hour"], np.arange(1, 25))
+    if bad.any():
+        i = int(np.flatnonzero(bad)[0])
+        raise WeatherImportError(
+            file, int(lines[i]),
+            f"invalid date/hour {fields['year'][i]:g}-{fields['month'][i]:g}-"
+            f"{fields['day'][i]:g} hour {fields['hour'][i]:g} (a real date, hour 1..24)")
+
+
 def _read_epw(path: Path):
     file = path.name
+    _check_dates(path, file)
     try:
         table, meta = pvlib.iotools.read_epw(path)
     except Exception as exc:
@@ -41,16 +68,7 @@ def _read_epw(path: Path):
     fields = {}
     for name in ("year", "month", "day", "hour", "minute"):
         fields[name] = _to_numeric(table[name].reset_index(drop=True), lines, file, name)
-    dates = pd.to_datetime(pd.DataFrame({k: fields[k] for k in ("year", "month", "day")}),
-                           errors="coerce")
-    bad = dates.isna().to_numpy() | ~np.isin(fields["hour"], np.arange(1, 25))
-    if bad.any():
-        i = int(np.flatnonzero(bad)[0])
-        raise WeatherImportError(
-            file, int(lines[i]),
-            f"invalid date/hour {int(fields['year'][i])}-{int(fields['month'][i])}-"
-            f"{int(fields['day'][i])} hour {fields['hour'][i]:g} (hour must be 1..24)",
-        )
+    dates = pd.to_datetime(pd.DataFrame({k: fields[k] for k in ("year", "month", "day")}))
     # EPW: "Hour 1 is 00:01 to 01:00" - the hour field labels the END of the hour.
     if records_per_hour > 1:
         offset = pd.to_timedelta(fields["hour"] - 1, unit="h") + pd.to_timedelta(

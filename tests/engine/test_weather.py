@@ -555,3 +555,16 @@ def test_labelling_and_zone_must_be_explicit(tmp_path):
         read_weather_csv(path, cols, timestamp_label="start", timezone=None)
     with pytest.raises(ValueError, match="IANA"):
         read_weather_csv(path, cols, timestamp_label="start", timezone="Mars/Olympus")
+
+
+def test_an_epw_date_error_gives_its_line(tmp_path, tmy3):
+    data, meta = tmy3
+    path = write_epw(tmp_path / "bad-date.epw", data, meta)
+    lines = path.read_text().splitlines()
+    fields = lines[8 + 99].split(",")          # the 100th data row: line 108 of the file
+    fields[1] = "13"                           # month 13
+    lines[8 + 99] = ",".join(fields)
+    path.write_text("\n".join(lines) + "\n")
+    with pytest.raises(WeatherImportError) as err:
+        read_weather_file(path)
+    assert err.value.line == 108 and "bad-date.epw" in str(err.value)

@@ -221,7 +221,8 @@ def test_more_obstacles_than_the_limit_are_refused(tmp_path, capsys):
 def test_ineichen_is_refused_above_its_altitude_range(tmp_path, capsys):
     path = tmp_path / "summit.json"
     path.write_text(_site_text(elevation_m=8848))
-    _refused(capsys, "study", path, names=("elevation_m", "4000", "simplified_solis"))
+    _refused(capsys, "study", path, names=("summit.json", "elevation_m", "4000",
+                                           "simplified_solis"))
     _refused(capsys, "irradiance", path, "--tilt", "30", "--azimuth", "180", "--sky", "clear",
              names=("elevation_m",))
     assert main(["irradiance", str(path), "--tilt", "30", "--azimuth", "180", "--sky", "clear",
@@ -325,7 +326,7 @@ def test_messages_name_the_option_not_the_field(capsys, argv, option):
 
 def test_sky_monthly_without_values_names_the_site(capsys):
     _refused(capsys, "irradiance", "kelpie-creek-shed", "--tilt", "30", "--azimuth", "0",
-             "--sky", "monthly", names=("monthly",))
+             "--sky", "monthly", names=("kelpie-creek-shed", "monthly"))
 
 
 def test_no_library_warning_reaches_stderr(tmp_path, capsys):
