@@ -282,6 +282,10 @@ def _sky_changes(args, a) -> dict:
         if args.accept_weather_warnings and a.weather is not None:
             changes["weather"] = replace(a.weather, accept_warnings=True)
         return changes
+    if not os.path.isfile(sky):
+        what = "is a folder" if os.path.isdir(sky) else "no such file"
+        raise UserError(f"--sky {sky}: {what}; give auto, clear, monthly or the path of a "
+                        "weather file")
     cols = _parse_columns(args.columns) if args.columns is not None else {}
     try:
         changes["weather"] = WeatherSource(os.path.abspath(sky), tuple(cols.items()),

@@ -147,3 +147,44 @@ def test_mutated_study_arguments(capsys, pairs):
 def test_a_negative_value_never_reads_as_an_option(capsys, value):
     rc, out, err = _run(capsys, ["study", "larkmoor-dairy", "--tilt-range", value])
     assert "expected one argument" not in err
+
+
+TMY3_LINES = (Path(__import__("pvlib").__file__).parent / "data" / "723170TYA.CSV").read_text(
+    encoding="utf-8").splitlines()
+
+
+@given(keep=st.integers(0, 400), row=st.integers(0, 399), field=st.integers(0, 70),
+       junk=st.sampled_from(["", "abc", "-9999", "1e400", "nan", "13/45/1988", "25:00",
+                             "\ufeff", ",,,", "99999999"]))
+def test_mutated_tmy3_files(tmp_path, capsys, keep, row, field, junk):
+    """A typical-year file cut short and with one field garbled (pvlib's TMY3 sample)."""
+    lines = list(TMY3_LINES[:keep])
+    if 2 <= row < len(lines):
+        cells = lines[row].split(",")
+        cells[min(field, len(cells) - 1)] = junk
+        lines[row] = ",".join(cells)
+    path = tmp_path / "station.csv"
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    before = path.read_bytes()
+    rc, out, err = _run(capsys, ["irradiance", "larkmoor-dairy", "--tilt", "30", "--azimuth",
+                                 "180", "--sky", path, "--accept-weather-warnings", "--json"])
+    _check(rc, out, err, [path.name])
+    assert path.read_bytes() == before
+
+
+IRRADIANCE_OPTIONS = ["--tilt", "--azimuth", "--model", "--clearsky", "--solar-constant",
+                      "--year", "--step", "--sky"]
+
+
+@given(pairs=st.lists(st.tuples(st.sampled_from(IRRADIANCE_OPTIONS), VALUES), min_size=1,
+                      max_size=3))
+def test_mutated_irradiance_arguments(capsys, pairs):
+    argv = ["irradiance", "kelpie-creek-shed", "--json"]
+    given_options = {o for o, _ in pairs}
+    for option, default in (("--tilt", "30"), ("--azimuth", "0")):
+        if option not in given_options:
+            argv += [option, default]
+    for option, value in pairs:
+        argv += [option, value]
+    rc, out, err = _run(capsys, argv)
+    _check(rc, out, err, [o for o, _ in pairs] + ["tiltyard irradiance", "kelpie-creek-shed"])
