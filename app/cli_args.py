@@ -52,10 +52,9 @@ def _sun_date(text: str) -> _dt.date:
 
 
 def build_parser() -> argparse.ArgumentParser:
-    from tiltyard.engine.plane import TRANSPOSITION_MODELS
-    from tiltyard.engine.sky import CLEARSKY_MODELS, SOLAR_CONSTANT_W_M2
+    from tiltyard.engine.sky import SOLAR_CONSTANT_W_M2
     from tiltyard.engine.tilt import OPTION_KINDS
-    from tiltyard.engine.timegrid import REFERENCE_YEAR, STEPS_MIN, TIME_BASES
+    from tiltyard.engine.timegrid import TIME_BASES
 
     p = _Parser(prog="tiltyard",
                 usage="tiltyard [SITE]                 open the desktop app\n"
@@ -91,18 +90,9 @@ def build_parser() -> argparse.ArgumentParser:
     s.add_argument("--azimuth", type=float, required=True, metavar="DEG",
                    help="plane azimuth clockwise from north, 0-360 (south = 180)")
     _add_sky_options(s)
-    s.add_argument("--model", choices=TRANSPOSITION_MODELS, default=None,
-                   help="sky diffuse model (default perez)")
-    s.add_argument("--clearsky", choices=CLEARSKY_MODELS, default=None,
-                   help="clear-sky model (default ineichen)")
+    _add_model_options(s)
     s.add_argument("--solar-constant", type=float, default=None, metavar="W_M2",
                    help=f"solar constant in W/m2 (default {SOLAR_CONSTANT_W_M2:g})")
-    s.add_argument("--year", type=int, default=None,
-                   help=f"year (default {REFERENCE_YEAR}, a non-leap reference year)")
-    s.add_argument("--step", type=int, default=None, choices=STEPS_MIN, metavar="MIN",
-                   help="interval of a clear or monthly sky in minutes: "
-                        + ", ".join(map(str, STEPS_MIN))
-                        + " (default 60; a weather file keeps its own interval)")
     s.add_argument("--json", action="store_true", help="write one JSON document to stdout")
 
     s = sub.add_parser("study", help="compare fixed, seasonal and monthly tilts (the tilt study)",
@@ -174,15 +164,9 @@ def build_parser() -> argparse.ArgumentParser:
 def _add_study_options(s) -> None:
     """The tilt study's flags (study and sheet take the same ones). Flags left out keep the
     site file's saved settings (its ``assessment`` section), else the defaults."""
-    from tiltyard.engine.plane import TRANSPOSITION_MODELS
     from tiltyard.engine.site import MOUNTINGS
-    from tiltyard.engine.sky import CLEARSKY_MODELS
-    from tiltyard.engine.timegrid import REFERENCE_YEAR, STEPS_MIN
 
-    s.add_argument("--model", choices=TRANSPOSITION_MODELS, default=None,
-                   help="sky diffuse model (default perez)")
-    s.add_argument("--clearsky", choices=CLEARSKY_MODELS, default=None,
-                   help="clear-sky model (default ineichen, up to 4000 m elevation)")
+    _add_model_options(s)
     s.add_argument("--objective", default=None, metavar="OBJ",
                    help="annual (default), worst-month, or months=11,12,1")
     s.add_argument("--mounting", choices=MOUNTINGS, default=None,
@@ -212,6 +196,18 @@ def _add_study_options(s) -> None:
                    help="design day for row spacing (default: winter solstice), noon +/- 3 h")
     s.add_argument("--loss", type=float, default=None, metavar="FRACTION",
                    help="system loss fraction for the indicative specific yield (default 0.14)")
+
+
+def _add_model_options(s) -> None:
+    """The sky's models, year and interval (irradiance, study and sheet take the same)."""
+    from tiltyard.engine.plane import TRANSPOSITION_MODELS
+    from tiltyard.engine.sky import CLEARSKY_MODELS
+    from tiltyard.engine.timegrid import REFERENCE_YEAR, STEPS_MIN
+
+    s.add_argument("--model", choices=TRANSPOSITION_MODELS, default=None,
+                   help="sky diffuse model (default perez)")
+    s.add_argument("--clearsky", choices=CLEARSKY_MODELS, default=None,
+                   help="clear-sky model (default ineichen, up to 4000 m elevation)")
     s.add_argument("--year", type=int, default=None,
                    help=f"year (default {REFERENCE_YEAR}, a non-leap reference year)")
     s.add_argument("--step", type=int, default=None, choices=STEPS_MIN, metavar="MIN",
@@ -342,11 +338,19 @@ def _study_changes(args, a) -> dict:
     if args.mounting is not None or args.max_positions is not None:
         changes["mounting"] = Mounting(args.mounting or a.mounting.kind,
                                        args.max_positions or a.mounting.max_positions)
-    for flag, key in (("model", "model"), ("year", "year"), ("step", "interval_min"),
-                      ("clearsky", "clearsky_model")):
-        if getattr(args, flag, None) is not None:
-            changes[key] = getattr(args, flag)
     return changes
+
+
+#: The flags that set an assessment's sky models, year and interval directly.
+_MODEL_FLAGS = (("model", "model"), ("clearsky", "clearsky_model"),
+                ("solar_constant", "solar_constant_w_m2"), ("year", "year"),
+                ("step", "interval_min"))
+
+
+def _model_changes(args) -> dict:
+    """Assessment changes from the model flags a subcommand takes and the user gave."""
+    return {key: getattr(args, flag) for flag, key in _MODEL_FLAGS
+            if getattr(args, flag, None) is not None}
 
 
 #: The command-line option that sets each engine setting, for messages in the user's words.
@@ -374,6 +378,7 @@ def _assessment(args, study: bool = True):
     a = resolve_assessment(args.site)
     try:
         changes = _sky_changes(args, a)
+        changes.update(_model_changes(args))
         if study:
             changes.update(_study_changes(args, replace(a, **changes)))
         return replace(a, **changes)

@@ -6,7 +6,6 @@ from __future__ import annotations
 import json
 import os
 import sys
-from dataclasses import replace
 from pathlib import Path
 
 from tiltyard.engine.words import MONTH_ABBR, model_name, mounting_words, schedule_words
@@ -16,7 +15,6 @@ from .cli_args import (
     UserError,
     _assess,
     _assessment,
-    _in_option_words,
     _one_line,
     _signals_as_exceptions,
 )
@@ -237,14 +235,6 @@ def cmd_irradiance(args) -> int:
         raise UserError(f"--azimuth = {args.azimuth:g}: must be between 0 and 360 deg "
                         "(clockwise from north)")
     a = _assessment(args, study=False)
-    changes = {key: getattr(args, flag) for flag, key in (
-        ("model", "model"), ("clearsky", "clearsky_model"),
-        ("solar_constant", "solar_constant_w_m2"), ("year", "year"), ("step", "interval_min"))
-        if getattr(args, flag) is not None}
-    try:
-        a = replace(a, **changes)
-    except ValueError as err:
-        raise UserError(_in_option_words(str(err))) from None
     result = _assess(a, args.site)
     try:
         res = result.irradiance(args.tilt, args.azimuth)
