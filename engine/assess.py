@@ -126,8 +126,13 @@ def choose_basis(a: Assessment) -> Basis:
 
 # -- the weather file -----------------------------------------------------------------------------
 
-def load_weather(a: Assessment) -> WeatherData:
+def load_weather(a: Assessment) -> tuple[WeatherData, str]:
     """Read the assessment's weather file for its site, after checking it is the one chosen.
+
+    Returns
+    -------
+    tuple of (WeatherData, str)
+        The series and the SHA-256 (hex) of the file's bytes as read (hashed once).
 
     Raises
     ------
@@ -143,12 +148,14 @@ def load_weather(a: Assessment) -> WeatherData:
     if not path.is_file():
         raise AssessmentError(f"weather file {src.name}: not found at {path}; it was chosen for "
                               "this site: put it back, or choose another file or sky basis")
-    if src.sha256 and file_sha256(path) != src.sha256:
+    sha = file_sha256(path)
+    if src.sha256 and sha != src.sha256:
         raise AssessmentError(f"weather file {src.name}: has changed since it was chosen for "
                               "this site (its SHA-256 differs); choose it again to use the new "
                               "contents")
-    return load_weather_for_site(path, a.site, columns=src.column_map,
-                                 timestamp_label=src.timestamp_label, timezone=src.timezone)
+    weather = load_weather_for_site(path, a.site, columns=src.column_map,
+                                    timestamp_label=src.timestamp_label, timezone=src.timezone)
+    return weather, sha
 
 
 def distance_km(lat1_deg, lon1_deg, lat2_deg, lon2_deg) -> float:
@@ -260,7 +267,7 @@ def assess(assessment: Assessment, progress: Callable[[float, str], None] | None
     report = _reporter(progress, cancel)
     report(0.0, "sky basis")
     basis = choose_basis(assessment)
-    weather = load_weather(assessment) if basis.kind == "file" else None
+    weather, sha = load_weather(assessment) if basis.kind == "file" else (None, None)
     irr = irradiance_options(assessment, basis, weather)
     report(0.05, "sun and sky for the year")
     sky = sky_year(assessment.site, irr)
@@ -271,7 +278,6 @@ def assess(assessment: Assessment, progress: Callable[[float, str], None] | None
                               "(in the app: confirm when asked; in a script: "
                               "WeatherSource(..., accept_warnings=True)).")
     report(1.0, "sky ready")
-    sha = file_sha256(assessment.weather.path) if weather is not None else None
     return AssessmentResult(assessment, basis, irr, sky, weather, warnings, sha)
 
 
