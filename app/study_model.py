@@ -101,9 +101,7 @@ class StudyTableModel(QStandardItemModel):
             g_h = study.gain_pct(opt, "horizontal")
             g_f = study.gain_pct(opt, "fixed-optimal")
             share = study.share_pct(opt, "two-axis")
-            label = option_name(opt)      # the engine's full label is in the tooltip
-            if opt.kind == "fixed-optimal" and study.mounting == "flush":
-                label = "Best plane"      # a reference for the roof as it is
+            label = option_name(opt, study.mounting)   # the full label is in the tooltip
             if opt is rec:
                 label = "★ " + label
             adjust = ("continuous" if opt.kind == "two-axis"

@@ -306,8 +306,11 @@ def objective_words(objective: str, months: Sequence[int] = ()) -> str:
     return _lookup(OBJECTIVE_WORDS, objective, "objective")
 
 
-def option_name(option) -> str:
-    """Short name of a study option by its kind (a site plane keeps its own label)."""
+def option_name(option, mounting: str | None = None) -> str:
+    """Short name of a study option by its kind (a site plane keeps its own label); under a
+    ``flush`` mounting the fixed optimum is the best plane for the site, a reference."""
+    if option.kind == "fixed-optimal" and mounting == "flush":
+        return "Best plane"
     return OPTION_NAMES.get(option.kind, option.label)
 
 

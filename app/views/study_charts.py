@@ -305,9 +305,7 @@ class StudyChartDrawing:
         labels = []
         fm = QFontMetrics(theme.plot_font(9))
         for row, opt in enumerate(study.options):
-            name = ("▶ " if opt is rec else "") + (
-                "Best plane" if opt.kind == "fixed-optimal" and study.mounting == "flush"
-                else option_name(opt))
+            name = ("▶ " if opt is rec else "") + option_name(opt, study.mounting)
             ticks.append((row, fm.elidedText(name, Qt.TextElideMode.ElideRight, 112)))
             x0s, widths, brushes, texts = [], [], [], []
             for p in opt.schedule:
