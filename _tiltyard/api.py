@@ -56,7 +56,6 @@ Qt. Worked examples: ``docs/scripting.md``.
 
 from __future__ import annotations
 
-from tiltyard.engine.allsky import WeatherOptionError, load_weather_for_site
 from tiltyard.engine.assess import (
     AssessmentError,
     AssessmentResult,
@@ -78,20 +77,11 @@ from tiltyard.engine.assessment import (
 )
 from tiltyard.engine.cautions import CAUTION
 from tiltyard.engine.daycurves import DayCurves
+from tiltyard.engine.demo_sites import demo_site_names, load_demo
 from tiltyard.engine.horizon_loss import HorizonLoss
 from tiltyard.engine.jobs import IrradianceResult, SunDay, sun_day
-from tiltyard.engine.site import (
-    MOUNTINGS,
-    HorizonProfile,
-    Obstacle,
-    Plane,
-    Site,
-    SiteError,
-    demo_site_names,
-    load_demo,
-    load_site,
-    save_site,
-)
+from tiltyard.engine.site import MOUNTINGS, HorizonProfile, Obstacle, Plane, Site, SiteError
+from tiltyard.engine.site_file import load_site, save_site
 from tiltyard.engine.skyyear import SkyYear
 from tiltyard.engine.tilt import Period, StudyOption, TiltStudy
 from tiltyard.engine.weather import (
@@ -101,6 +91,7 @@ from tiltyard.engine.weather import (
     read_weather_csv,
     read_weather_file,
 )
+from tiltyard.engine.weather_site import WeatherOptionError, load_weather_for_site
 
 __all__ = [
     # the site

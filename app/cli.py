@@ -104,7 +104,8 @@ def _negative_values_joined(parser, argv: list[str]) -> list[str]:
 def _open_app(site_arg: str | None) -> int:
     """``tiltyard [SITE]``: open the desktop app (on SITE if given)."""
 
-    from tiltyard.engine.site import SiteError, resolve_site
+    from tiltyard.engine.demo_sites import resolve_site
+    from tiltyard.engine.site import SiteError
 
     if site_arg is not None:
         try:

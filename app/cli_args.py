@@ -389,9 +389,9 @@ def _assessment(args, study: bool = True):
 def _assess(a, site_arg: str):
     """assess(a) with every bad-input failure as one line for the user, naming the site
     file (or demo) when the site is at fault, the weather file when the file is."""
-    from tiltyard.engine.allsky import WeatherOptionError
     from tiltyard.engine.assess import AssessmentError, assess
     from tiltyard.engine.weather import WeatherImportError
+    from tiltyard.engine.weather_site import WeatherOptionError
 
     where = f"--sky {a.weather.path}" if a.weather is not None else "--sky"
     try:

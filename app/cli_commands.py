@@ -165,7 +165,7 @@ def _print_yield_and_method(yld, mm) -> None:
 
 
 def _load_site(arg: str):
-    from tiltyard.engine.site import resolve_site
+    from tiltyard.engine.demo_sites import resolve_site
     return resolve_site(arg)
 
 
@@ -174,7 +174,7 @@ def _fmt_time(ts) -> str:
 
 
 def cmd_sites(args) -> int:
-    from tiltyard.engine.site import demo_site_names, load_demo
+    from tiltyard.engine.demo_sites import demo_site_names, load_demo
 
     rows = []
     for name in demo_site_names():
@@ -244,7 +244,7 @@ def cmd_irradiance(args) -> int:
     doc = {"assessment": result.header(), "irradiance": res.to_json_dict()}
     if args.json:
         if result.weather is not None:
-            from tiltyard.engine.allsky import weather_json_dict
+            from tiltyard.engine.weather_site import weather_json_dict
 
             doc["weather"] = weather_json_dict(result.weather)
         print(json.dumps(doc, indent=2, ensure_ascii=False))
@@ -351,6 +351,7 @@ def _sheet_preferences():
 def cmd_sheet(args) -> int:
     import datetime
 
+    from tiltyard.engine.atomic_files import write_files_atomically
     from tiltyard.engine.exports import (
         check_option_kinds,
         hourly_csv_text,
@@ -359,7 +360,6 @@ def cmd_sheet(args) -> int:
         select_options,
         study_json_text,
     )
-    from tiltyard.engine.site import write_files_atomically
 
     wanted = [("-o", args.output), ("--csv-monthly", args.csv_monthly),
               ("--csv-options", args.csv_options), ("--csv-hourly", args.csv_hourly),

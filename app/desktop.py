@@ -8,7 +8,7 @@ import sys
 import threading
 
 from tiltyard.engine.assessment import demo_assessment, load_assessment
-from tiltyard.engine.site import DEFAULT_DEMO, demo_site_names
+from tiltyard.engine.demo_sites import DEFAULT_DEMO, demo_site_names
 
 #: Set to a delay in ms to open the window, report it ready and quit (smoke tests, benchmarks).
 SMOKE_ENV = "TILTYARD_SMOKE_QUIT_MS"

@@ -26,7 +26,8 @@ from tiltyard.engine.assessment import (
     load_assessment,
     save_assessment,
 )
-from tiltyard.engine.site import DEFAULT_DEMO, Site, SiteError
+from tiltyard.engine.demo_sites import DEFAULT_DEMO
+from tiltyard.engine.site import Site, SiteError
 
 AUTOSAVE_NAME = "autosave-site.json"
 

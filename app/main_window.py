@@ -27,7 +27,8 @@ from PySide6.QtWidgets import (
 from tiltyard import __version__
 from tiltyard.engine.assessment import Assessment
 from tiltyard.engine.cautions import CAUTION
-from tiltyard.engine.site import Site, SiteError, demo_site_names
+from tiltyard.engine.demo_sites import demo_site_names
+from tiltyard.engine.site import Site, SiteError
 
 from . import settings
 from .context import AppContext

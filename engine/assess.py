@@ -21,7 +21,6 @@ from pathlib import Path
 
 import numpy as np
 
-from .allsky import load_weather_for_site
 from .assessment import DEFAULT_INTERVAL_MIN, Assessment, assessment_to_dict, file_sha256
 from .cautions import CAUTION
 from .daycurves import compare_options, irradiance_day
@@ -32,6 +31,7 @@ from .skyyear import IrradianceOptions, SkyYear, sky_year
 from .sunchart import sun_chart
 from .tilt import periods_poa, tilt_study
 from .weather import WeatherData, finding_text, summary_text
+from .weather_site import load_weather_for_site
 from .words import basis_words
 
 #: A weather file recorded further than this from the site is refused for the study, km.
@@ -141,7 +141,7 @@ def load_weather(a: Assessment) -> tuple[WeatherData, str]:
         when it was chosen; both name the file.
     tiltyard.engine.weather.WeatherImportError, WeatherOptionError
         The file cannot be read as weather data (see
-        :func:`tiltyard.engine.allsky.load_weather_for_site`).
+        :func:`tiltyard.engine.weather_site.load_weather_for_site`).
     """
     src = a.weather
     path = Path(src.path)
@@ -178,7 +178,7 @@ def weather_fit_warnings(weather: WeatherData, sky: SkyYear) -> tuple:
     file's header more than :data:`WEATHER_DISTANCE_LIMIT_KM` from the site;
     more than :data:`SUN_DOWN_GHI_LIMIT` of its GHI recorded while the sun is
     down at the site (``sky.sun_down_ghi_share``, from
-    :func:`tiltyard.engine.allsky.weather_sky`).
+    :func:`tiltyard.engine.weather_grid.weather_sky`).
 
     Returns
     -------

@@ -23,20 +23,11 @@ from dataclasses import asdict, dataclass, field, fields, is_dataclass, replace
 from importlib import resources
 from pathlib import Path
 
+from .atomic_files import write_bytes_atomically
+from .demo_sites import is_site_path, load_demo
 from .plane import TRANSPOSITION_MODELS
-from .site import (
-    FORMAT_NAME,
-    FORMAT_VERSION,
-    MOUNTINGS,
-    Site,
-    SiteError,
-    is_site_path,
-    load_demo,
-    load_site_document,
-    site_from_dict,
-    site_to_dict,
-    write_bytes_atomically,
-)
+from .site import MOUNTINGS, Site, SiteError
+from .site_file import FORMAT_NAME, FORMAT_VERSION, load_site_document, site_from_dict, site_to_dict
 from .sky import CLEARSKY_MODELS, SOLAR_CONSTANT_W_M2
 from .skyyear import IrradianceOptions
 from .tilt import RowSettings, StudyOptions, StudySettings

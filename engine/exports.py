@@ -29,10 +29,10 @@ from dataclasses import dataclass, fields
 import numpy as np
 import pandas as pd
 
-from .allsky import weather_json_dict
 from .horizon_loss import PlaneHorizonLoss, schedule_horizon_loss
 from .jobs import model_references
-from .site import CLIENT_KEYS, Site, site_to_dict
+from .site import CLIENT_KEYS, Site
+from .site_file import site_to_dict
 from .skyyear import SkyYear, sky_year
 from .sunchart import SunChart, sun_chart
 from .tilt import (
@@ -45,6 +45,7 @@ from .tilt import (
     tilt_study,
 )
 from .timegrid import MIDPOINT_CONVENTION
+from .weather_site import weather_json_dict
 from .words import (
     MONTH_ABBR,
     basis_words,
@@ -74,7 +75,7 @@ def study_document(study: TiltStudy, result=None) -> dict:
 
     ``{"study": study.to_json_dict()}``, plus ``"weather"`` (source, interval,
     labelling and every import finding, see
-    :func:`tiltyard.engine.allsky.weather_json_dict`) when the sky basis is a
+    :func:`tiltyard.engine.weather_site.weather_json_dict`) when the sky basis is a
     weather file; with the assessment ``result`` (an
     :class:`tiltyard.engine.assess.AssessmentResult`), also ``"assessment"``
     (:meth:`~tiltyard.engine.assess.AssessmentResult.header`: the basis used and

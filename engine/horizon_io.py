@@ -21,7 +21,7 @@ below it):
 
 Every problem is reported as a :class:`HorizonFileError` naming the file, the
 line number, the column, the value and what is allowed. Writing is atomic
-(:func:`tiltyard.engine.site.atomic_write_text`).
+(:func:`tiltyard.engine.site_file.atomic_write_text`).
 """
 
 from __future__ import annotations
@@ -32,7 +32,8 @@ import math
 import os
 from pathlib import Path
 
-from .site import HorizonProfile, SiteError, atomic_write_text
+from .site import HorizonProfile, SiteError
+from .site_file import atomic_write_text
 
 #: Column names written to (and recognised in) the header line.
 COLUMNS = ("azimuth_deg", "elevation_deg")

@@ -14,7 +14,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from .allsky import check_weather_step, monthly_sky, weather_sky
+from .allsky import monthly_sky
 from .horizon import sun_visible
 from .plane import TRANSPOSITION_MODELS
 from .site import Site
@@ -22,10 +22,11 @@ from .sky import CLEARSKY_MODELS, SOLAR_CONSTANT_W_M2, clear_sky, extraterrestri
 from .sun import evaluation_points
 from .timegrid import REFERENCE_YEAR, TimeGrid, check_step_min, year_grid
 from .weather import WeatherData
+from .weather_grid import check_weather_step, weather_sky
 
 #: Sky bases: the clear sky; a synthetic year from the site's monthly mean
 #: daily GHI (:func:`tiltyard.engine.allsky.monthly_sky`); a weather series
-#: (:func:`tiltyard.engine.allsky.weather_sky`).
+#: (:func:`tiltyard.engine.weather_grid.weather_sky`).
 SKY_BASES = ("clear", "monthly", "file")
 
 
@@ -178,7 +179,8 @@ def sky_year(site: Site, options: IrradianceOptions | None = None) -> SkyYear:
     Ineichen (2008) or Haurwitz (1945) for the clear sky (see
     :mod:`tiltyard.engine.sky`); Erbs, Klein & Duffie (1982), Solar Energy
     28(4), 293-302, for the beam/diffuse split of the ``monthly`` basis and
-    of GHI-only weather data (see :mod:`tiltyard.engine.allsky`).
+    of GHI-only weather data (see :mod:`tiltyard.engine.allsky` and
+    :mod:`tiltyard.engine.weather_grid`).
     """
     options = options or IrradianceOptions()
     grid = year_grid(site.timezone, options.year, options.step_min)

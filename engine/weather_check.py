@@ -1,18 +1,18 @@
 """Read a weather file for a site and check it can serve as the site's year.
 
 :func:`read_weather_for_site` is what the weather-file dialog runs in a worker
-process: it reads the file (:func:`tiltyard.engine.allsky.load_weather_for_site`),
+process: it reads the file (:func:`tiltyard.engine.weather_site.load_weather_for_site`),
 places it on the site's year (:func:`tiltyard.engine.skyyear.sky_year`) to run
 the checks that come with that, and returns one of the picklable outcomes of
 :mod:`tiltyard.engine.weather.preview` instead of raising for a bad file.
 
 Why a module of its own, beside the package rather than in it: the sky-year
-code sits above the weather package (``skyyear`` imports ``allsky``, which
-imports ``weather``). A module inside the package that imported ``skyyear``
-would make the package depend on its own users, and the package's
+code sits above the weather package (``skyyear`` imports ``weather_grid``,
+which imports ``weather``). A module inside the package that imported
+``skyyear`` would make the package depend on its own users, and the package's
 ``__init__`` could not re-export it without a real import cycle. Here all
 imports are at the top level and run one way: this module -> skyyear ->
-allsky -> weather.
+weather_grid -> weather, and this module -> weather_site -> weather.
 """
 
 from __future__ import annotations
@@ -20,7 +20,6 @@ from __future__ import annotations
 from collections.abc import Callable
 from pathlib import Path
 
-from .allsky import WeatherOptionError, load_weather_for_site
 from .assess import Basis, irradiance_options, weather_fit_warnings
 from .assessment import Assessment, file_sha256
 from .site import Site
@@ -35,8 +34,9 @@ from .weather import (
     guess_columns,
     read_header,
 )
+from .weather_site import WeatherOptionError, load_weather_for_site
 
-#: Text of :func:`~tiltyard.engine.allsky.load_weather_for_site`'s message for a file in
+#: Text of :func:`~tiltyard.engine.weather_site.load_weather_for_site`'s message for a file in
 #: no typical-year format read without a column mapping.
 _NEEDS_MAPPING = "not a TMY3, TMY2 or EPW file"
 
@@ -82,7 +82,7 @@ def read_weather_for_site(path, site: Site, columns: dict | None = None,
         The site whose year the series must serve.
     columns : dict, optional
         Our column names to the file's header names, for a CSV file; see
-        :func:`tiltyard.engine.allsky.load_weather_for_site`.
+        :func:`tiltyard.engine.weather_site.load_weather_for_site`.
     timestamp_label : {'start', 'end', 'centre'}, optional
         What each timestamp of a CSV file marks in its interval.
     timezone : str, optional

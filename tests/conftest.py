@@ -48,7 +48,7 @@ QUARTER_HOUR_COLUMNS = (("timestamp", "time"), ("ghi", "ghi"), ("dni", "dni"), (
 def quarter_hour_weather(tmp_path_factory):
     """``(path, written annual GHI kWh/m2, column mapping)`` of a 15-minute year at
     larkmoor-dairy."""
-    from tiltyard.engine.site import load_demo
+    from tiltyard.engine.demo_sites import load_demo
 
     path = tmp_path_factory.mktemp("weather") / "quarter-hours.csv"
     return (path, write_quarter_hour_weather(path, load_demo("larkmoor-dairy")),

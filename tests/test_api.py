@@ -4,7 +4,7 @@ import subprocess
 import sys
 
 import tiltyard.api as api
-from tiltyard.engine import allsky, assess, assessment, jobs, site, tilt, weather
+from tiltyard.engine import assess, assessment, jobs, site, site_file, tilt, weather, weather_site
 
 # the brief of the scripting API: every name it must offer
 REQUIRED = (
@@ -28,13 +28,13 @@ def test_all_lists_the_required_names_once_and_each_exists():
 
 def test_the_names_are_the_engines_own_objects():
     # the API re-exports; it never wraps or copies (a figure is the same number everywhere)
-    assert api.Site is site.Site and api.load_site is site.load_site
+    assert api.Site is site.Site and api.load_site is site_file.load_site
     assert api.Assessment is assessment.Assessment
     assert api.assess is assess.assess and api.AssessmentResult is assess.AssessmentResult
     assert api.TiltStudy is tilt.TiltStudy and api.Period is tilt.Period
     assert api.sun_day is jobs.sun_day
     assert api.read_weather_file is weather.read_weather_file
-    assert api.load_weather_for_site is allsky.load_weather_for_site
+    assert api.load_weather_for_site is weather_site.load_weather_for_site
     assert issubclass(api.WeatherFitError, api.AssessmentError)
 
 

@@ -37,13 +37,13 @@ from PySide6.QtWidgets import (
 )
 
 from tiltyard.engine.assess import assessment_part
+from tiltyard.engine.atomic_files import write_bytes_atomically
 from tiltyard.engine.exports import (
     document_json_text,
     hourly_csv_text,
     monthly_csv_text,
     options_csv_text,
 )
-from tiltyard.engine.site import write_bytes_atomically
 from tiltyard.engine.words import basis_label, option_name
 
 from ..engine_process import EngineCall

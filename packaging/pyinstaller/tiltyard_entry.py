@@ -32,7 +32,7 @@ def _selfcheck() -> int:
         checks[name] = value
 
     def demo_sites():
-        from tiltyard.engine.site import demo_site_names
+        from tiltyard.engine.demo_sites import demo_site_names
         names = list(demo_site_names())
         if "larkmoor-dairy" not in names:
             raise RuntimeError(f"demo sites found: {names}")

@@ -21,7 +21,7 @@ from tiltyard.app import settings  # noqa: E402
 from tiltyard.app.context import AppContext  # noqa: E402
 from tiltyard.app.document import SiteDocument  # noqa: E402
 from tiltyard.app.tasks import TaskRunner  # noqa: E402
-from tiltyard.engine.site import load_demo  # noqa: E402
+from tiltyard.engine.demo_sites import load_demo  # noqa: E402
 
 ARTEFACTS = os.path.join(os.path.dirname(__file__), "..", "artefacts")
 

@@ -14,7 +14,9 @@ import pytest
 
 from tiltyard.app import engine_process
 from tiltyard.app.engine_process import Cancelled, EngineCall, run_call
-from tiltyard.engine.site import SiteError, load_demo, load_site
+from tiltyard.engine.demo_sites import load_demo
+from tiltyard.engine.site import SiteError
+from tiltyard.engine.site_file import load_site
 from tiltyard.engine.sunchart import sun_chart
 from tiltyard.engine.tilt import StudyOptions, tilt_study
 

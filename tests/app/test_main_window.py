@@ -10,7 +10,8 @@ import pytest
 from tiltyard.app import settings
 from tiltyard.app.desktop import create_window
 from tiltyard.app.document import SiteDocument
-from tiltyard.engine.site import load_demo, load_site, save_site
+from tiltyard.engine.demo_sites import load_demo
+from tiltyard.engine.site_file import load_site, save_site
 
 
 @pytest.fixture

@@ -24,13 +24,14 @@ from tiltyard.app.sheet.layout import ELLIPSIS, Font, Measure, fit_text, inside
 from tiltyard.app.views import sheet_view as sheet_view_module
 from tiltyard.app.views.sheet_view import SheetView
 from tiltyard.engine.assessment import StudySettings
+from tiltyard.engine.demo_sites import load_demo
 from tiltyard.engine.exports import (
     hourly_csv_text,
     monthly_csv_text,
     options_csv_text,
     study_json_text,
 )
-from tiltyard.engine.site import Plane, load_demo
+from tiltyard.engine.site import Plane
 from tiltyard.engine.tilt import StudyOptions, tilt_study
 
 COARSE = StudyOptions(tilt_step_deg=5.0)

@@ -15,8 +15,10 @@ from tiltyard.app.cli import main as cli_main
 from tiltyard.app.sheet import SheetMeta, lay_out
 from tiltyard.engine.assess import assess
 from tiltyard.engine.assessment import demo_assessment, load_assessment, save_assessment
+from tiltyard.engine.demo_sites import load_demo
 from tiltyard.engine.exports import input_digest
-from tiltyard.engine.site import SiteError, load_demo, site_from_dict, site_to_dict
+from tiltyard.engine.site import SiteError
+from tiltyard.engine.site_file import site_from_dict, site_to_dict
 
 META = SheetMeta("Jane Doe", "Example Solar Ltd", dt.date(2025, 5, 12))
 

@@ -20,7 +20,7 @@ from tiltyard.app.sheet.pages import BODY_MIN_PT, FOOTER_PT
 from tiltyard.app.sheet.pdf import page_image
 from tiltyard.engine.assess import assess
 from tiltyard.engine.assessment import demo_assessment
-from tiltyard.engine.site import demo_site_names
+from tiltyard.engine.demo_sites import demo_site_names
 
 META = SheetMeta("Jane Doe", "Example Solar Ltd", dt.date(2025, 5, 12))
 #: Printable area: printers leave up to a quarter inch unprinted on each edge of A4 and

@@ -20,8 +20,8 @@ import numpy as np
 import pvlib
 from timing import median_time
 
+from tiltyard.engine.demo_sites import load_demo
 from tiltyard.engine.manyplane import many_plane_daily, many_plane_terms
-from tiltyard.engine.site import load_demo
 from tiltyard.engine.skyyear import IrradianceOptions, sky_year
 
 REPEAT = 7

@@ -30,8 +30,8 @@ def main():
     app = QApplication.instance() or QApplication([])  # noqa: F841 - fonts need it
 
     from tiltyard.app.sheet import SheetMeta, build_sheet, compute_sheet, pdf_bytes
+    from tiltyard.engine.demo_sites import load_demo
     from tiltyard.engine.exports import sheet_figures
-    from tiltyard.engine.site import load_demo
     from tiltyard.engine.skyyear import sky_year
     from tiltyard.engine.sunchart import sun_chart
     from tiltyard.engine.tilt import StudyOptions, tilt_study

@@ -10,8 +10,8 @@ from __future__ import annotations
 
 from timing import median_time
 
+from tiltyard.engine.demo_sites import load_demo
 from tiltyard.engine.jobs import IrradianceOptions, irradiance_year
-from tiltyard.engine.site import load_demo
 from tiltyard.engine.sky import clear_sky
 from tiltyard.engine.sun import evaluation_points
 from tiltyard.engine.timegrid import year_grid

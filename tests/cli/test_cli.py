@@ -23,7 +23,7 @@ import pvlib
 import pytest
 
 from tiltyard.app.cli import main
-from tiltyard.engine.site import demo_site_names, load_demo
+from tiltyard.engine.demo_sites import demo_site_names, load_demo
 
 DEMOS = demo_site_names()
 MIDSUMMER = "2023-06-21"
@@ -204,7 +204,7 @@ def test_sun_human_readable_has_units(capsys):
 
 
 def test_sun_accepts_a_site_file(tmp_path, capsys):
-    from tiltyard.engine.site import save_site
+    from tiltyard.engine.site_file import save_site
 
     path = tmp_path / "cabin.json"
     save_site(load_demo("tarnvik-cabin"), path)

@@ -1,4 +1,5 @@
-"""Tests for the all-sky bases of the sky year (tiltyard.engine.allsky)."""
+"""Tests for the all-sky bases of the sky year (tiltyard.engine.allsky,
+weather_grid, weather_site)."""
 
 from __future__ import annotations
 
@@ -12,19 +13,18 @@ import pytest
 
 from tiltyard.engine.allsky import (
     MONTHLY_NOTE,
-    WeatherOptionError,
-    column_map,
     erbs_split,
-    load_weather_for_site,
     rescale_monthly_diffuse,
     scale_to_monthly_ghi,
 )
+from tiltyard.engine.demo_sites import load_demo
 from tiltyard.engine.jobs import irradiance_year
 from tiltyard.engine.monthly import klein_monthly_tilted
-from tiltyard.engine.site import HorizonProfile, Site, SiteError, load_demo
+from tiltyard.engine.site import HorizonProfile, Site, SiteError
 from tiltyard.engine.sky import extraterrestrial_on_plane
 from tiltyard.engine.skyyear import IrradianceOptions, sky_year
 from tiltyard.engine.weather import ColumnMap, WeatherImportError, read_weather_csv
+from tiltyard.engine.weather_site import WeatherOptionError, column_map, load_weather_for_site
 
 MJ_PER_KWH = 3.6
 

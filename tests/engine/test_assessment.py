@@ -39,8 +39,10 @@ from tiltyard.engine.assessment import (
     load_assessment,
     save_assessment,
 )
+from tiltyard.engine.demo_sites import load_demo
 from tiltyard.engine.jobs import irradiance_year
-from tiltyard.engine.site import FORMAT_VERSION, Plane, Site, SiteError, load_demo
+from tiltyard.engine.site import Plane, Site, SiteError
+from tiltyard.engine.site_file import FORMAT_VERSION
 from tiltyard.engine.skyyear import IrradianceOptions
 
 TMY3 = Path(pvlib.__file__).parent / "data" / "723170TYA.CSV"

@@ -18,9 +18,10 @@ from tiltyard.engine.daycurves import (
     day_grid,
     irradiance_day,
 )
+from tiltyard.engine.demo_sites import load_demo
 from tiltyard.engine.horizon_loss import schedule_horizon_loss
 from tiltyard.engine.jobs import irradiance_year
-from tiltyard.engine.site import Site, load_demo
+from tiltyard.engine.site import Site
 from tiltyard.engine.skyyear import IrradianceOptions, sky_year
 from tiltyard.engine.tilt import StudyOptions, tilt_study
 from tiltyard.engine.weather import WeatherData

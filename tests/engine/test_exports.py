@@ -15,6 +15,7 @@ import numpy as np
 import pandas as pd
 import pytest
 
+from tiltyard.engine.demo_sites import load_demo
 from tiltyard.engine.exports import (
     SHEET_CAUTIONS,
     check_option_kinds,
@@ -32,7 +33,8 @@ from tiltyard.engine.exports import (
     study_json_text,
 )
 from tiltyard.engine.jobs import irradiance_year
-from tiltyard.engine.site import Plane, Site, load_demo, site_from_dict, site_to_dict
+from tiltyard.engine.site import Plane, Site
+from tiltyard.engine.site_file import site_from_dict, site_to_dict
 from tiltyard.engine.skyyear import IrradianceOptions, sky_year
 from tiltyard.engine.tilt import StudyOptions, tilt_study
 from tiltyard.engine.weather import Finding, WeatherData

@@ -10,6 +10,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from pvlib import irradiance
 
+from tiltyard.engine.demo_sites import load_demo
 from tiltyard.engine.horizon import (
     HORIZON_BAND_DEG,
     horizon_band_fraction,
@@ -21,7 +22,7 @@ from tiltyard.engine.horizon import (
     sky_view_factor,
     sun_visible,
 )
-from tiltyard.engine.site import HorizonProfile, Obstacle, Site, load_demo
+from tiltyard.engine.site import HorizonProfile, Obstacle, Site
 
 PROFILE_AZ = tuple(range(0, 360, 30))  # 12 measured directions for generated horizons
 

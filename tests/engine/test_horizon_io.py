@@ -12,6 +12,7 @@ import os
 
 import pytest
 
+from tiltyard.engine.demo_sites import load_demo
 from tiltyard.engine.horizon_io import (
     HorizonFileError,
     format_horizon_csv,
@@ -19,7 +20,7 @@ from tiltyard.engine.horizon_io import (
     read_horizon_csv,
     write_horizon_csv,
 )
-from tiltyard.engine.site import HorizonProfile, load_demo
+from tiltyard.engine.site import HorizonProfile
 
 
 def _write(tmp_path, text, name="h.csv", encoding="utf-8"):
@@ -52,7 +53,7 @@ def test_write_is_atomic_and_replaces(tmp_path):
     prof = HorizonProfile((0.0, 180.0), (1.0, 2.0))
     write_horizon_csv(prof, target)
     assert target.read_text(encoding="utf-8") == format_horizon_csv(prof)
-    # no temporary file left beside the target (engine.site.write_bytes_atomically)
+    # no temporary file left beside the target (engine.atomic_files.write_bytes_atomically)
     assert sorted(os.listdir(tmp_path)) == ["h.csv"]
 
 

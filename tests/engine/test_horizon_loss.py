@@ -21,9 +21,10 @@ import math
 
 import pytest
 
+from tiltyard.engine.demo_sites import load_demo
 from tiltyard.engine.horizon_loss import horizon_loss
 from tiltyard.engine.jobs import irradiance_year
-from tiltyard.engine.site import HorizonProfile, Obstacle, Plane, Site, load_demo
+from tiltyard.engine.site import HorizonProfile, Obstacle, Plane, Site
 from tiltyard.engine.skyyear import IrradianceOptions
 
 HOURLY = IrradianceOptions(step_min=60)

@@ -18,11 +18,12 @@ import pvlib
 import pytest
 
 from tiltyard.engine import manyplane
+from tiltyard.engine.demo_sites import load_demo
 from tiltyard.engine.horizon import plane_shading
 from tiltyard.engine.jobs import irradiance_year
 from tiltyard.engine.manyplane import many_plane_daily, many_plane_terms
 from tiltyard.engine.plane import poa_components
-from tiltyard.engine.site import Site, load_demo
+from tiltyard.engine.site import Site
 from tiltyard.engine.skyyear import IrradianceOptions, sky_year
 
 MODELS = ("isotropic", "haydavies", "perez")

@@ -1,4 +1,5 @@
-"""Tests for the site model, its validation and site files (tiltyard.engine.site).
+"""Tests for the site model, its validation and site files (tiltyard.engine.site,
+site_file, demo_sites).
 
 Most checks here pin the contract of DESIGN.md (site-file format, error messages naming
 field, value and allowed range, atomic saving) rather than outside values; the few outside
@@ -17,18 +18,12 @@ from pathlib import Path
 import pytest
 
 from tiltyard.engine import site as site_mod
-from tiltyard.engine.site import (
+from tiltyard.engine.demo_sites import demo_site_names, load_demo, resolve_site
+from tiltyard.engine.site import HorizonProfile, Obstacle, Plane, Site, SiteError
+from tiltyard.engine.site_file import (
     FORMAT_NAME,
     FORMAT_VERSION,
-    HorizonProfile,
-    Obstacle,
-    Plane,
-    Site,
-    SiteError,
-    demo_site_names,
-    load_demo,
     load_site,
-    resolve_site,
     save_site,
     site_from_dict,
     site_to_dict,

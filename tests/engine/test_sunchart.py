@@ -6,8 +6,9 @@ import numpy as np
 import pandas as pd
 import pytest
 
+from tiltyard.engine.demo_sites import load_demo
 from tiltyard.engine.horizon import site_horizon_deg
-from tiltyard.engine.site import HorizonProfile, Site, load_demo
+from tiltyard.engine.site import HorizonProfile, Site
 from tiltyard.engine.sun import RISE_SET_ELEVATION_DEG, standard_path_dates, sun_events
 from tiltyard.engine.sunchart import basis_hours, horizon_crossings, monthly_events, sun_chart
 

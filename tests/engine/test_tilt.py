@@ -5,7 +5,8 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from tiltyard.engine.site import Plane, Site, load_demo
+from tiltyard.engine.demo_sites import load_demo
+from tiltyard.engine.site import Plane, Site
 from tiltyard.engine.tilt import OPTION_KINDS, StudyOptions, tilt_study
 
 

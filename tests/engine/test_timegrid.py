@@ -4,8 +4,9 @@ import numpy as np
 import pandas as pd
 import pytest
 
+from tiltyard.engine.demo_sites import load_demo
 from tiltyard.engine.jobs import IrradianceOptions, irradiance_year
-from tiltyard.engine.site import Site, load_demo
+from tiltyard.engine.site import Site
 from tiltyard.engine.sun import evaluation_points, solar_position
 from tiltyard.engine.timegrid import (
     REFERENCE_YEAR,

@@ -14,7 +14,7 @@ import pandas as pd
 import pvlib
 import pytest
 
-from tiltyard.engine.site import load_demo
+from tiltyard.engine.demo_sites import load_demo
 from tiltyard.engine.timegrid import GRID_STEPS_MIN
 from tiltyard.engine.weather import CsvHeader, Loaded, LoadFailure, WeatherData
 from tiltyard.engine.weather_check import grid_step_problem, read_weather_for_site
