@@ -29,6 +29,16 @@ class _Parser(argparse.ArgumentParser):
         sys.stderr.write(f"{self.prog}: {_one_line(message)} (see '{self.prog} --help')\n")
         raise SystemExit(EXIT_INPUT)
 
+    def parse_args(self, args=None, namespace=None):
+        # argparse joins stray words unquoted, so an empty one ('') was named by nothing
+        args, extras = self.parse_known_args(args, namespace)
+        if extras:
+            import shlex
+
+            self.error("unrecognized arguments: " + " ".join(
+                shlex.quote(w) if w.isprintable() else repr(w) for w in extras))
+        return args
+
 
 #: Dates ``--date`` takes (the years ``--year`` takes).
 DATE_RANGE = (_dt.date(1900, 1, 1), _dt.date(2100, 12, 31))

@@ -53,3 +53,50 @@ def quarter_hour_weather(tmp_path_factory):
     path = tmp_path_factory.mktemp("weather") / "quarter-hours.csv"
     return (path, write_quarter_hour_weather(path, load_demo("larkmoor-dairy")),
             QUARTER_HOUR_COLUMNS)
+
+
+def _write_epw(path, tmy3_frame, meta):
+    """EPW file with the TMY3 sample's values (EnergyPlus EPW data dictionary layout).
+
+    ``tmy3_frame`` holds pvlib's TMY3 columns (``Date (MM/DD/YYYY)``, ``Time (HH:MM)``,
+    ``ghi``, ``dni``, ``dhi``, ``temp_air``, ``wind_speed``), ``meta`` its header
+    (``latitude``, ``longitude``, ``TZ``, ``altitude``)."""
+    import numpy as np
+    import pandas as pd
+
+    date = pd.to_datetime(tmy3_frame["Date (MM/DD/YYYY)"], format="%m/%d/%Y")
+    hour = tmy3_frame["Time (HH:MM)"].str[:2].astype(int)  # 1..24, like EPW's hour field
+    n = len(tmy3_frame)
+    zeros = np.zeros(n)
+    body = pd.DataFrame({
+        "year": date.dt.year.to_numpy(), "month": date.dt.month.to_numpy(),
+        "day": date.dt.day.to_numpy(), "hour": hour.to_numpy(), "minute": np.full(n, 60),
+        "flags": "?9?9?9?9E0?9?9?9?9?9?9?9?9?9?9?9?9?9?9?9*9*9?9?9?9",
+        "temp_air": tmy3_frame["temp_air"].to_numpy(), "temp_dew": zeros,
+        "relative_humidity": zeros, "pressure": np.full(n, 101325.0), "etr": zeros,
+        "etrn": zeros, "ir": zeros, "ghi": tmy3_frame["ghi"].to_numpy(),
+        "dni": tmy3_frame["dni"].to_numpy(), "dhi": tmy3_frame["dhi"].to_numpy(),
+        "gh_illum": zeros, "dn_illum": zeros, "dh_illum": zeros, "zenith_lum": zeros,
+        "wind_dir": zeros, "wind_speed": tmy3_frame["wind_speed"].to_numpy(),
+        "total_sky": zeros, "opaque_sky": zeros, "visibility": zeros, "ceiling": zeros,
+        "pw_obs": np.full(n, 9), "pw_codes": np.full(n, 999999999), "pwat": zeros,
+        "aod": zeros, "snow": zeros, "days_snow": np.full(n, 88), "albedo": zeros,
+        "liq_depth": zeros, "liq_qty": zeros,
+    })
+    header = [
+        f"LOCATION,GREENSBORO,NC,USA,TMY3,723170,{meta['latitude']},{meta['longitude']},"
+        f"{meta['TZ']},{meta['altitude']}",
+        "DESIGN CONDITIONS,0", "TYPICAL/EXTREME PERIODS,0", "GROUND TEMPERATURES,0",
+        "HOLIDAYS/DAYLIGHT SAVINGS,No,0,0,0", "COMMENTS 1,test file", "COMMENTS 2,test file",
+        "DATA PERIODS,1,1,Data,Sunday, 1/ 1,12/31",
+    ]
+    with open(path, "w", newline="") as handle:
+        handle.write("\n".join(header) + "\n")
+        body.to_csv(handle, header=False, index=False, lineterminator="\n")
+    return path
+
+
+@pytest.fixture(scope="session")
+def write_epw():
+    """The EPW writer (:func:`_write_epw`): ``write_epw(path, tmy3_frame, meta) -> path``."""
+    return _write_epw

@@ -146,41 +146,7 @@ def test_tmy2_sample_matches_pvlib():
     assert warnings_of(wd) == []
 
 
-def write_epw(path, tmy3_frame, meta):
-    """EPW file with the TMY3 sample's values (EnergyPlus EPW data dictionary layout)."""
-    date = pd.to_datetime(tmy3_frame["Date (MM/DD/YYYY)"], format="%m/%d/%Y")
-    hour = tmy3_frame["Time (HH:MM)"].str[:2].astype(int)  # 1..24, like EPW's hour field
-    n = len(tmy3_frame)
-    zeros = np.zeros(n)
-    body = pd.DataFrame({
-        "year": date.dt.year.to_numpy(), "month": date.dt.month.to_numpy(),
-        "day": date.dt.day.to_numpy(), "hour": hour.to_numpy(), "minute": np.full(n, 60),
-        "flags": "?9?9?9?9E0?9?9?9?9?9?9?9?9?9?9?9?9?9?9?9*9*9?9?9?9",
-        "temp_air": tmy3_frame["temp_air"].to_numpy(), "temp_dew": zeros,
-        "relative_humidity": zeros, "pressure": np.full(n, 101325.0), "etr": zeros,
-        "etrn": zeros, "ir": zeros, "ghi": tmy3_frame["ghi"].to_numpy(),
-        "dni": tmy3_frame["dni"].to_numpy(), "dhi": tmy3_frame["dhi"].to_numpy(),
-        "gh_illum": zeros, "dn_illum": zeros, "dh_illum": zeros, "zenith_lum": zeros,
-        "wind_dir": zeros, "wind_speed": tmy3_frame["wind_speed"].to_numpy(),
-        "total_sky": zeros, "opaque_sky": zeros, "visibility": zeros, "ceiling": zeros,
-        "pw_obs": np.full(n, 9), "pw_codes": np.full(n, 999999999), "pwat": zeros,
-        "aod": zeros, "snow": zeros, "days_snow": np.full(n, 88), "albedo": zeros,
-        "liq_depth": zeros, "liq_qty": zeros,
-    })
-    header = [
-        f"LOCATION,GREENSBORO,NC,USA,TMY3,723170,{meta['latitude']},{meta['longitude']},"
-        f"{meta['TZ']},{meta['altitude']}",
-        "DESIGN CONDITIONS,0", "TYPICAL/EXTREME PERIODS,0", "GROUND TEMPERATURES,0",
-        "HOLIDAYS/DAYLIGHT SAVINGS,No,0,0,0", "COMMENTS 1,test file", "COMMENTS 2,test file",
-        "DATA PERIODS,1,1,Data,Sunday, 1/ 1,12/31",
-    ]
-    with open(path, "w", newline="") as handle:
-        handle.write("\n".join(header) + "\n")
-        body.to_csv(handle, header=False, index=False, lineterminator="\n")
-    return path
-
-
-def test_epw_reads_like_the_tmy3_it_was_made_from(tmp_path, tmy3):
+def test_epw_reads_like_the_tmy3_it_was_made_from(tmp_path, tmy3, write_epw):
     data, meta = tmy3
     path = write_epw(tmp_path / "greensboro.epw", data, meta)
     wd_epw = read_weather_file(path)
@@ -192,7 +158,7 @@ def test_epw_reads_like_the_tmy3_it_was_made_from(tmp_path, tmy3):
     assert warnings_of(wd_epw) == []
 
 
-def test_subhourly_epw_uses_the_minute_field(tmp_path):
+def test_subhourly_epw_uses_the_minute_field(tmp_path, write_epw):
     # EPW data dictionary: hour 1..24 ("Hour 1 is 00:01 to 01:00"), minute 1..60, and
     # "Number of Records per hour" in DATA PERIODS; a 15-min record hour=1, minute=15
     # is the interval 00:00-00:15
@@ -557,7 +523,7 @@ def test_labelling_and_zone_must_be_explicit(tmp_path):
         read_weather_csv(path, cols, timestamp_label="start", timezone="Mars/Olympus")
 
 
-def test_an_epw_date_error_gives_its_line(tmp_path, tmy3):
+def test_an_epw_date_error_gives_its_line(tmp_path, tmy3, write_epw):
     data, meta = tmy3
     path = write_epw(tmp_path / "bad-date.epw", data, meta)
     lines = path.read_text().splitlines()
