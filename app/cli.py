@@ -30,12 +30,73 @@ COMMANDS = {"sites": cmd_sites, "sun": cmd_sun, "irradiance": cmd_irradiance,
 
 def main(argv: list[str] | None = None) -> int:
     """Run the command line; returns the exit status (also for usage errors,
-    ``--help`` and ``--version``, which argparse reports by raising SystemExit)."""
-    import multiprocessing
-    multiprocessing.freeze_support()    # a frozen app's engine worker processes start here
+    ``--help`` and ``--version``, which argparse reports by raising SystemExit).
+
+    SIGTERM and SIGINT give 143 and 130 from the first line of a subcommand's run to its
+    last (see :func:`_exit_signals`)."""
+    if getattr(sys, "frozen", False):   # a frozen app's engine worker processes start here
+        import multiprocessing
+        multiprocessing.freeze_support()
+    whole_process = argv is None        # the program itself, not a call from a script
     argv = sys.argv[1:] if argv is None else argv
     if not argv or (not argv[0].startswith("-") and argv[0] not in COMMANDS):
         return _open_app(argv[0] if argv else None)
+    with _exit_signals(whole_process) as stopped:
+        return _run(argv)
+    return _Terminated.code_of(stopped.stop)    # stopped: the with block swallowed it
+
+
+class _exit_signals:
+    """SIGTERM raises :class:`_Terminated` (SIGINT KeyboardInterrupt) anywhere in the
+    block, before any heavy import, and the block ends with the one-line report and 143
+    (130); the unfinished step has removed its temporary file on the way out.
+
+    For the program itself (``whole_process``) the handlers are not put back afterwards:
+    SIGTERM and SIGINT are ignored from the block's end, so one that comes while the
+    interpreter shuts down cannot kill it with a bare signal status (-15) once every output
+    is written. A caller in the same process (a script, a test) gets its handlers back."""
+
+    def __init__(self, whole_process: bool):
+        self.whole_process = whole_process
+        self.stop = None
+
+    def __enter__(self):
+        import signal
+
+        self._old = None
+        try:
+            self._old = signal.signal(signal.SIGTERM, _signals_as_exceptions._raise)
+        except ValueError:          # not the main thread (a test runner's thread)
+            pass
+        return self
+
+    def _quiet(self):
+        import signal
+
+        if self._old is None:
+            return
+        if self.whole_process:
+            signal.signal(signal.SIGTERM, signal.SIG_IGN)
+            signal.signal(signal.SIGINT, signal.SIG_IGN)
+        else:
+            signal.signal(signal.SIGTERM, self._old)
+
+    def __exit__(self, kind, stop, tb):
+        try:
+            self._quiet()
+        except (KeyboardInterrupt, _Terminated):   # it came after the run had ended
+            self._quiet()
+        if not isinstance(stop, (KeyboardInterrupt, _Terminated)):
+            return False
+        self.stop = stop
+        code = _Terminated.code_of(stop)
+        sys.stderr.write(f"tiltyard: stopped by {'SIGINT' if code == 130 else 'SIGTERM'}; "
+                         "no output was changed by the unfinished step\n")
+        return True
+
+
+def _run(argv: list[str]) -> int:
+    """One subcommand (or --help, --version) from its arguments to its exit status."""
     parser = build_parser()
     try:
         args = parser.parse_args(_negative_values_joined(parser, argv))
@@ -55,12 +116,6 @@ def main(argv: list[str] | None = None) -> int:
     except (UserError, SiteError) as err:
         sys.stderr.write(f"tiltyard: {_one_line(err)}\n")
         return EXIT_INPUT
-    except (KeyboardInterrupt, _Terminated) as stop:
-        # the write in progress has removed its temporary file on the way out
-        code = _Terminated.code_of(stop)
-        sys.stderr.write(f"tiltyard: stopped by {'SIGINT' if code == 130 else 'SIGTERM'}; "
-                         "no output was changed by the unfinished step\n")
-        return code
     except BrokenPipeError:
         return EXIT_OK
     except Exception as err:  # an internal fault: one line, traceback on request

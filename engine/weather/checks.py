@@ -64,14 +64,14 @@ def _missing(values: dict[str, np.ndarray], lines: np.ndarray,
             idx = np.flatnonzero(missing)
             what = []
             if nan.any():
-                what.append(f"{int(nan.sum())} empty/NaN")
+                what.append(f"{int(nan.sum())} empty or not a number")
             if sentinel.any():
                 what.append(f"{int(sentinel.sum())} sentinel "
                             + "/".join(f"{v:g}" for v in found[:_MAX_LISTED]))
             findings.append(Finding(
                 "missing", "warning",
                 f"{col}: {int(missing.sum())} missing values ({', '.join(what)}) at "
-                f"{_lines_text(lines[idx])}; kept as NaN",
+                f"{_lines_text(lines[idx])}; treated as missing",
                 int(lines[idx[0]]),
             ))
 
