@@ -38,7 +38,8 @@ import pandas as pd
 from scipy.optimize import brentq, minimize_scalar
 
 from .site import Site
-from .sun import RISE_SET_ELEVATION_DEG, delta_t_s, solar_position, sun_events
+from .solarpos import RISE_SET_ELEVATION_DEG, delta_t_s, solar_position
+from .sunevents import sun_events
 from .timegrid import REFERENCE_YEAR, local_date
 from .words import day_month
 
