@@ -22,21 +22,40 @@ from .cli_args import (  # noqa: F401 (the command line's public names live on h
     _Terminated,
     build_parser,
 )
-from .cli_commands import cmd_irradiance, cmd_sheet, cmd_sites, cmd_study, cmd_sun
 
-COMMANDS = {"sites": cmd_sites, "sun": cmd_sun, "irradiance": cmd_irradiance,
-            "study": cmd_study, "sheet": cmd_sheet}
+#: Each subcommand and its function in :mod:`tiltyard.app.cli_commands`, imported only
+#: when that subcommand runs (``--help`` and ``--version`` import no engine module).
+COMMANDS = {"sites": "cmd_sites", "sun": "cmd_sun", "irradiance": "cmd_irradiance",
+            "study": "cmd_study", "sheet": "cmd_sheet"}
+
+
+def _run_command(name: str, args) -> int:
+    from . import cli_commands
+
+    return getattr(cli_commands, COMMANDS[name])(args)
+
+
+def _command_word(argv: list[str]) -> str:
+    """The subcommand named in ``argv`` ("" for none): the first word that is not an
+    option (the options before a subcommand take no values)."""
+    for word in argv:
+        if word == "--":
+            break
+        if not word.startswith("-"):
+            return word if word in COMMANDS else ""
+    return ""
 
 
 def main(argv: list[str] | None = None) -> int:
     """Run the command line; returns the exit status (also for usage errors,
     ``--help`` and ``--version``, which argparse reports by raising SystemExit)."""
-    import multiprocessing
-    multiprocessing.freeze_support()    # a frozen app's engine worker processes start here
+    if getattr(sys, "frozen", False):   # (freeze_support does nothing unless frozen)
+        import multiprocessing
+        multiprocessing.freeze_support()    # a frozen app's engine worker processes start here
     argv = sys.argv[1:] if argv is None else argv
     if not argv or (not argv[0].startswith("-") and argv[0] not in COMMANDS):
         return _open_app(argv[0] if argv else None)
-    parser = build_parser()
+    parser = build_parser(_command_word(argv))
     try:
         args = parser.parse_args(_negative_values_joined(parser, argv))
     except SystemExit as stop:
@@ -51,7 +70,7 @@ def main(argv: list[str] | None = None) -> int:
         if args.command is None:
             return _open_app(None)
         with _signals_as_exceptions():
-            return COMMANDS[args.command](args)
+            return _run_command(args.command, args)
     except (UserError, SiteError) as err:
         sys.stderr.write(f"tiltyard: {_one_line(err)}\n")
         return EXIT_INPUT

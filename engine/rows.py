@@ -194,12 +194,20 @@ def irradiation_per_ground_m2(poa_kwh_m2, gcr):
 
 # -- the design date ------------------------------------------------------------
 
-def _noon_front_term(site: Site, date: pd.Timestamp, azimuth_deg: float) -> float:
-    """``cos(gamma_s - gamma) / tan(alpha_s)`` of the noon sun; 0 when it is behind or down."""
+@functools.lru_cache(maxsize=16)
+def _noon_sun(site: Site, date: pd.Timestamp) -> tuple[float, float]:
+    """Apparent elevation and azimuth of the sun at solar noon on a local date, degrees
+    (Reda & Andreas 2008, NREL/TP-560-34302, App. A.2, through pvlib); once per site
+    and date, whatever the rows' azimuth."""
     noon = sun_events(site, [date]).table["solar_noon"].iloc[0]
     pos = solar_position(pd.DatetimeIndex([noon]), site)
-    el = float(pos["apparent_elevation"].iloc[0])
-    cos_d = math.cos(math.radians(float(pos["azimuth"].iloc[0]) - azimuth_deg))
+    return float(pos["apparent_elevation"].iloc[0]), float(pos["azimuth"].iloc[0])
+
+
+def _noon_front_term(site: Site, date: pd.Timestamp, azimuth_deg: float) -> float:
+    """``cos(gamma_s - gamma) / tan(alpha_s)`` of the noon sun; 0 when it is behind or down."""
+    el, sun_az = _noon_sun(site, date)
+    cos_d = math.cos(math.radians(sun_az - azimuth_deg))
     # down, behind, or along the rows (within 0.06 deg: the SPA transit azimuth
     # is 0 or 180 deg only to a few thousandths of a degree)
     if el <= 0.0 or cos_d <= 1e-3:
