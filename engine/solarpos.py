@@ -113,26 +113,97 @@ TIME_TERMS_CACHE_MAX = 110_000
 _cache: dict = {}
 
 
-def _compute_time_terms(unixtime: np.ndarray, delta_t: np.ndarray) -> tuple:
-    """The time-only steps of :func:`pvlib.spa.solar_position_numpy`, in its order."""
-    jd = _spa.julian_day(unixtime)
-    jde = _spa.julian_ephemeris_day(jd, delta_t)
+#: Below this many instants the periodic series of SPA are summed over the table rows
+#: at once (:func:`_series`); from it on, pvlib's loop over the rows is faster.
+SMALL_SET = 256
+
+
+def _series(table: np.ndarray, x: np.ndarray) -> np.ndarray:
+    """``sum_i A_i cos(B_i + C_i x)`` over a table's rows, for a few instants at once.
+
+    The rows are evaluated together and added one after another in row order
+    (``np.add.accumulate``), which is what :func:`pvlib.spa.sum_mult_cos_add_mult`
+    does one row at a time, so each value is the same number; it is about ten
+    times faster for a single instant (the root searches and the row layouts).
+
+    References
+    ----------
+    Reda & Andreas (2008), NREL/TP-560-34302, eqs. 9-10 and Table A4.2 (the
+    tables as shipped in :mod:`pvlib.spa`).
+    """
+    terms = table[:, 0:1] * np.cos(table[:, 1:2] + table[:, 2:3] * x[None, :])
+    return np.add.accumulate(terms, axis=0)[-1]
+
+
+def _few_heliocentric(jme: np.ndarray) -> tuple[np.ndarray, ...]:
+    """Heliocentric longitude and latitude (degrees) and radius (AU), as
+    :func:`pvlib.spa.heliocentric_longitude`, ``_latitude`` and ``_radius_vector``
+    compute them, for a few instants (Reda & Andreas 2008, eqs. 9-12)."""
+    l0, l1, l2, l3, l4, l5 = (_series(t, jme) for t in (_spa.L0, _spa.L1, _spa.L2, _spa.L3,
+                                                        _spa.L4, _spa.L5))
+    l_rad = (l0 + l1 * jme + l2 * jme**2 + l3 * jme**3 + l4 * jme**4 + l5 * jme**5) / 10**8
+    b0, b1 = _series(_spa.B0, jme), _series(_spa.B1, jme)
+    r0, r1, r2, r3, r4 = (_series(t, jme) for t in (_spa.R0, _spa.R1, _spa.R2, _spa.R3,
+                                                    _spa.R4))
+    big_r = (r0 + r1 * jme + r2 * jme**2 + r3 * jme**3 + r4 * jme**4) / 10**8
+    return np.rad2deg(l_rad) % 360, np.rad2deg((b0 + b1 * jme) / 10**8), big_r
+
+
+def _few_nutation(jce, x0, x1, x2, x3, x4, out) -> None:
+    """Nutation in longitude and obliquity into ``out``, as
+    :func:`pvlib.spa.longitude_obliquity_nutation` computes them (the rows added in
+    order), for a few instants (Reda & Andreas 2008, eqs. 20-23, Table A4.3)."""
+    y, abcd = _spa.NUTATION_YTERM_ARRAY, _spa.NUTATION_ABCD_ARRAY
+    arg = np.radians(y[:, 0:1] * x0[None] + y[:, 1:2] * x1[None] + y[:, 2:3] * x2[None]
+                     + y[:, 3:4] * x3[None] + y[:, 4:5] * x4[None])
+    psi = np.add.accumulate((abcd[:, 0:1] + abcd[:, 1:2] * jce[None]) * np.sin(arg), axis=0)
+    eps = np.add.accumulate((abcd[:, 2:3] + abcd[:, 3:4] * jce[None]) * np.cos(arg), axis=0)
+    out[0] = psi[-1] * 1.0 / 36000000
+    out[1] = eps[-1] * 1.0 / 36000000
+
+
+def _geocentric_chain(unixtime: np.ndarray, delta_t) -> tuple[np.ndarray, ...]:
+    """SPA from the Julian day to the sun's geocentric apparent position, in the order of
+    :func:`pvlib.spa.solar_position_numpy`: ``(jd, jc, jme, radius_au, delta_psi, epsilon,
+    right_ascension, declination)`` (Reda & Andreas 2008, sections 3.1-3.8). Sets of
+    fewer than :data:`SMALL_SET` instants sum the periodic series over the table rows at
+    once, to the same numbers."""
+    shape = np.shape(unixtime)
+    t = np.atleast_1d(np.asarray(unixtime, dtype=float)).ravel()
+    dt = np.broadcast_to(np.asarray(delta_t, dtype=float), shape).ravel() \
+        if np.ndim(delta_t) else delta_t
+    jd = _spa.julian_day(t)
+    jde = _spa.julian_ephemeris_day(jd, dt)
     jc = _spa.julian_century(jd)
     jce = _spa.julian_ephemeris_century(jde)
     jme = _spa.julian_ephemeris_millennium(jce)
-    big_r = _spa.heliocentric_radius_vector(jme)
-    theta = _spa.geocentric_longitude(_spa.heliocentric_longitude(jme))
-    beta = _spa.geocentric_latitude(_spa.heliocentric_latitude(jme))
+    few = jme.size < SMALL_SET
+    if few:
+        helio_l, helio_b, big_r = _few_heliocentric(jme)
+    else:
+        big_r = _spa.heliocentric_radius_vector(jme)
+        helio_l, helio_b = _spa.heliocentric_longitude(jme), _spa.heliocentric_latitude(jme)
+    theta = _spa.geocentric_longitude(helio_l)
+    beta = _spa.geocentric_latitude(helio_b)
     x = (_spa.mean_elongation(jce), _spa.mean_anomaly_sun(jce), _spa.mean_anomaly_moon(jce),
          _spa.moon_argument_latitude(jce), _spa.moon_ascending_longitude(jce))
-    l_o = np.empty((2, len(x[0])))
-    _spa.longitude_obliquity_nutation(jce, *x, l_o)
+    l_o = np.empty((2, jce.size))
+    (_few_nutation if few else _spa.longitude_obliquity_nutation)(jce, *x, l_o)
     delta_psi, delta_eps = l_o[0], l_o[1]
     eps = _spa.true_ecliptic_obliquity(_spa.mean_ecliptic_obliquity(jme), delta_eps)
     lamd = _spa.apparent_sun_longitude(theta, delta_psi, _spa.aberration_correction(big_r))
-    nu = _spa.apparent_sidereal_time(_spa.mean_sidereal_time(jd, jc), delta_psi, eps)
     alpha = _spa.geocentric_sun_right_ascension(lamd, eps, beta)
     delta = _spa.geocentric_sun_declination(lamd, eps, beta)
+    return tuple(np.asarray(v, dtype=float).reshape(shape)
+                 for v in (jd, jc, jme, big_r, delta_psi, eps, alpha, delta))
+
+
+def _compute_time_terms(unixtime: np.ndarray, delta_t: np.ndarray) -> tuple:
+    """The time-only steps of :func:`pvlib.spa.solar_position_numpy`, in its order:
+    sidereal time, right ascension, declination, distance, equation of time
+    (Reda & Andreas 2008, sections 3.1-3.8, App. A.1)."""
+    jd, jc, jme, big_r, delta_psi, eps, alpha, delta = _geocentric_chain(unixtime, delta_t)
+    nu = _spa.apparent_sidereal_time(_spa.mean_sidereal_time(jd, jc), delta_psi, eps)
     eot = _spa.equation_of_time(_spa.sun_mean_longitude(jme), alpha, delta_psi, eps)
     return tuple(np.asarray(v, dtype=float) for v in (nu, alpha, delta, big_r, eot))
 
@@ -328,22 +399,7 @@ def _slow_terms(unixtime: np.ndarray, delta_t) -> tuple[np.ndarray, ...]:
     3.1-3.8, through the step functions of :mod:`pvlib.spa`. ``unixtime`` is
     UT in seconds since 1970; ``delta_t`` is TT - UT1 in seconds.
     """
-    jd = _spa.julian_day(unixtime)
-    jde = _spa.julian_ephemeris_day(jd, delta_t)
-    jce = _spa.julian_ephemeris_century(jde)
-    jme = _spa.julian_ephemeris_millennium(jce)
-    big_r = _spa.heliocentric_radius_vector(jme)
-    theta = _spa.geocentric_longitude(_spa.heliocentric_longitude(jme))
-    beta = _spa.geocentric_latitude(_spa.heliocentric_latitude(jme))
-    x = (_spa.mean_elongation(jce), _spa.mean_anomaly_sun(jce), _spa.mean_anomaly_moon(jce),
-         _spa.moon_argument_latitude(jce), _spa.moon_ascending_longitude(jce))
-    l_o = np.empty((2,) + np.shape(jce))
-    _spa.longitude_obliquity_nutation(jce, *x, l_o)
-    delta_psi, delta_eps = l_o[0], l_o[1]
-    eps = _spa.true_ecliptic_obliquity(_spa.mean_ecliptic_obliquity(jme), delta_eps)
-    lamd = _spa.apparent_sun_longitude(theta, delta_psi, _spa.aberration_correction(big_r))
-    alpha = _spa.geocentric_sun_right_ascension(lamd, eps, beta)
-    delta = _spa.geocentric_sun_declination(lamd, eps, beta)
+    _, _, _, big_r, delta_psi, eps, alpha, delta = _geocentric_chain(unixtime, delta_t)
     return tuple(np.asarray(v, dtype=float) for v in (alpha, delta, delta_psi, eps, big_r))
 
 
