@@ -14,6 +14,8 @@ Prints figures; never fails on time. Target: a study at most 200 plane-years, th
 grid at least 150x the loop.
 
 Run: python tests/benchmarks/bench_study.py [--quick]
+(``PYTHONPATH=DIR`` with DIR holding a ``tiltyard`` package of another revision
+measures that revision in the same conditions.)
 """
 
 from __future__ import annotations
@@ -30,7 +32,12 @@ from tiltyard.engine.assessment import demo_assessment
 from tiltyard.engine.manyplane import many_plane_daily, many_plane_terms
 from tiltyard.engine.site import demo_site_names, load_demo
 from tiltyard.engine.skyyear import IrradianceOptions, sky_year
-from tiltyard.engine.solarpos import clear_time_terms_cache
+
+try:
+    from tiltyard.engine.solarpos import clear_time_terms_cache
+except ImportError:      # a revision without the time-terms cache (run with PYTHONPATH)
+    def clear_time_terms_cache():
+        pass
 
 N_LOOP_PLANES = 300
 
@@ -52,8 +59,9 @@ def _pvlib_plane(arrays, tilt, azimuth):
 
 def _study(name, cold: bool = False):
     # each run as a new site: the row layouts' per-site caches start empty
-    rows._design_window.cache_clear()
-    rows._noon_sun.cache_clear()
+    for cached in ("_design_window", "_noon_sun"):
+        if hasattr(rows, cached):
+            getattr(rows, cached).cache_clear()
     if cold:     # as the first site of a year and interval in a process
         clear_time_terms_cache()
     return assess(demo_assessment(name)).study()
