@@ -21,6 +21,7 @@ them.
 from __future__ import annotations
 
 import hashlib
+import threading
 from dataclasses import dataclass
 
 import numpy as np
@@ -111,6 +112,7 @@ TIME_TERMS_CACHE_SIZE = 4
 TIME_TERMS_CACHE_MAX = 110_000
 
 _cache: dict = {}
+_cache_lock = threading.Lock()   # engine calls may run in threads
 
 
 #: Below this many instants the periodic series of SPA are summed over the table rows
@@ -241,13 +243,15 @@ def time_terms(unixtime, delta_t) -> TimeTerms:
     key = None
     if keep:
         key = (t.size, hashlib.blake2b(t.tobytes() + dt.tobytes(), digest_size=16).digest())
-        hit = _cache.get(key)
-        if hit is not None:
-            _cache[key] = _cache.pop(key)          # most recently used last
-            return hit
+        with _cache_lock:
+            hit = _cache.pop(key, None)
+            if hit is not None:
+                _cache[key] = hit                  # most recently used last
+                return hit
+            kept = list(_cache.values())
     values = None
     if keep:
-        for old in reversed(_cache.values()):
+        for old in reversed(kept):
             if len(old) != t.size:
                 continue
             same = (old.unixtime == t) & (old.delta_t == dt)
@@ -268,15 +272,17 @@ def time_terms(unixtime, delta_t) -> TimeTerms:
     for f in ("unixtime", "delta_t", *_TERM_FIELDS):
         getattr(out, f).setflags(write=False)
     if keep:
-        _cache[key] = out
-        while len(_cache) > TIME_TERMS_CACHE_SIZE:
-            _cache.pop(next(iter(_cache)))
+        with _cache_lock:
+            _cache[key] = out
+            while len(_cache) > TIME_TERMS_CACHE_SIZE:
+                _cache.pop(next(iter(_cache)))
     return out
 
 
 def clear_time_terms_cache() -> None:
     """Forget the kept :class:`TimeTerms` (tests; a worker that moves to another year)."""
-    _cache.clear()
+    with _cache_lock:
+        _cache.clear()
 
 
 def site_positions(terms: TimeTerms, site: Site, pressure_pa: float | None = None,
@@ -345,6 +351,12 @@ def solar_position(times: pd.DatetimeIndex, site: Site, delta_t: float | None = 
         Columns ``apparent_zenith``, ``zenith``, ``apparent_elevation``,
         ``elevation``, ``azimuth`` (degrees, clockwise from north) and
         ``equation_of_time`` (minutes), indexed like ``times``.
+
+    Notes
+    -----
+    The time-only terms come from :func:`time_terms` (kept per process), the
+    site's steps from :func:`site_positions`: the same numbers as
+    :func:`pvlib.solarposition.spa_python` with these inputs.
 
     References
     ----------
