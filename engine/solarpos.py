@@ -106,7 +106,7 @@ _TERM_FIELDS = ("sidereal_deg", "right_ascension_deg", "declination_deg", "radiu
                 "equation_of_time_min")
 
 #: Sets of instants kept by :func:`time_terms` per process.
-TIME_TERMS_CACHE_SIZE = 4
+TIME_TERMS_CACHE_SIZE = 8
 
 #: Larger sets of instants are computed but not kept (a year at 5-minute intervals fits).
 TIME_TERMS_CACHE_MAX = 110_000
