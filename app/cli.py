@@ -22,10 +22,28 @@ from .cli_args import (  # noqa: F401 (the command line's public names live on h
     _Terminated,
     build_parser,
 )
-from .cli_commands import cmd_irradiance, cmd_sheet, cmd_sites, cmd_study, cmd_sun
 
-COMMANDS = {"sites": cmd_sites, "sun": cmd_sun, "irradiance": cmd_irradiance,
-            "study": cmd_study, "sheet": cmd_sheet}
+#: Each subcommand and its function in :mod:`tiltyard.app.cli_commands`, imported only
+#: when that subcommand runs (``--help`` and ``--version`` import no engine module).
+COMMANDS = {"sites": "cmd_sites", "sun": "cmd_sun", "irradiance": "cmd_irradiance",
+            "study": "cmd_study", "sheet": "cmd_sheet"}
+
+
+def _run_command(name: str, args) -> int:
+    from . import cli_commands
+
+    return getattr(cli_commands, COMMANDS[name])(args)
+
+
+def _command_word(argv: list[str]) -> str:
+    """The subcommand named in ``argv`` ("" for none): the first word that is not an
+    option (the options before a subcommand take no values)."""
+    for word in argv:
+        if word == "--":
+            break
+        if not word.startswith("-"):
+            return word if word in COMMANDS else ""
+    return ""
 
 
 def main(argv: list[str] | None = None) -> int:
@@ -97,7 +115,7 @@ class _exit_signals:
 
 def _run(argv: list[str]) -> int:
     """One subcommand (or --help, --version) from its arguments to its exit status."""
-    parser = build_parser()
+    parser = build_parser(_command_word(argv))
     try:
         args = parser.parse_args(_negative_values_joined(parser, argv))
     except SystemExit as stop:
@@ -112,7 +130,7 @@ def _run(argv: list[str]) -> int:
         if args.command is None:
             return _open_app(None)
         with _signals_as_exceptions():
-            return COMMANDS[args.command](args)
+            return _run_command(args.command, args)
     except (UserError, SiteError) as err:
         sys.stderr.write(f"tiltyard: {_one_line(err)}\n")
         return EXIT_INPUT

@@ -14,8 +14,6 @@ import re
 import sys
 from dataclasses import replace
 
-from tiltyard import __version__
-
 EXIT_OK, EXIT_FAULT, EXIT_INPUT = 0, 1, 2
 SITE_HELP = "a site file (.json) or the name of a bundled demo site (see 'tiltyard sites')"
 
@@ -61,11 +59,25 @@ def _sun_date(text: str) -> _dt.date:
     return day
 
 
-def build_parser() -> argparse.ArgumentParser:
-    from tiltyard.engine.sky import SOLAR_CONSTANT_W_M2
-    from tiltyard.engine.tilt import OPTION_KINDS
-    from tiltyard.engine.timegrid import TIME_BASES
+class _VersionAction(argparse.Action):
+    """``--version``: the installed version, looked up only when asked for."""
 
+    def __init__(self, option_strings, dest=argparse.SUPPRESS, default=argparse.SUPPRESS,
+                 help="show program's version number and exit"):
+        super().__init__(option_strings=option_strings, dest=dest, default=default, nargs=0,
+                         help=help)
+
+    def __call__(self, parser, namespace, values, option_string=None):
+        from tiltyard import __version__
+
+        parser._print_message(f"tiltyard {__version__}\n", sys.stdout)
+        parser.exit()
+
+
+def build_parser(command: str | None = None) -> argparse.ArgumentParser:
+    """The command line's parser. With ``command`` (a subcommand's name, or ``""`` for
+    none) only that subcommand's options are added, so that ``tiltyard --help`` and
+    ``--version`` import no engine module; the help texts are the same either way."""
     p = _Parser(prog="tiltyard",
                 usage="tiltyard [SITE]                 open the desktop app\n"
                       "       tiltyard [--version] [--verbose] COMMAND [options]",
@@ -73,17 +85,33 @@ def build_parser() -> argparse.ArgumentParser:
                             "Figures are preliminary feasibility estimates, not a design.",
                 epilog="SITE is a site file (.json) or the name of a bundled demo site "
                        "(see 'tiltyard sites'). With no subcommand the desktop app opens.")
-    p.add_argument("--version", action="version", version=f"tiltyard {__version__}")
+    p.add_argument("--version", action=_VersionAction)
     p.add_argument("--verbose", action="store_true",
                    help="show the full traceback of an internal fault (for problem reports)")
     sub = p.add_subparsers(dest="command", parser_class=_Parser, metavar="COMMAND", prog="tiltyard")
+    for name, add in SUBCOMMANDS.items():
+        add(sub, options=command is None or command == name)
+    for sp in sub.choices.values():      # --verbose works after the subcommand too
+        sp.add_argument("--verbose", action="store_true", default=argparse.SUPPRESS,
+                        help="show the full traceback of an internal fault")
+    return p
 
+
+def _sites_parser(sub, options: bool = True) -> None:
+    """``tiltyard sites``: list the demo sites; its options only when ``options``."""
     s = sub.add_parser("sites", help="list the bundled demo sites")
+    if not options:
+        return
     s.add_argument("--json", action="store_true", help="write JSON to stdout")
 
+
+def _sun_parser(sub, options: bool = True) -> None:
+    """``tiltyard sun``: one date's sun events and path; its options only when ``options``."""
     s = sub.add_parser("sun", help="sunrise, sunset, solar noon and the sun's path on a date",
                        description="Sun events and path for one local date. Times are local "
                                    "clock time with the zone's daylight saving.")
+    if not options:
+        return
     s.add_argument("site", metavar="SITE", help=SITE_HELP)
     s.add_argument("--date", type=_sun_date, required=True,
                    help=f"local date, YYYY-MM-DD, {DATE_RANGE[0]} to {DATE_RANGE[1]}")
@@ -91,9 +119,16 @@ def build_parser() -> argparse.ArgumentParser:
                    help="path sampling step in minutes (default 10)")
     s.add_argument("--json", action="store_true", help="write one JSON document to stdout")
 
+
+def _irradiance_parser(sub, options: bool = True) -> None:
+    """``tiltyard irradiance``: a year on one plane; its options only when ``options``."""
     s = sub.add_parser("irradiance", help="a year of irradiation on one plane, by month",
                        description="Monthly and annual irradiation on a plane of given tilt and "
                                    "azimuth (degrees clockwise from true north, south = 180).")
+    if not options:
+        return
+    from tiltyard.engine.sky import SOLAR_CONSTANT_W_M2
+
     s.add_argument("site", metavar="SITE", help=SITE_HELP)
     s.add_argument("--tilt", type=float, required=True, metavar="DEG",
                    help="plane tilt from horizontal, 0-90")
@@ -105,16 +140,24 @@ def build_parser() -> argparse.ArgumentParser:
                    help=f"solar constant in W/m2 (default {SOLAR_CONSTANT_W_M2:g})")
     s.add_argument("--json", action="store_true", help="write one JSON document to stdout")
 
+
+def _study_parser(sub, options: bool = True) -> None:
+    """``tiltyard study``: the tilt study; its options only when ``options``."""
     s = sub.add_parser("study", help="compare fixed, seasonal and monthly tilts (the tilt study)",
                        description="Which tilt, and is adjusting it with the seasons worth it? "
                                    "Compares horizontal, each site plane, the rule of thumb, the "
                                    "optimal fixed plane, optimal two- and four-season and monthly "
                                    "schedules, and two-axis tracking as a ceiling.")
+    if not options:
+        return
     s.add_argument("site", metavar="SITE", help=SITE_HELP)
     _add_sky_options(s)
     _add_study_options(s)
     s.add_argument("--json", action="store_true", help="write one JSON document to stdout")
 
+
+def _sheet_parser(sub, options: bool = True) -> None:
+    """``tiltyard sheet``: the feasibility sheet and its data files; its options only when ``options``."""
     s = sub.add_parser(
         "sheet", help="the feasibility sheet as PDF (A4 or US Letter), with CSV and JSON data",
         description="The feasibility sheet for the client: key figures of the recommended "
@@ -129,6 +172,11 @@ def build_parser() -> argparse.ArgumentParser:
                "W/m2 of the options chosen with --hourly-options), --json-out FILE (the same "
                "document as 'tiltyard study --json'). Preparer, organisation and paper default "
                "to the desktop app's preferences.")
+    if not options:
+        return
+    from tiltyard.engine.tilt import OPTION_KINDS
+    from tiltyard.engine.timegrid import TIME_BASES
+
     s.add_argument("site", metavar="SITE", help=SITE_HELP)
     s.add_argument("-o", "--output", metavar="FILE.pdf", default=None,
                    help="write the sheet as a PDF file")
@@ -165,10 +213,11 @@ def build_parser() -> argparse.ArgumentParser:
                    help="write the study as JSON (the document of 'tiltyard study --json')")
     _add_sky_options(s)
     _add_study_options(s)
-    for sp in sub.choices.values():      # --verbose works after the subcommand too
-        sp.add_argument("--verbose", action="store_true", default=argparse.SUPPRESS,
-                        help="show the full traceback of an internal fault")
-    return p
+
+
+#: The subcommands, in the order of the help, each with the function that adds its parser.
+SUBCOMMANDS = {"sites": _sites_parser, "sun": _sun_parser, "irradiance": _irradiance_parser,
+               "study": _study_parser, "sheet": _sheet_parser}
 
 
 def _add_study_options(s) -> None:

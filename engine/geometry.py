@@ -2,7 +2,7 @@
 
 These are the textbook formulas (Duffie & Beckman, *Solar Engineering of
 Thermal Processes*, ch. 1) that monthly-mean methods are built on. The precise
-position of the sun at an instant comes from NREL SPA in :mod:`tiltyard.engine.sun`;
+position of the sun at an instant comes from NREL SPA in :mod:`tiltyard.engine.solarpos`;
 the formulas here are what a handbook calculation uses and what its worked
 examples check.
 

@@ -22,7 +22,8 @@ from .plane import TRANSPOSITION_REFERENCES
 from .site import Site
 from .sky import CLEARSKY_REFERENCES, extraterrestrial_interval_mean
 from .skyyear import IrradianceOptions, SkyYear, sky_year
-from .sun import day_path, sun_events
+from .sun import day_path
+from .sunevents import sun_events
 from .tilt import ALL_POA_COLUMNS, Period, periods_poa
 from .timegrid import MIDPOINT_CONVENTION
 

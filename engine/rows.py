@@ -28,6 +28,7 @@ between rows is neglected.
 
 from __future__ import annotations
 
+import functools
 import math
 import numbers
 from dataclasses import dataclass
@@ -37,7 +38,8 @@ import pandas as pd
 from scipy.optimize import brentq, minimize_scalar
 
 from .site import Site
-from .sun import RISE_SET_ELEVATION_DEG, delta_t_s, solar_position, sun_events
+from .solarpos import RISE_SET_ELEVATION_DEG, delta_t_s, solar_position
+from .sunevents import sun_events
 from .timegrid import REFERENCE_YEAR, local_date
 from .words import day_month
 
@@ -192,12 +194,20 @@ def irradiation_per_ground_m2(poa_kwh_m2, gcr):
 
 # -- the design date ------------------------------------------------------------
 
-def _noon_front_term(site: Site, date: pd.Timestamp, azimuth_deg: float) -> float:
-    """``cos(gamma_s - gamma) / tan(alpha_s)`` of the noon sun; 0 when it is behind or down."""
+@functools.lru_cache(maxsize=16)
+def _noon_sun(site: Site, date: pd.Timestamp) -> tuple[float, float]:
+    """Apparent elevation and azimuth of the sun at solar noon on a local date, degrees
+    (Reda & Andreas 2008, NREL/TP-560-34302, App. A.2, through pvlib); once per site
+    and date, whatever the rows' azimuth."""
     noon = sun_events(site, [date]).table["solar_noon"].iloc[0]
     pos = solar_position(pd.DatetimeIndex([noon]), site)
-    el = float(pos["apparent_elevation"].iloc[0])
-    cos_d = math.cos(math.radians(float(pos["azimuth"].iloc[0]) - azimuth_deg))
+    return float(pos["apparent_elevation"].iloc[0]), float(pos["azimuth"].iloc[0])
+
+
+def _noon_front_term(site: Site, date: pd.Timestamp, azimuth_deg: float) -> float:
+    """``cos(gamma_s - gamma) / tan(alpha_s)`` of the noon sun; 0 when it is behind or down."""
+    el, sun_az = _noon_sun(site, date)
+    cos_d = math.cos(math.radians(sun_az - azimuth_deg))
     # down, behind, or along the rows (within 0.06 deg: the SPA transit azimuth
     # is 0 or 180 deg only to a few thousandths of a degree)
     if el <= 0.0 or cos_d <= 1e-3:
@@ -350,6 +360,53 @@ class _Sun:
         return pos["apparent_elevation"].to_numpy(), pos["azimuth"].to_numpy()
 
 
+@dataclass(frozen=True)
+class _DesignWindow:
+    """The sun through one design window, the same for every row tilt and azimuth."""
+
+    events: pd.Series          # the date's sun events (sun_events)
+    noon: pd.Timestamp         # apparent solar noon, local
+    sun: _Sun
+    grid: np.ndarray           # sample offsets from noon, s
+    el: np.ndarray             # apparent elevation at the samples, deg
+    saz: np.ndarray            # azimuth at the samples, deg
+    offsets: np.ndarray        # the samples and the min-elevation crossings, sorted
+    el_offsets: np.ndarray
+    saz_offsets: np.ndarray
+
+
+@functools.lru_cache(maxsize=16)
+def _design_window(site: Site, day: pd.Timestamp, half: float, step: float,
+                   min_el: float) -> _DesignWindow:
+    """Sun positions over the design window, computed once per site, date and window.
+
+    The study lays out rows for several option planes on the same design day;
+    the solar noon, the samples and the exact crossings of ``min_el`` do not
+    depend on the rows' tilt or azimuth (Reda & Andreas 2008, NREL/TP-560-34302,
+    for the positions and the noon, through pvlib).
+    """
+    ev = sun_events(site, [day]).table.iloc[0]
+    noon = pd.Timestamp(ev["solar_noon"]).tz_convert(site.timezone)
+    sun = _Sun(site, noon.tz_convert("UTC"))
+    half_s = half * 3600.0
+    n = max(int(math.ceil(2.0 * half * 60.0 / step)), 2) + 1
+    grid = np.linspace(-half_s, half_s, n)
+    el, saz = sun(grid)
+
+    # exact crossings of the minimum elevation between samples
+    def above(s):
+        return float(sun([s])[0][0]) - min_el
+
+    g = el - min_el
+    crossings = [brentq(above, grid[i], grid[i + 1], xtol=1e-3)
+                 for i in np.flatnonzero(np.sign(g[:-1]) * np.sign(g[1:]) < 0)]
+    offs = np.sort(np.concatenate([grid, np.asarray(crossings, dtype=float)]))
+    el_o, saz_o = sun(offs) if crossings else (el, saz)
+    for a in (grid, el, saz, offs, el_o, saz_o):
+        a.setflags(write=False)
+    return _DesignWindow(ev, noon, sun, grid, el, saz, offs, el_o, saz_o)
+
+
 def row_layout(site: Site, tilt_deg: float, azimuth_deg: float | None = None, *,
                collector_length_m: float = 1.0, design_date=None, half_width_h: float = 3.0,
                step_min: float = 5.0,
@@ -425,13 +482,10 @@ def row_layout(site: Site, tilt_deg: float, azimuth_deg: float | None = None, *,
         day = local_date(design_date, "design_date", "2023-12-21", site.timezone)
         rule = "given by the user"
 
-    ev = sun_events(site, [day]).table.iloc[0]
-    noon = pd.Timestamp(ev["solar_noon"]).tz_convert(site.timezone)
-    sun = _Sun(site, noon.tz_convert("UTC"))
+    win = _design_window(site, day, half, step, min_el)
+    ev, noon, sun, el, saz = win.events, win.noon, win.sun, win.el, win.saz
+    grid = win.grid
     half_s = half * 3600.0
-    n = max(int(math.ceil(2.0 * half * 60.0 / step)), 2) + 1
-    grid = np.linspace(-half_s, half_s, n)
-    el, saz = sun(grid)
     start, end = noon - pd.Timedelta(seconds=half_s), noon + pd.Timedelta(seconds=half_s)
     where = (f"design window {day.date().isoformat()} {start.strftime('%H:%M')}-"
              f"{end.strftime('%H:%M')} ({site.timezone}) at latitude {site.latitude_deg:g} deg")
@@ -453,17 +507,7 @@ def row_layout(site: Site, tilt_deg: float, azimuth_deg: float | None = None, *,
         raise ValueError(f"{where}: the sun is never in front of rows facing azimuth {az:g} "
                          f"deg while at least {min_el:g} deg high, so the rows cast no beam "
                          "shadow on each other's lit faces; choose another design_date")
-
-    # exact crossings of the minimum elevation between samples
-    def above(s):
-        return float(sun([s])[0][0]) - min_el
-
-    g = el - min_el
-    crossings = [brentq(above, grid[i], grid[i + 1], xtol=1e-3)
-                 for i in np.flatnonzero(np.sign(g[:-1]) * np.sign(g[1:]) < 0)]
-    offs = np.sort(np.concatenate([grid, np.asarray(crossings, dtype=float)]))
-    if crossings:
-        el, saz = sun(offs)
+    offs, el, saz = win.offsets, win.el_offsets, win.saz_offsets
     # the crossings are found to 1 ms, where the elevation changes by < 1e-5 deg
     usable = (el >= min_el - 1e-5) & front(saz)
     pitch = np.where(usable, shadow_pitch_m(tilt, az, el, saz, length), -np.inf)

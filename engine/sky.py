@@ -18,7 +18,8 @@ import pvlib
 
 from .geometry import azimuth_north_to_south_based, incidence_coefficients
 from .site import Site
-from .sun import daily_declination_eot, earth_sun_distance_au, site_pressure_pa
+from .solarpos import earth_sun_distance_au, site_pressure_pa
+from .sun import daily_declination_eot
 from .timegrid import REFERENCE_YEAR
 
 #: Default solar constant, W/m². Kopp, G. & Lean, J. L. (2011). A new, lower
@@ -342,7 +343,7 @@ def clear_sky(times: pd.DatetimeIndex, position: pd.DataFrame, site: Site,
     times : pandas.DatetimeIndex
         Instants (timezone-aware).
     position : pandas.DataFrame
-        Sun position at ``times`` (:func:`tiltyard.engine.sun.solar_position`).
+        Sun position at ``times`` (:func:`tiltyard.engine.solarpos.solar_position`).
     site : Site
         Site; its elevation always enters (pressure, altitude).
     model : {"ineichen", "simplified_solis", "haurwitz"}

@@ -13,7 +13,7 @@
 - a table of those events on the 21st of each month.
 
 Positions come from the NREL Solar Position Algorithm (Reda & Andreas 2008,
-NREL/TP-560-34302) through :mod:`tiltyard.engine.sun`. Azimuth is degrees
+NREL/TP-560-34302) through :mod:`tiltyard.engine.solarpos`. Azimuth is degrees
 clockwise from true north in both hemispheres. Every timestamp is timezone-aware
 in the site's zone (local clock time); each also comes as an hour of the day in
 the chosen basis, for display.
@@ -31,14 +31,9 @@ import pandas as pd
 
 from .horizon import merged_profile, site_horizon_deg
 from .site import Site
-from .sun import (
-    RISE_SET_ELEVATION_DEG,
-    day_path,
-    hour_lines,
-    solar_position,
-    standard_path_dates,
-    sun_events,
-)
+from .solarpos import RISE_SET_ELEVATION_DEG, solar_position
+from .sun import day_path, hour_lines, standard_path_dates
+from .sunevents import sun_events
 from .timegrid import TIME_BASES, apparent_solar_time_h, local_date, standard_timezone
 from .words import day_month
 
@@ -418,7 +413,7 @@ def monthly_events(site: Site, year: int, basis: str = "clock") -> pd.DataFrame:
     ----------
     Reda & Andreas (2008), NREL/TP-560-34302, App. A.2 (sunrise, transit,
     sunset with the sun's centre at -0.8333°), through
-    :func:`tiltyard.engine.sun.sun_events`.
+    :func:`tiltyard.engine.sunevents.sun_events`.
     """
     _check_basis(basis)
     dates = [pd.Timestamp(int(year), m, 21) for m in range(1, 13)]

@@ -167,7 +167,7 @@ def apparent_solar_time_h(times_utc: pd.DatetimeIndex, longitude_deg: float,
         Site longitude, east positive.
     equation_of_time_min : array_like
         Equation of time at those instants, minutes (apparent minus mean solar
-        time), for example from :func:`tiltyard.engine.sun.solar_position`.
+        time), for example from :func:`tiltyard.engine.solarpos.solar_position`.
 
     Returns
     -------

@@ -10,6 +10,7 @@ from dataclasses import dataclass, field, fields
 import numpy as np
 import pandas as pd
 
+from ..manyplane import sum_by_month
 from ..site import MOUNTINGS
 from ..skyyear import IrradianceOptions
 from ..words import MIN_TILT_DEFAULT_DEG
@@ -265,7 +266,5 @@ def _score_monthly(monthly: np.ndarray, opts: StudyOptions, active=None) -> np.n
     return monthly[idx].sum(axis=0)
 
 
-def _monthly_from_daily(daily: np.ndarray, month_of_day: np.ndarray) -> np.ndarray:
-    out = np.zeros((12,) + daily.shape[1:])
-    np.add.at(out, month_of_day - 1, daily)
-    return out
+#: Monthly totals of daily values (``(n_days, ...)`` -> ``(12, ...)``).
+_monthly_from_daily = sum_by_month

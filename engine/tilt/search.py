@@ -5,12 +5,11 @@ a non-separable objective; MM-DD dates and day indices. No sky, no site.
 
 from __future__ import annotations
 
+import functools
 import itertools
 
 import numpy as np
 import pandas as pd
-
-from .options import _monthly_from_daily, _score_monthly
 
 
 def _mmdd(year: int, day_index: int) -> str:
@@ -81,17 +80,54 @@ def _two_period_exhaustive(cum, n_days, min_days):
     return best_sw, tilts, total
 
 
-def _k_period_search(cum, n_days, k, min_days, lattice=14):
-    """K switch days: exhaustive on a lattice, then refined to the day."""
+@functools.lru_cache(maxsize=8)
+def _lattice_combos(n_days: int, k: int, lattice: int, min_days: int) -> np.ndarray:
+    """Sorted k-combinations of the lattice days (as indices into the lattice), in
+    ``itertools.combinations`` order, with every cyclic gap at least ``min_days``."""
     grid = np.arange(0, n_days, lattice)
-    best_total, best_sw = -np.inf, None
-    for combo in itertools.combinations(grid.tolist(), k):
-        gaps = np.diff(list(combo) + [combo[0] + n_days])
-        if gaps.min() < min_days:
-            continue
-        _, tot = _best_tilts_separable(cum, combo, n_days)
-        if tot > best_total:
-            best_total, best_sw = tot, list(combo)
+    combos = np.array(list(itertools.combinations(range(grid.size), k)), dtype=np.intp)
+    days = grid[combos]
+    gaps = np.diff(np.concatenate([days, days[:, :1] + n_days], axis=1), axis=1)
+    out = combos[gaps.min(axis=1) >= min_days]
+    out.setflags(write=False)
+    return out
+
+
+def _lattice_totals(cum, grid, combos, n_days):
+    """:func:`_best_tilts_separable`'s total for each row of ``combos`` (sorted indices
+    into the lattice days ``grid``), all rows at once.
+
+    The best segment sum between every pair of lattice days is tabled once, with the
+    same arithmetic (``cum[b] - cum[a]`` forward, ``(cum[n] - cum[a]) + cum[b]`` round
+    the year's end, the maximum over the tilts), and the periods' maxima are added in
+    the same order, so each total equals the one-by-one value bit for bit.
+    """
+    c = cum[grid]                                           # (g, n_tilts)
+    forward = (c[None, :, :] - c[:, None, :]).max(axis=2)   # [a, b]: from a to b
+    wrap = ((cum[n_days][None, None, :] - c[:, None, :]) + c[None, :, :]).max(axis=2)
+    k = combos.shape[1]
+    total = np.zeros(combos.shape[0])
+    for i in range(k):
+        a, b = combos[:, i], combos[:, (i + 1) % k]
+        total = total + (forward[a, b] if i < k - 1 else wrap[a, b])
+    return total
+
+
+def _k_period_search(cum, n_days, k, min_days, lattice=14):
+    """K switch days: exhaustive on a lattice, then refined to the day.
+
+    Every lattice combination is scored at once (:func:`_lattice_totals`); the
+    first best, in the order of ``itertools.combinations``, is kept, as a loop
+    keeping only strictly better totals would.
+    """
+    grid = np.arange(0, n_days, lattice)
+    combos = _lattice_combos(n_days, k, lattice, min_days)
+    best_sw = None
+    best_total = -np.inf
+    if combos.shape[0]:
+        totals = _lattice_totals(cum, grid, combos, n_days)
+        i = int(np.argmax(totals))
+        best_total, best_sw = float(totals[i]), grid[combos[i]].tolist()
     improved = True
     while improved:
         improved = False
@@ -114,28 +150,81 @@ def _k_period_search(cum, n_days, k, min_days, lattice=14):
     return best_sw, tilts, total
 
 
+def _day_tilts(switches, tilt_idx, n_days) -> np.ndarray:
+    """Each day's tilt column under a schedule (see :func:`_schedule_daily`)."""
+    out = np.empty(n_days, dtype=np.intp)
+    for (a, b), t in zip(_periods_from_switches(switches, n_days), tilt_idx, strict=True):
+        if b > a:
+            out[a:b] = t
+        else:
+            out[a:] = t
+            out[:b] = t
+    return out
+
+
+def _schedule_scores(monthly_rows: np.ndarray, opts, active=None) -> np.ndarray:
+    """:func:`_score_monthly` of each schedule, from ``(n, 12)`` monthly rows.
+
+    Bit for bit what ``_score_monthly`` gives for each schedule alone as a
+    ``(12, 1)`` column: numpy sums a contiguous run of values pairwise, and each
+    row here is one contiguous run, as that column is.
+    """
+    if opts.objective == "annual":
+        return monthly_rows.sum(axis=1)
+    if opts.objective == "worst-month":
+        act = np.ones(12, dtype=bool) if active is None else np.asarray(active, dtype=bool)
+        return monthly_rows[:, act].min(axis=1) + 1e-6 * monthly_rows.sum(axis=1)
+    idx = np.asarray(sorted({int(m) for m in opts.months})) - 1
+    return np.ascontiguousarray(monthly_rows[:, idx]).sum(axis=1)
+
+
 def _improve_for_objective(daily, switches, tilts, month_of_day, opts, n_days, min_days,
                            active=None):
-    """Local search on tilts and switch days for a non-separable objective."""
+    """Local search on tilts and switch days for a non-separable objective.
+
+    Greedy: each period's tilt in turn, then each switch day moved by 1, 3 or 7
+    days either way, keeping any strictly better schedule, until nothing
+    improves. The tilts of one period are scored together (the other periods
+    stay as they are while that period's tilt is tried), then accepted in the
+    order a one-by-one scan would.
+    """
+    daily = np.asarray(daily, dtype=float)
+    month = np.asarray(month_of_day, dtype=np.intp) - 1
+    rows = np.arange(n_days)
+    n_t = daily.shape[1]
+
     def score(sw, tl):
-        d = _schedule_daily(daily, sw, tl, n_days)
-        return float(_score_monthly(_monthly_from_daily(d[:, None], month_of_day), opts,
-                                    active)[0])
+        d = daily[rows, _day_tilts(sw, tl, n_days)]
+        m = np.bincount(month, weights=d, minlength=12)
+        return float(_schedule_scores(m[None, :], opts, active)[0])
+
+    def scores_of_period(sw, tl, p):
+        """Scores with period ``p`` at every tilt column, the others as in ``tl``."""
+        day_t = _day_tilts(sw, tl, n_days)
+        a, b = _periods_from_switches(sw, n_days)[p]
+        in_p = np.zeros(n_days, dtype=bool)
+        in_p[_period_days(a, b, n_days)] = True
+        base = daily[rows, day_t]
+        monthly = np.empty((n_t, 12))
+        for t in range(n_t):
+            monthly[t] = np.bincount(month, weights=np.where(in_p, daily[:, t], base),
+                                     minlength=12)
+        return _schedule_scores(monthly, opts, active)
 
     best = score(switches, tilts)
     sw, tl = list(switches), list(tilts)
     improved = True
-    n_t = daily.shape[1]
     while improved:
         improved = False
         for p in range(len(tl)):
+            v_all = scores_of_period(sw, tl, p)
             for t in range(n_t):
                 if t == tl[p]:
                     continue
-                trial = tl.copy()
-                trial[p] = t
-                v = score(sw, trial)
+                v = float(v_all[t])
                 if v > best + 1e-12:
+                    trial = tl.copy()
+                    trial[p] = t
                     best, tl, improved = v, trial, True
         for i in range(len(sw)):
             for delta in (-7, -3, -1, 1, 3, 7):

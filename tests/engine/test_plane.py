@@ -20,7 +20,7 @@ from tiltyard.engine.jobs import IrradianceOptions, irradiance_year
 from tiltyard.engine.plane import TRANSPOSITION_MODELS, poa_components
 from tiltyard.engine.site import HorizonProfile, Site
 from tiltyard.engine.sky import clear_sky, extraterrestrial_normal
-from tiltyard.engine.sun import solar_position
+from tiltyard.engine.solarpos import solar_position
 
 OUT_COLUMNS = ("poa_global", "poa_direct", "poa_sky_diffuse", "poa_ground_diffuse")
 

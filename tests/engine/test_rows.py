@@ -27,7 +27,8 @@ from tiltyard.engine.rows import (
     shadow_pitch_m,
 )
 from tiltyard.engine.site import Site
-from tiltyard.engine.sun import solar_position, sun_events
+from tiltyard.engine.solarpos import solar_position
+from tiltyard.engine.sunevents import sun_events
 
 TURIN = Site("open field 45N", 45.0, 7.0, 300.0, "Europe/Rome")
 STOCKHOLM = Site("roof 59N", 59.33, 18.07, 20.0, "Europe/Stockholm")

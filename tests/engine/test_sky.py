@@ -35,7 +35,8 @@ from tiltyard.engine.sky import (
     extraterrestrial_on_plane,
     linke_turbidity,
 )
-from tiltyard.engine.sun import daily_declination_eot, earth_sun_distance_au, solar_position
+from tiltyard.engine.solarpos import earth_sun_distance_au, solar_position
+from tiltyard.engine.sun import daily_declination_eot
 
 J_PER_KWH = 3.6e6
 YEAR = 2023  # the reference year of tiltyard.engine.timegrid

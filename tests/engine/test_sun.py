@@ -6,16 +6,15 @@ import pytest
 
 from tiltyard.engine.plane import angle_of_incidence
 from tiltyard.engine.site import HorizonProfile, Site
+from tiltyard.engine.solarpos import RISE_SET_ELEVATION_DEG, solar_position
 from tiltyard.engine.sun import (
-    RISE_SET_ELEVATION_DEG,
     daily_declination_eot,
     day_path,
     hour_lines,
     season_dates,
-    solar_position,
     standard_path_dates,
-    sun_events,
 )
+from tiltyard.engine.sunevents import sun_events
 
 # Reda & Andreas, Solar Position Algorithm for Solar Radiation Applications,
 # NREL/TP-560-34302 (2008 revision), Table A5.1 worked example.

@@ -25,7 +25,8 @@ import pytest
 from scipy.optimize import brentq
 
 from tiltyard.engine.site import Site
-from tiltyard.engine.sun import RISE_SET_ELEVATION_DEG, sun_events
+from tiltyard.engine.solarpos import RISE_SET_ELEVATION_DEG
+from tiltyard.engine.sunevents import sun_events
 
 skyfield_api = pytest.importorskip("skyfield.api")
 skyfield_data = pytest.importorskip("skyfield_data")

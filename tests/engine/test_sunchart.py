@@ -9,8 +9,10 @@ import pytest
 from tiltyard.engine.demo_sites import load_demo
 from tiltyard.engine.horizon import site_horizon_deg
 from tiltyard.engine.site import HorizonProfile, Site
-from tiltyard.engine.sun import RISE_SET_ELEVATION_DEG, standard_path_dates, sun_events
+from tiltyard.engine.solarpos import RISE_SET_ELEVATION_DEG
+from tiltyard.engine.sun import standard_path_dates
 from tiltyard.engine.sunchart import basis_hours, horizon_crossings, monthly_events, sun_chart
+from tiltyard.engine.sunevents import sun_events
 
 
 def _rise_hour_angle_deg(lat_deg: float, decl_deg: float, h0_deg: float = -0.8333) -> float:

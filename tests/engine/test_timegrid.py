@@ -7,7 +7,8 @@ import pytest
 from tiltyard.engine.demo_sites import load_demo
 from tiltyard.engine.jobs import IrradianceOptions, irradiance_year
 from tiltyard.engine.site import Site
-from tiltyard.engine.sun import evaluation_points, solar_position
+from tiltyard.engine.solarpos import solar_position
+from tiltyard.engine.sun import evaluation_points
 from tiltyard.engine.timegrid import (
     REFERENCE_YEAR,
     STEPS_MIN,
@@ -63,7 +64,7 @@ def test_standard_and_clock_display():
 
 def test_apparent_solar_time_is_noon_at_transit():
     site = Site("solar time", 40.0, -75.0, 0.0, "America/New_York")
-    from tiltyard.engine.sun import sun_events
+    from tiltyard.engine.sunevents import sun_events
     ev = sun_events(site, ["2023-02-11", "2023-11-03"]).table
     t = pd.DatetimeIndex(ev["solar_noon"]).tz_convert("UTC")
     eot = solar_position(t, site)["equation_of_time"].to_numpy()

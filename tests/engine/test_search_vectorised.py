@@ -1,0 +1,106 @@
+"""The vectorised schedule search gives the schedules a one-by-one scan gives.
+
+The references here are the plain loops (every lattice combination scored by
+``_best_tilts_separable``; the local search trying one tilt at a time, each month
+summed with ``np.add.at``). The inputs are smooth synthetic daily tables; what is
+checked is that two ways of computing agree, not any value of them.
+"""
+
+import itertools
+from types import SimpleNamespace
+
+import numpy as np
+import pytest
+
+from tiltyard.engine.manyplane import sum_by_month
+from tiltyard.engine.tilt import search
+from tiltyard.engine.tilt.options import _score_monthly
+
+N_DAYS = 365
+MONTH = np.repeat(np.arange(1, 13), [31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31])
+
+
+def _daily(seed, n_t=46):
+    rng = np.random.default_rng(seed)
+    doy = np.arange(N_DAYS)
+    opt = rng.uniform(10, 40) + 20 * np.cos(2 * np.pi * (doy + 10) / N_DAYS)
+    tilts = np.arange(n_t) * 2.0
+    return 6 - 0.002 * (tilts[None, :] - opt[:, None]) ** 2 + rng.normal(0, 0.01, (N_DAYS, n_t))
+
+
+@pytest.mark.parametrize("shape", [(N_DAYS,), (N_DAYS, 1), (N_DAYS, 3), (N_DAYS, 200)])
+def test_sum_by_month_is_add_at_bit_for_bit(shape):
+    d = np.random.default_rng(1).random(shape) * 7
+    ref = np.zeros((12,) + shape[1:])
+    np.add.at(ref, MONTH - 1, d)
+    np.testing.assert_array_equal(sum_by_month(d, MONTH), ref)
+
+
+@pytest.mark.parametrize("seed", [0, 1, 2])
+def test_lattice_totals_match_the_loop(seed):
+    daily = _daily(seed)
+    cum = np.vstack([np.zeros(daily.shape[1]), np.cumsum(daily, axis=0)])
+    grid = np.arange(0, N_DAYS, 14)
+    best, best_sw = -np.inf, None
+    for combo in itertools.combinations(grid.tolist(), 4):
+        if np.diff(list(combo) + [combo[0] + N_DAYS]).min() < 30:
+            continue
+        _, tot = search._best_tilts_separable(cum, combo, N_DAYS)
+        if tot > best:
+            best, best_sw = tot, list(combo)
+    combos = search._lattice_combos(N_DAYS, 4, 14, 30)
+    totals = search._lattice_totals(cum, grid, combos, N_DAYS)
+    i = int(np.argmax(totals))
+    assert grid[combos[i]].tolist() == best_sw
+    assert totals[i] == best
+
+
+def _improve_one_by_one(daily, switches, tilts, opts, min_days, active):
+    def score(sw, tl):
+        d = search._schedule_daily(daily, sw, tl, N_DAYS)
+        m = np.zeros((12, 1))
+        np.add.at(m, MONTH - 1, d[:, None])
+        return float(_score_monthly(m, opts, active)[0])
+
+    best, sw, tl = score(switches, tilts), list(switches), list(tilts)
+    improved = True
+    while improved:
+        improved = False
+        for p in range(len(tl)):
+            for t in range(daily.shape[1]):
+                if t == tl[p]:
+                    continue
+                trial = tl.copy()
+                trial[p] = t
+                v = score(sw, trial)
+                if v > best + 1e-12:
+                    best, tl, improved = v, trial, True
+        for i in range(len(sw)):
+            for delta in (-7, -3, -1, 1, 3, 7):
+                trial = sw.copy()
+                trial[i] = (trial[i] + delta) % N_DAYS
+                srt = sorted(trial)
+                if len(set(srt)) < len(srt) or np.diff(srt + [srt[0] + N_DAYS]).min() < min_days:
+                    continue
+                order = np.argsort(trial)
+                v = score(srt, [tl[j] for j in order])
+                if v > best + 1e-12:
+                    best, sw, tl, improved = v, srt, [tl[j] for j in order], True
+    return sw, tl
+
+
+@pytest.mark.parametrize("objective,months", [("worst-month", ()), ("annual", ()),
+                                              ("months", (11, 12, 1, 2, 3, 4, 5, 6, 7))])
+def test_local_search_matches_one_by_one(objective, months):
+    opts = SimpleNamespace(objective=objective, months=months)
+    for seed in (3, 4):
+        daily = _daily(seed)
+        cum = np.vstack([np.zeros(daily.shape[1]), np.cumsum(daily, axis=0)])
+        sw, tl, _ = search._k_period_search(cum, N_DAYS, 4, 30)
+        active = np.ones(12, dtype=bool)
+        active[seed] = False
+        want = _improve_one_by_one(daily, sw, tl, opts, 30, active)
+        got = search._improve_for_objective(daily, sw, tl, MONTH, opts, N_DAYS, 30, active)
+        assert (list(got[0]), list(got[1])) == (list(want[0]), list(want[1]))
+        if objective == "worst-month":      # the search has moved the schedule
+            assert (list(got[0]), list(got[1])) != (list(sw), list(tl))
