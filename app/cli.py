@@ -24,8 +24,15 @@ from .cli_args import (  # noqa: F401 (the command line's public names live on h
 )
 from .cli_commands import cmd_irradiance, cmd_sheet, cmd_sites, cmd_study, cmd_sun
 
+
+def cmd_batch(args) -> int:
+    from .cli_batch import cmd_batch as run
+
+    return run(args)
+
+
 COMMANDS = {"sites": cmd_sites, "sun": cmd_sun, "irradiance": cmd_irradiance,
-            "study": cmd_study, "sheet": cmd_sheet}
+            "study": cmd_study, "sheet": cmd_sheet, "batch": cmd_batch}
 
 
 def main(argv: list[str] | None = None) -> int:

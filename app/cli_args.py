@@ -155,6 +155,9 @@ def build_parser() -> argparse.ArgumentParser:
                    help="write the study as JSON (the document of 'tiltyard study --json')")
     _add_sky_options(s)
     _add_study_options(s)
+    from .cli_batch import add_batch_parser
+
+    add_batch_parser(sub, _add_sky_options, _add_study_options)
     for sp in sub.choices.values():      # --verbose works after the subcommand too
         sp.add_argument("--verbose", action="store_true", default=argparse.SUPPRESS,
                         help="show the full traceback of an internal fault")
@@ -375,7 +378,12 @@ def _assessment(args, study: bool = True):
     """The SITE argument's assessment with the command line's flags applied."""
     from tiltyard.engine.assessment import resolve_assessment
 
-    a = resolve_assessment(args.site)
+    return with_flags(args, resolve_assessment(args.site), study)
+
+
+def with_flags(args, a, study: bool = True):
+    """``a`` with the command line's sky, model (and study) flags applied; flags left out
+    keep its own settings. The batch applies them to every site this way."""
     try:
         changes = _sky_changes(args, a)
         changes.update(_model_changes(args))
