@@ -102,19 +102,17 @@ class _Progress:
 
     def __call__(self, state) -> None:
         if self.bar is not None:
-            if state.skipped and self.bar.n == 0:
-                self.bar.update(state.skipped)
-            self.bar.update(state.skipped + state.done - self.bar.n)
             self.bar.set_postfix(failed=state.failed, refresh=False)
+            self.bar.update(state.finished - self.bar.n)
             return
         if self.every and (state.done - self._last >= self.every
-                           or state.done + state.skipped == state.total):
+                           or state.finished == state.total):
             self._last = state.done
-            left = state.total - state.skipped - state.done
+            left = state.total - state.finished
             rate = state.rate_per_s
             eta = f"{left / rate:.0f} s" if rate > 0 else "-"
-            self.stream.write(f"tiltyard batch: {state.done + state.skipped}/{state.total} "
-                              f"sites, {state.failed} failed, {rate:.2f} sites/s, ETA {eta}\n")
+            self.stream.write(f"tiltyard batch: {state.finished}/{state.total} sites, "
+                              f"{state.failed} failed, {rate:.2f} sites/s, ETA {eta}\n")
             self.stream.flush()
 
     def close(self) -> None:

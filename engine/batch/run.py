@@ -387,6 +387,7 @@ class BatchProgress:
     skipped: int = 0
     done: int = 0
     failed: int = 0
+    refused: int = 0
     started: float = field(default_factory=time.perf_counter)
 
     @property
@@ -394,7 +395,13 @@ class BatchProgress:
         return time.perf_counter() - self.started
 
     @property
+    def finished(self) -> int:
+        """Sites accounted for: skipped, refused on reading, and run."""
+        return self.skipped + self.refused + self.done
+
+    @property
     def rate_per_s(self) -> float:
+        """Sites run a second."""
         return self.done / self.elapsed_s if self.elapsed_s > 0 else 0.0
 
 
@@ -471,7 +478,7 @@ def run_batch(jobs: list, input_errors: list, output, max_planes: int, *, worker
     todo = [j for j in jobs if j.inputs_hash not in done]
     skipped = len(jobs) - len(todo)
     state = BatchProgress(total=len(jobs) + len(input_errors), skipped=skipped,
-                          done=0, failed=len(input_errors))
+                          failed=len(input_errors), refused=len(input_errors))
     errors = list(input_errors)
     peaks: dict = {}
     buffer: list = []
