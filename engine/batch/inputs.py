@@ -111,7 +111,7 @@ class _Reader:
         shown = "" if value is None else (value if isinstance(value, str) else repr(value))
         self.errors.append(RowError(line, source, column, shown, reason))
 
-    def add(self, line: int, source: str, d: dict, column_of, key_id):
+    def add(self, line: int, source: str, d: dict, column_of, key_id, raw=None):
         notes = ()
         tz = d.get("timezone")
         if tz is None or (isinstance(tz, str) and not tz.strip()):
@@ -126,7 +126,10 @@ class _Reader:
             site = site_from_dict(d)
             a = Assessment(site)
         except SiteError as err:
-            self.error(line, source, column_of(err.field), err.value, err.reason)
+            column = column_of(err.field)
+            shown = (raw or {}).get(column)            # the cell as typed
+            self.error(line, source, column, err.value if shown is None else shown,
+                       err.reason)
             return
         self.rows.append(BatchRow(line, source, _key(key_id, site), a, notes))
 
@@ -264,9 +267,10 @@ def read_csv(path: Path) -> Portfolio:
                     continue
                 values = {n: _value(n, cells[i] if i < len(cells) else None)
                           for i, n in enumerate(names)}
+                raw = {n: cells[i].strip() for i, n in enumerate(names) if i < len(cells)}
                 reader_out.add(start, path.name, _site_dict(values),
                                lambda f, planes=planes: _column_of_field(f, planes),
-                               values.get("id"))
+                               values.get("id"), raw)
     except UnicodeDecodeError as err:
         raise PortfolioError(f"{path}: not UTF-8 text ({err.reason} at byte {err.start}); "
                              "save the CSV as UTF-8") from None
