@@ -15,8 +15,13 @@ mounting does not allow the option.
 
 from __future__ import annotations
 
+import json
+from dataclasses import dataclass
+
+from ..assessment import Assessment, assessment_document, assessment_from_dict
 from ..cautions import CAUTION
 from ..exports import input_digest, weakest_month
+from ..site import site_from_dict
 from ..tilt import OPTION_KINDS
 from ..words import schedule_code
 
@@ -38,7 +43,8 @@ OPTION_FIELDS = (("annual_kwh_m2", "float"), ("weakest_month", "float"),
                  ("weakest_month_kwh_m2", "float"), ("gain_vs_horizontal_pct", "float"),
                  ("gain_vs_best_plane_pct", "float"), ("kwh_kwp", "float"),
                  ("schedule", "str"))
-TAIL_COLUMNS = (("warnings", "str"), ("inputs_hash", "str"), ("caution", "str"))
+TAIL_COLUMNS = (("warnings", "str"), ("inputs_hash", "str"), ("caution", "str"),
+                ("site_file", "str"))
 #: Columns of RESULTS.errors.csv.
 ERROR_COLUMNS = ("line", "source", "field", "value", "reason")
 #: Option kinds other than the site's planes, in the study's order.
@@ -116,9 +122,86 @@ def result_row(result, key: dict, notes=()) -> dict:
                     f"{p}_kwh_kwp": yields.get((r["label"], r["kind"])),
                     f"{p}_schedule": schedule_code(r["schedule"])})
     warnings = list(notes) + list(result.weather_warnings) + list(d["warnings"])
-    row.update(warnings=" | ".join(warnings), inputs_hash=inputs_hash(result), caution=CAUTION)
+    row.update(warnings=" | ".join(warnings), inputs_hash=inputs_hash(result), caution=CAUTION,
+               site_file=json.dumps(assessment_document(result.assessment),
+                                    separators=(",", ":"), ensure_ascii=False))
     return row
 
 
+def row_assessment(row) -> Assessment:
+    """The assessment a results row was made from (its ``site_file`` column: the whole site
+    file, settings included), to open that site on its own."""
+    d = json.loads(row["site_file"])
+    return assessment_from_dict(d.get("assessment"), site_from_dict(d))
+
+
+def read_results(path):
+    """A results file (CSV or Parquet) as a DataFrame, each column typed as the batch wrote
+    it (text columns as text, empty cells as empty text)."""
+    import pandas as pd
+
+    path = str(path)
+    if path.lower().endswith(".parquet"):
+        df = pd.read_parquet(path)
+    else:
+        df = pd.read_csv(path, keep_default_na=False, na_values=[""], dtype=str)
+    return typed_frame(df, result_columns(_planes_in(df.columns)), keep_extra=True)
+
+
+def typed_frame(df, columns: tuple, keep_extra: bool = False):
+    """``df`` with the results ``columns`` (name, kind) in order and typed: ``int`` as
+    nullable integers, ``float`` as float64, ``str`` as text with empty cells as ``""``;
+    columns missing from ``df`` come empty. ``keep_extra`` keeps other columns (as text)."""
+    import pandas as pd
+
+    names = [c for c, _ in columns]
+    extra = [c for c in df.columns if c not in names] if keep_extra else []
+    df = df.reindex(columns=names + extra)
+    for name, kind in list(columns) + [(c, "str") for c in extra]:
+        if kind == "int":
+            df[name] = pd.to_numeric(df[name], errors="coerce").astype("Int64")
+        elif kind == "float":
+            df[name] = pd.to_numeric(df[name], errors="coerce").astype("float64")
+        else:
+            df[name] = df[name].astype(object).where(df[name].notna(), "").astype(str)
+    return df
+
+
+def _planes_in(names) -> int:
+    import re
+
+    numbers = [int(m.group(1)) for n in names if (m := re.match(r"^plane(\d+)_", n))]
+    return max(numbers, default=0)
+
+
+@dataclass(frozen=True)
+class PortfolioSummary:
+    """A results file read for a table and a chart: the rows, and the distribution of the
+    best-plane annual irradiation (``fixed_optimal_annual_kwh_m2``), kWh/m²."""
+
+    path: str
+    frame: object
+    counts: tuple
+    edges_kwh_m2: tuple
+    sites: int
+
+
+def portfolio_summary(path, bins: int = 20) -> PortfolioSummary:
+    """:func:`read_results` and the histogram of the best-plane irradiation (a module-level
+    function: the app reads a results file in a worker process)."""
+    import numpy as np
+
+    df = read_results(path)
+    values = df["fixed_optimal_annual_kwh_m2"].dropna().to_numpy(dtype=float) \
+        if "fixed_optimal_annual_kwh_m2" in df else np.array([])
+    if len(values):
+        counts, edges = np.histogram(values, bins=bins)
+    else:
+        counts, edges = np.array([], dtype=int), np.array([])
+    return PortfolioSummary(str(path), df, tuple(int(c) for c in counts),
+                            tuple(float(e) for e in edges), len(df))
+
+
 __all__ = ["ERROR_COLUMNS", "KEY_COLUMNS", "OPTION_FIELDS", "SITE_COLUMNS", "TAIL_COLUMNS",
-           "inputs_hash", "option_prefix", "result_columns", "result_row"]
+           "PortfolioSummary", "inputs_hash", "option_prefix", "portfolio_summary",
+           "read_results", "result_columns", "result_row", "row_assessment", "typed_frame"]

@@ -25,7 +25,7 @@ from pathlib import Path
 from ..assessment import Assessment
 from ..atomic_files import atomic_file, remove_stale_temps_in, write_bytes_atomically
 from .inputs import RowError
-from .results import ERROR_COLUMNS, inputs_hash, result_columns, result_row
+from .results import ERROR_COLUMNS, inputs_hash, result_columns, result_row, typed_frame
 
 #: Results per chunk file (a kill loses at most this many finished sites).
 DEFAULT_CHUNK_SIZE = 50
@@ -232,22 +232,11 @@ def _is_parquet(path) -> bool:
 def _frame(rows: list, columns: tuple):
     import pandas as pd
 
-    df = pd.DataFrame(rows).reindex(columns=[c for c, _ in columns])
-    return _typed(df, columns)
+    return typed_frame(pd.DataFrame(rows), columns)
 
 
 def _typed(df, columns: tuple):
-    import pandas as pd
-
-    df = df.reindex(columns=[c for c, _ in columns])
-    for name, kind in columns:
-        if kind == "int":
-            df[name] = pd.to_numeric(df[name], errors="coerce").astype("Int64")
-        elif kind == "float":
-            df[name] = pd.to_numeric(df[name], errors="coerce").astype("float64")
-        else:
-            df[name] = df[name].astype(object).where(df[name].notna(), "").astype(str)
-    return df
+    return typed_frame(df, columns)
 
 
 def _frame_bytes(df, parquet: bool) -> bytes:

@@ -13,7 +13,12 @@ import pytest
 from tiltyard.engine.assess import assess
 from tiltyard.engine.assessment import Assessment, demo_assessment
 from tiltyard.engine.batch.inputs import PortfolioError, read_portfolio
-from tiltyard.engine.batch.results import result_columns
+from tiltyard.engine.batch.results import (
+    portfolio_summary,
+    read_results,
+    result_columns,
+    row_assessment,
+)
 from tiltyard.engine.batch.run import (
     chunk_folder,
     errors_path,
@@ -219,6 +224,12 @@ def test_results_are_the_single_site_figures(tmp_path, name):
     assert row["recommended_kwh_kwp"] == yields[row["recommended_kind"]]
     assert pd.isna(row["two_season_annual_kwh_m2"])          # a flush roof: not allowed
     assert "not a design" in row["caution"]
+    # the row opens as the site it was made from (the app's double-click)
+    assert planned_hash(row_assessment(row)) == row["inputs_hash"]
+    typed = read_results(tmp_path / name)
+    assert typed["two_season_schedule"].tolist() == [""]
+    summary_ = portfolio_summary(tmp_path / name, bins=4)
+    assert sum(summary_.counts) == 1 and len(summary_.edges_kwh_m2) == 5
     assert not chunk_folder(tmp_path / name).exists()
     assert errors_path(tmp_path / name).read_text(encoding="utf-8").splitlines() == [
         "line,source,field,value,reason"]
@@ -274,5 +285,5 @@ def test_a_row_the_basis_refuses_and_a_repeated_row_are_errors(tmp_path):
 def test_result_columns_are_fixed_by_the_most_planes():
     names = [c for c, _ in result_columns(2)]
     assert "plane2_annual_kwh_m2" in names and "plane3_annual_kwh_m2" not in names
-    assert names[:4] == ["line", "source", "id", "name"] and names[-1] == "caution"
+    assert names[:4] == ["line", "source", "id", "name"] and names[-1] == "site_file"
     assert len(names) == len(set(names))
