@@ -95,8 +95,10 @@ class _Progress:
         self.bar = None
         self._last = 0
         if self.stream.isatty():
-            from tqdm import tqdm
-
+            try:
+                from tqdm import tqdm
+            except ImportError:        # installed without the batch extra: plain lines
+                return
             self.bar = tqdm(total=total, unit="site", file=self.stream, dynamic_ncols=True,
                             desc="sites")
 
@@ -178,6 +180,12 @@ def _check_paths(args) -> tuple[Path, Path | None]:
     if out.suffix.lower() not in (".csv", ".parquet"):
         raise UserError(f"-o {args.output}: the results must be a .csv or a .parquet file")
     _check_output("-o", args.output)
+    if out.suffix.lower() == ".parquet":
+        try:
+            import pyarrow  # noqa: F401
+        except ImportError:
+            raise UserError(f"-o {args.output}: Parquet needs pyarrow (pip install "
+                            "\"tiltyard[batch]\"); or write a .csv") from None
     sheets = None
     if args.sheets is not None:
         sheets = Path(args.sheets)

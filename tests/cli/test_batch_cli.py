@@ -157,3 +157,41 @@ def test_the_demo_geojson(tmp_path, capsys):
     (err,) = _errors(out)
     assert (err["line"], err["field"]) == ("12", "geometry.coordinates")
     assert len(pd.read_csv(out)) == 11
+
+
+class _Stream:
+    def __init__(self, tty: bool):
+        import io
+
+        self.buf, self.tty = io.StringIO(), tty
+
+    def isatty(self):
+        return self.tty
+
+    def write(self, text):
+        return self.buf.write(text)
+
+    def flush(self):
+        pass
+
+
+def test_progress_is_a_bar_on_a_terminal_and_plain_lines_otherwise():
+    from tiltyard.app.cli_batch import _Progress
+    from tiltyard.engine.batch.run import BatchProgress
+
+    for tty in (True, False):
+        stream = _Stream(tty)
+        progress = _Progress(10, every=4, stream=stream)
+        state = BatchProgress(total=10, skipped=2, failed=1, refused=1)
+        for _ in range(7):
+            state.done += 1
+            progress(state)
+        progress.close()
+        text = stream.buf.getvalue()
+        if tty:                                    # tqdm: count, rate and the failures
+            assert "10/10" in text and "site/s" in text and "failed=1" in text
+        else:
+            lines = text.splitlines()
+            assert lines == [line for line in lines if line.startswith("tiltyard batch: ")]
+            assert len(lines) == 2 and lines[-1].startswith("tiltyard batch: 10/10 sites, "
+                                                            "1 failed")
