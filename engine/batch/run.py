@@ -498,6 +498,8 @@ def run_batch(jobs: list, input_errors: list, output, max_planes: int, *, worker
             if progress is not None:
                 progress(state)
     finally:
+        if hasattr(outcomes, "close"):
+            outcomes.close()       # a stop shuts the pool or cancels the cluster's futures
         if buffer:                 # a stop (Ctrl-C, SIGTERM) keeps what is finished
             store.write(buffer)
     keep = {j.inputs_hash for j in jobs}

@@ -287,3 +287,22 @@ def test_result_columns_are_fixed_by_the_most_planes():
     assert "plane2_annual_kwh_m2" in names and "plane3_annual_kwh_m2" not in names
     assert names[:4] == ["line", "source", "id", "name"] and names[-1] == "site_file"
     assert len(names) == len(set(names))
+
+
+def test_stale_temporary_files_of_killed_runs_are_swept_from_a_chunk_folder(tmp_path):
+    import os
+    import subprocess
+    import sys
+
+    from tiltyard.engine.atomic_files import remove_stale_temps_in
+
+    dead = subprocess.run([sys.executable, "-c", "import os; print(os.getpid())"],
+                          capture_output=True, text=True, check=True)
+    dead_pid = int(dead.stdout)                   # a process that has ended
+    stale = tmp_path / f".chunk-000003.csv.tiltyard-{dead_pid}-abc123.tmp"
+    live = tmp_path / f".chunk-000004.csv.tiltyard-{os.getpid()}-def456.tmp"
+    other = tmp_path / ".chunk-000005.csv.someone-else.tmp"
+    for p in (stale, live, other):
+        p.write_text("part", encoding="utf-8")
+    assert remove_stale_temps_in(tmp_path) == [stale]
+    assert live.exists() and other.exists()
