@@ -191,13 +191,11 @@ def _check_paths(args) -> tuple[Path, Path | None]:
         sheets = Path(args.sheets)
         if sheets.exists() and not sheets.is_dir():
             raise UserError(f"--sheets {args.sheets}: is a file, not a folder")
-        if not sheets.exists():
-            if not sheets.parent.is_dir():
-                raise UserError(f"--sheets {args.sheets}: the folder {sheets.parent} does "
-                                "not exist")
-            sheets.mkdir()
-        if not os.access(sheets, os.W_OK | os.X_OK):
-            raise UserError(f"--sheets {args.sheets}: the folder is not writable")
+        where = sheets if sheets.exists() else sheets.parent
+        if not where.is_dir():
+            raise UserError(f"--sheets {args.sheets}: the folder {where} does not exist")
+        if not os.access(where, os.W_OK | os.X_OK):
+            raise UserError(f"--sheets {args.sheets}: the folder {where} is not writable")
     return out, sheets
 
 
@@ -259,6 +257,7 @@ def cmd_batch(args) -> int:
     jobs, planned_errors = plan_jobs(rows, args.times if sheets is not None else None)
     errors += planned_errors
     if sheets is not None:
+        sheets.mkdir(exist_ok=True)          # made once the input has been read
         writer = _SheetWriter(sheets, args.paper, args.times)
     client = _client(args.scheduler) if args.scheduler else None
     workers = (os.cpu_count() or 1) if args.workers is None else args.workers
