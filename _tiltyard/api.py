@@ -41,8 +41,9 @@ gets the numbers they show.
 
 Beside it: :func:`sun_day` (the sun on one date), the weather import
 (:func:`read_weather_file`, :func:`read_weather_csv`, :class:`ColumnMap`,
-:func:`load_weather_for_site`) and the demo sites (:func:`demo_site_names`,
-:func:`load_demo`).
+:func:`load_weather_for_site`), the demo sites (:func:`demo_site_names`,
+:func:`load_demo`) and a portfolio (:func:`read_portfolio`, :func:`plan_jobs`,
+:func:`run_batch`, :func:`read_results`: what ``tiltyard batch`` runs).
 
 Units are in the names (``poa_kwh_m2``, ``tilt_deg``); azimuths are degrees
 clockwise from true north (south = 180). Every figure is a preliminary
@@ -75,6 +76,9 @@ from tiltyard.engine.assessment import (
     resolve_assessment,
     save_assessment,
 )
+from tiltyard.engine.batch.inputs import Portfolio, PortfolioError, read_portfolio
+from tiltyard.engine.batch.results import read_results
+from tiltyard.engine.batch.run import BatchSummary, plan_jobs, run_batch
 from tiltyard.engine.cautions import CAUTION
 from tiltyard.engine.daycurves import DayCurves
 from tiltyard.engine.demo_sites import demo_site_names, load_demo
@@ -109,6 +113,9 @@ __all__ = [
     # weather files
     "read_weather_file", "read_weather_csv", "WeatherData", "WeatherImportError",
     "WeatherOptionError", "ColumnMap", "load_weather_for_site",
+    # a portfolio (tiltyard batch)
+    "read_portfolio", "Portfolio", "PortfolioError", "plan_jobs", "run_batch", "BatchSummary",
+    "read_results",
     # the standing caution
     "CAUTION",
 ]

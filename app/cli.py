@@ -23,16 +23,19 @@ from .cli_args import (  # noqa: F401 (the command line's public names live on h
     build_parser,
 )
 
-#: Each subcommand and its function in :mod:`tiltyard.app.cli_commands`, imported only
+#: Each subcommand, its module in :mod:`tiltyard.app` and its function, imported only
 #: when that subcommand runs (``--help`` and ``--version`` import no engine module).
-COMMANDS = {"sites": "cmd_sites", "sun": "cmd_sun", "irradiance": "cmd_irradiance",
-            "study": "cmd_study", "sheet": "cmd_sheet"}
+COMMANDS = {"sites": ("cli_commands", "cmd_sites"), "sun": ("cli_commands", "cmd_sun"),
+            "irradiance": ("cli_commands", "cmd_irradiance"),
+            "study": ("cli_commands", "cmd_study"), "sheet": ("cli_commands", "cmd_sheet"),
+            "batch": ("cli_batch", "cmd_batch")}
 
 
 def _run_command(name: str, args) -> int:
-    from . import cli_commands
+    import importlib
 
-    return getattr(cli_commands, COMMANDS[name])(args)
+    module, function = COMMANDS[name]
+    return getattr(importlib.import_module(f"{__package__}.{module}"), function)(args)
 
 
 def _command_word(argv: list[str]) -> str:

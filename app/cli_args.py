@@ -215,9 +215,16 @@ def _sheet_parser(sub, options: bool = True) -> None:
     _add_study_options(s)
 
 
+def _batch_parser(sub, options: bool = True) -> None:
+    """``tiltyard batch``: a portfolio of sites; its options only when ``options``."""
+    from .cli_batch import add_batch_parser
+
+    add_batch_parser(sub, _add_sky_options, _add_study_options, options=options)
+
+
 #: The subcommands, in the order of the help, each with the function that adds its parser.
 SUBCOMMANDS = {"sites": _sites_parser, "sun": _sun_parser, "irradiance": _irradiance_parser,
-               "study": _study_parser, "sheet": _sheet_parser}
+               "study": _study_parser, "sheet": _sheet_parser, "batch": _batch_parser}
 
 
 def _add_study_options(s) -> None:
@@ -434,7 +441,12 @@ def _assessment(args, study: bool = True):
     """The SITE argument's assessment with the command line's flags applied."""
     from tiltyard.engine.assessment import resolve_assessment
 
-    a = resolve_assessment(args.site)
+    return with_flags(args, resolve_assessment(args.site), study)
+
+
+def with_flags(args, a, study: bool = True):
+    """``a`` with the command line's sky, model (and study) flags applied; flags left out
+    keep its own settings. The batch applies them to every site this way."""
     try:
         changes = _sky_changes(args, a)
         changes.update(_model_changes(args))

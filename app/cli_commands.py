@@ -304,12 +304,13 @@ def _check_output(flag: str, path: str) -> Path:
     return p
 
 
-def _refuse_outputs_over_inputs(wanted, site_arg: str, assessment) -> None:
+def _refuse_outputs_over_inputs(wanted, site_arg: str, assessment,
+                                site_words: str = "the site file") -> None:
     """Refuse, before any work, an output path that is one of the inputs (the site file, the
     weather file), compared as files (device and inode, links followed), not as text."""
     inputs = []
     if os.path.exists(site_arg):
-        inputs.append(("the site file", site_arg))
+        inputs.append((site_words, site_arg))
     if assessment.weather is not None:
         inputs.append(("the weather file", assessment.weather.path))
     for flag, path in wanted:

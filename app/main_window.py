@@ -177,6 +177,7 @@ class MainWindow(QMainWindow):
             act.triggered.connect(lambda _=False, n=name: self.open_demo(n))
         self.recent_menu = m.addMenu("Open &recent")
         self._fill_recent()
+        self._action(m, "Open &portfolio results…", self.file_open_portfolio)
         m.addSeparator()
         self._action(m, "&Save", self.file_save, QKeySequence.StandardKey.Save)
         self._action(m, "Save &as…", self.file_save_as, QKeySequence.StandardKey.SaveAs)
@@ -305,6 +306,58 @@ class MainWindow(QMainWindow):
         settings.add_recent_file(str(Path(written).resolve()))
         self._fill_recent()
         self.statusBar().showMessage(f"Saved {written}", 4000)
+        return True
+
+    # -- portfolio results (tiltyard batch) -----------------------------------------
+    def ask_results_path(self) -> str | None:
+        from .portfolio import RESULTS_FILTER
+
+        path, _ = QFileDialog.getOpenFileName(self, "Open portfolio results", str(Path.home()),
+                                              RESULTS_FILTER)
+        return path or None
+
+    def file_open_portfolio(self) -> None:
+        path = self.ask_results_path()
+        if path:
+            self.open_portfolio(path)
+
+    def open_portfolio(self, path) -> None:
+        """Read a batch's RESULTS in a worker process, then show it in its own window."""
+        from tiltyard.engine.batch.results import portfolio_summary
+
+        from .engine_process import EngineCall
+
+        self.runner.submit_call("portfolio", EngineCall(portfolio_summary, (str(path),),
+                                                        progress_arg=None),
+                                self._show_portfolio, label="Reading portfolio results",
+                                debounce_ms=0)
+
+    def _show_portfolio(self, summary) -> None:
+        from .portfolio import PortfolioWindow
+
+        if getattr(self, "portfolio_window", None) is not None:
+            self.portfolio_window.close()
+        self.portfolio_window = PortfolioWindow(summary, self.open_portfolio_row, self)
+        self.portfolio_window.show()
+
+    def open_portfolio_row(self, row) -> bool:
+        """Open the site of one results row (its own site file, settings included) in the
+        views; the unsaved open site is asked about first."""
+        from tiltyard.engine.batch.results import row_assessment
+
+        try:
+            assessment = row_assessment(row)
+        except (KeyError, ValueError) as exc:     # SiteError is a ValueError
+            self.banner.show_message("error", f"could not open the site of this row: {exc}")
+            return False
+        if not self.confirm_discard():
+            return False
+        self.document.replace(assessment, dirty=True)
+        self.banner.show_message("info", f"Opened “{assessment.site.name}” from the portfolio "
+                                 f"results (line {row.get('line')}). Save it to keep it as a "
+                                 "site file.")
+        self.raise_()
+        self.activateWindow()
         return True
 
     # -- crash recovery -------------------------------------------------------

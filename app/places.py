@@ -17,6 +17,8 @@ import unicodedata
 from dataclasses import dataclass
 from functools import lru_cache
 
+from tiltyard.engine.zones import timezone_at  # noqa: F401 (the site view's lookup)
+
 _lock = threading.Lock()
 
 
@@ -72,19 +74,3 @@ def search_places(query: str, limit: int = 20) -> list[Place]:
     starts.sort(key=lambda p: (-p.population, p.name))
     contains.sort(key=lambda p: (-p.population, p.name))
     return (starts + contains)[:limit]
-
-
-@lru_cache(maxsize=1)
-def _finder():
-    from timezonefinder import TimezoneFinder
-    return TimezoneFinder()
-
-
-def timezone_at(latitude_deg: float, longitude_deg: float) -> str | None:
-    """IANA time zone at the coordinates, or None at sea far from any zone."""
-    with _lock:
-        finder = _finder()
-    name = finder.timezone_at(lng=float(longitude_deg), lat=float(latitude_deg))
-    if name is None:
-        return None
-    return name

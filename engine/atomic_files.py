@@ -19,6 +19,7 @@ target either old or complete and new.
 
 from __future__ import annotations
 
+import contextlib
 import os
 import re
 import stat
@@ -72,6 +73,58 @@ def remove_stale_temps(path: str | os.PathLike) -> list[Path]:
             except OSError:
                 pass
     return removed
+
+
+_ANY_TEMP = re.compile(rf"^\..+\.{_TAG}-(\d+)-[A-Za-z0-9_]+\.tmp$")
+
+
+def remove_stale_temps_in(folder: str | os.PathLike) -> list[Path]:
+    """Remove our temporary files of any target in ``folder`` left by processes that no
+    longer run (a folder of many outputs, such as a batch's chunks, whose names change).
+
+    Returns
+    -------
+    list of Path
+        The files removed.
+    """
+    folder = Path(folder)
+    removed = []
+    try:
+        names = os.listdir(folder)
+    except OSError:
+        return removed
+    for name in names:
+        m = _ANY_TEMP.match(name)
+        if m and not _alive(int(m.group(1))):
+            try:
+                os.unlink(folder / name)
+                removed.append(folder / name)
+            except OSError:
+                pass
+    return removed
+
+
+@contextlib.contextmanager
+def atomic_file(path: str | os.PathLike, mode: str = "wb", **open_args):
+    """A file to write ``path`` through, whole or not at all: the caller writes to a
+    temporary file beside it, which replaces ``path`` when the block ends without an
+    exception (flushed, fsynced, renamed) and is removed otherwise. For outputs written
+    piece by piece (a batch's results, merged chunk by chunk)."""
+    path = Path(path)
+    remove_stale_temps(path)
+    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.{_TAG}-{os.getpid()}-", suffix=".tmp",
+                               dir=_folder(path))
+    try:
+        os.chmod(tmp, _target_mode(path))
+        with os.fdopen(fd, mode, **open_args) as fh:
+            yield fh
+            fh.flush()
+            os.fsync(fh.fileno())
+        os.replace(tmp, path)
+    except BaseException:
+        _unlink(tmp)
+        raise
+    _fsync_folder(_folder(path))
 
 
 def _write_temp(path: Path, data: bytes) -> str:

@@ -540,6 +540,25 @@ def polar_night(sky: SkyYear) -> tuple | None:
     return tuple(d.strftime("%m-%d") for d in dates)
 
 
+def _active_months(study: TiltStudy) -> list:
+    return [m for m in study.active_months if 1 <= m <= 12] or list(range(1, 13))
+
+
+def weakest_month(study: TiltStudy, monthly_kwh_m2) -> tuple:
+    """The month (1-12) with the least irradiation among the study's months with useful
+    daylight, and its total, kWh/m² (``monthly_kwh_m2``: one option's twelve values, as the
+    JSON document gives them). The sheet and the batch results say the same month."""
+    monthly = np.asarray(monthly_kwh_m2, dtype=float)
+    weakest = min(_active_months(study), key=lambda m: monthly[m - 1])
+    return weakest, float(monthly[weakest - 1])
+
+
+def dark_months(study: TiltStudy) -> tuple:
+    """The months without useful daylight (not among the study's active months)."""
+    active = _active_months(study)
+    return tuple(m for m in range(1, 13) if m not in active)
+
+
 def sheet_figures(study: TiltStudy, sky: SkyYear | None = None, result=None) -> SheetFigures:
     """Gather every figure and statement the feasibility sheet prints.
 
@@ -601,10 +620,8 @@ def sheet_figures(study: TiltStudy, sky: SkyYear | None = None, result=None) -> 
                   + degree_text(study.recommendation_rule)),
     ]
     notes = tuple(w for w in study.warnings)
-    monthly_rec = np.asarray(rec["monthly_kwh_m2"], dtype=float)
-    active = [m for m in study.active_months if 1 <= m <= 12] or list(range(1, 13))
-    weakest = min(active, key=lambda m: monthly_rec[m - 1])
-    low = tuple(m for m in range(1, 13) if m not in active)
+    weakest = weakest_month(study, rec["monthly_kwh_m2"])
+    low = dark_months(study)
     basis, bound, fit = basis_words(irr.sky), None, ()
     if result is not None:
         basis = result.basis.words
@@ -620,11 +637,11 @@ def sheet_figures(study: TiltStudy, sky: SkyYear | None = None, result=None) -> 
         notes=notes, turbidity_source=sky.turbidity_source,
         digest=input_digest(site, opts, irr.sky, opts.mounting), version=tool_version(),
         basis_words=basis, clear_sky_bound_kwh_m2=bound, weather_warnings=fit,
-        weakest_month=(weakest, float(monthly_rec[weakest - 1])), dark_months=low,
+        weakest_month=weakest, dark_months=low,
         polar_night=polar_night(sky), tilt_min_deg=float(opts.tilt_min_deg))
 
 
-__all__ = ["SHEET_CAUTIONS", "check_option_kinds",
+__all__ = ["SHEET_CAUTIONS", "check_option_kinds", "dark_months", "weakest_month",
            "SUN_STEP_MIN", "SheetData", "SheetFigures", "sheet_data",
            "hourly_csv_text", "hourly_poa_table", "input_digest",
            "monthly_csv_text", "monthly_table", "option_horizon_loss", "options_csv_text",

@@ -36,6 +36,8 @@ def test_the_names_are_the_engines_own_objects():
     assert api.read_weather_file is weather.read_weather_file
     assert api.load_weather_for_site is weather_site.load_weather_for_site
     assert issubclass(api.WeatherFitError, api.AssessmentError)
+    from tiltyard.engine.batch import inputs, run
+    assert api.read_portfolio is inputs.read_portfolio and api.run_batch is run.run_batch
 
 
 def test_star_import_gives_exactly_all():
