@@ -58,6 +58,11 @@ def _viridis():
     return pg.colormap.get("viridis")
 
 
+def viridis_color(fraction: float) -> QColor:
+    """The colour at ``fraction`` (0..1) of the viridis ramp."""
+    return _viridis().map(float(fraction), mode="qcolor")
+
+
 def month_color(month: int) -> QColor:
     """Colour of month 1..12 on the trimmed viridis ramp."""
     return _viridis().map(0.05 + 0.80 * (month - 1) / 11.0, mode="qcolor")

@@ -183,4 +183,10 @@ def test_render_screenshots(qtbot, make_ctx, idle, artefacts_dir, demo, date):
     path = os.path.join(artefacts_dir, f"sunpath_{demo}.png")
     assert view.grab().save(path)
     assert os.path.getsize(path) > 10_000
-    assert len(view.path_items) == 16 and view.hour_labels
+    # by default the solstices and the equinoxes (one arc for both); every month on
+    # request, two months with the same sun path sharing an arc: seven arcs in all
+    assert set(view.path_items) == {"December solstice", "March equinox", "June solstice"}
+    assert view.hour_labels
+    view.every_month.setChecked(True)
+    idle(ctx.runner)
+    assert len(view.path_items) == 7
