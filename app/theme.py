@@ -63,6 +63,13 @@ def viridis_color(fraction: float) -> QColor:
     return _viridis().map(float(fraction), mode="qcolor")
 
 
+def arc_color(index: int, n: int = 7) -> QColor:
+    """Colour of the ``index``-th sun-path date arc (lowest sun first): the darker part
+    of viridis, so every arc keeps at least 3:1 contrast on white (a line, not text;
+    checked in tests/app/test_chart_colours.py)."""
+    return viridis_color(0.0 + 0.55 * index / max(n - 1, 1))
+
+
 def month_color(month: int) -> QColor:
     """Colour of month 1..12 on the trimmed viridis ramp."""
     return _viridis().map(0.05 + 0.80 * (month - 1) / 11.0, mode="qcolor")

@@ -186,15 +186,10 @@ def _hex(c: QColor) -> str:
     return c.name()
 
 
-def arc_color(index: int, n: int = 7) -> QColor:
-    """Colour of the ``index``-th date arc (lowest sun first) on the trimmed viridis ramp."""
-    return theme.viridis_color(0.05 + 0.80 * index / max(n - 1, 1))
-
-
 def arc_pen(arc, index: int):
     """Solstices solid and thick, equinoxes dashed and thick, month pairs thin dash-dot:
     told apart by pattern as well as colour (and each is labelled on its arc)."""
-    color = arc_color(index)
+    color = theme.arc_color(index)
     if arc.kind == "solstice":
         return _pen(color, 2.6)
     if arc.kind == "equinox":
@@ -707,7 +702,7 @@ class SunPathView(View):
         hour lines, terrain and obstacles."""
         pattern = {"solstice": "━━", "equinox": "╍╍", "month": "─·─"}
         arcs = " &nbsp; ".join(
-            f"<span style='color:{_hex(arc_color(i))}; font-size:12pt'>"
+            f"<span style='color:{_hex(theme.arc_color(i))}; font-size:12pt'>"
             f"{pattern[a.kind]}</span>&nbsp;{a.label}" for i, a in self._arcs(chart))
         basis = BASIS_SHORT[chart.basis]
         terrain = "rgba({},{},{},{:.2f})".format(*TERRAIN_FILL[:3], TERRAIN_FILL[3] / 255)
