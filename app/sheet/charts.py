@@ -306,8 +306,16 @@ def _hatch(bounds: QRectF, clip_path: QPainterPath, frame: QRectF, spacing: floa
 # -- the sun path -------------------------------------------------------------------------------
 
 #: Line width and dash of each kind of date arc (the same kinds as the app's chart).
-_ARC_STYLE = {"solstice": (1.5, None), "equinox": (1.3, DASHES[1]),
-              "month": (0.8, DASHES[3])}
+_ARC_STYLE = {"solstice": (1.5, None), "equinox": (1.3, DASHES[1])}
+#: Month-pair arcs alternate dotted and dash-dot (as in the app), so neighbours differ.
+_MONTH_ARC_DASHES = (DASHES[2], DASHES[3])
+
+
+def arc_style(arc, index: int):
+    """Line width and dash of the ``index``-th date arc."""
+    if arc.kind == "month":
+        return 0.8, _MONTH_ARC_DASHES[index % 2]
+    return _ARC_STYLE[arc.kind]
 #: The obstacles' outline and hatching (the categorical palette's vermillion).
 OBSTACLE_LINE = theme.SERIES[1]
 
@@ -411,7 +419,7 @@ def sun_path_chart(m: Measure, frame: QRectF, chart, basis_words: str, s: float 
     for i, arc in arcs:
         if not len(arc.curve):
             continue
-        width, dash = _ARC_STYLE[arc.kind]
+        width, dash = arc_style(arc, i)
         x, y = wrap_break(arc.curve.azimuth_deg, arc.curve.elevation_deg, centre)
         ops.append(shape(polyline(ax.px(x), ax.py(y)), frame,
                          pen(theme.arc_color(i).name(), width, dash), clip=plot,
@@ -458,7 +466,7 @@ def sun_path_chart(m: Measure, frame: QRectF, chart, basis_words: str, s: float 
     # the key: every arc, what it stands for, in its colour and pattern
     entries = []
     for i, arc in enumerate(chart.arcs):
-        width, dash = _ARC_STYLE[arc.kind]
+        width, dash = arc_style(arc, i)
         extra = "" if len(arc.curve) else ": the sun stays below the horizon"
         entries.append((_line_sample(theme.arc_color(i).name(), width, dash, frame=frame),
                         arc_key_text(arc) + extra))
@@ -526,7 +534,7 @@ def monthly_chart(m: Measure, frame: QRectF, series, s: float = 1.0,
 
 #: Colours of the other series: Okabe-Ito without black (the recommendation's) and without
 #: the pale yellow (too faint for thin lines on white).
-_OTHER_COLOURS = tuple(c for c in theme.SERIES if c not in ("#000000", "#F0E442"))
+_OTHER_COLOURS = tuple(c for c in theme.LINE_SERIES if c != "#000000")
 
 
 def _series_style(v: Series):

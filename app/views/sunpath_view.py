@@ -186,16 +186,20 @@ def _hex(c: QColor) -> str:
     return c.name()
 
 
+#: Month-pair arcs alternate dash-dot and dotted, so neighbouring arcs (next in the ramp,
+#: nearly alike under colour-vision deficiency) never share a pattern.
+MONTH_ARC_DASHES = (Qt.PenStyle.DotLine, Qt.PenStyle.DashDotLine)
+
+
 def arc_pen(arc, index: int):
-    """Solstices solid and thick, equinoxes dashed and thick, month pairs thin dash-dot:
-    told apart by pattern as well as colour (and each is labelled on its arc)."""
+    """Solstices solid and thick, equinoxes dashed and thick, month pairs thin dotted or
+    dash-dot: told apart by pattern as well as colour (and each is labelled on its arc)."""
     color = theme.arc_color(index)
     if arc.kind == "solstice":
         return _pen(color, 2.6)
     if arc.kind == "equinox":
-        pen = _pen(color, 2.4, Qt.PenStyle.DashLine)
-        return pen
-    return _pen(color, 1.4, Qt.PenStyle.DashDotLine)
+        return _pen(color, 2.4, Qt.PenStyle.DashLine)
+    return _pen(color, 1.4, MONTH_ARC_DASHES[index % 2])
 
 
 def arc_shown(arc, every_month: bool) -> bool:
