@@ -380,8 +380,9 @@ class SunPathView(View):
 
     @staticmethod
     def _label_layer(plot) -> LabelLayer:
-        """The hour labels of one chart, drawn together above the lines."""
-        layer = LabelLayer(theme.plot_font(8.5), HOUR_TEXT_COLOR, LABEL_FILL)
+        """Labels of one chart, drawn together above the lines, none over another."""
+        layer = LabelLayer(theme.plot_font(8.5), HOUR_TEXT_COLOR, LABEL_FILL,
+                           avoid_overlap=True)
         layer.setZValue(12)
         plot.addItem(layer)
         return layer
@@ -437,9 +438,7 @@ class SunPathView(View):
         self._polar_texts: dict = {}
         self._polar_labels = self._label_layer(p)
         self._polar_arc_labels = self._label_layer(p)
-        self._skyline_labels = LabelLayer(theme.plot_font(8), TERRAIN_LINE, LABEL_FILL)
-        self._skyline_labels.setZValue(12)
-        p.addItem(self._skyline_labels)
+        self._skyline_labels: list[Label] = []   # go on the arc labels' layer, first
         # skyline: a light outline over a faint fill between the 0° ring and the skyline,
         # with elevation ticks at its highest points
         self._polar_outer = pg.PlotCurveItem(pen=pg.mkPen(None))
@@ -526,13 +525,14 @@ class SunPathView(View):
         on = self.every_month.isChecked()
         return [(i, a) for i, a in enumerate(chart.arcs) if arc_shown(a, on)]
 
-    def _draw_paths(self, plot, items, chart, mapper, pick_mapper, layer):
+    def _draw_paths(self, plot, items, chart, mapper, pick_mapper, layer, first=()):
         """The date arcs, their labels on ``layer`` and the pick lists.
 
         A generator: drawing pauses every few items (see ``run_in_stages``).
-        Arcs not shown are given no data (their items are kept for reuse).
+        Arcs not shown are given no data (their items are kept for reuse). ``first``
+        are labels that go on ``layer`` before the arcs' (they win a place).
         """
-        shown, labels = {}, []
+        shown, labels = {}, list(first)
         pick = [(chart.day, *pick_mapper(chart.day.azimuth_deg, chart.day.elevation_deg))]
         drawn = dict(self._arcs(chart))
         for n, (i, arc) in enumerate(enumerate(chart.arcs)):
@@ -657,6 +657,15 @@ class SunPathView(View):
         zen = self._polar_texts[("ring", 90.0)]
         zen.setAnchor((0.5, 1.2) if pole == 0.0 else (0.5, -0.2))
         zen.setPos(0.0, 0.0)
+        # the ring labels (and the skyline's) are written on the arc labels' layer, first,
+        # so an arc label never covers one
+        rings = []
+        for key, t in self._polar_texts.items():
+            if key[0] != "ring":
+                continue
+            t.setVisible(False)
+            rings.append(Label(t.pos().x(), t.pos().y(), t.toPlainText(), t.anchor.x(),
+                               t.anchor.y(), color=theme.MUTED, font_pt=8.0))
 
         def place(line):
             br = math.radians(line.label_azimuth_deg)
@@ -675,7 +684,9 @@ class SunPathView(View):
         self.polar_hour_labels = self._draw_hours(p, self._polar_items, self._polar_labels,
                                                   chart, polar_xy, place)
         self.polar_path_items, self._pick["polar"] = yield from self._draw_paths(
-            p, self._polar_items, chart, polar_xy, polar_xy, self._polar_arc_labels)
+            p, self._polar_items, chart, polar_xy, polar_xy, self._polar_arc_labels,
+            rings + self._skyline_labels + list(self.polar_hour_labels.values()))
+        self._polar_labels.set_labels(())       # written on the one layer above
         self._set_day(self._polar_items, chart.day, polar_xy)
 
     def _set_skyline_ticks(self, chart) -> None:
@@ -699,7 +710,7 @@ class SunPathView(View):
                                 0.5 + 0.6 * math.sin(b), 0.5 - 0.6 * math.cos(b),
                                 color=TERRAIN_LINE))
         self._set(self._skyline_ticks, xs, ys)
-        self._skyline_labels.set_labels(labels)
+        self._skyline_labels = labels
 
     def _show_legend(self, chart) -> None:
         """The key: each arc drawn (its label, dates and pattern), the chosen date, the
