@@ -37,8 +37,10 @@ class LabelLayer(pg.GraphicsObject):
 
     PAD_PX = 2.0
 
-    def __init__(self, font: QFont, color, fill=(255, 255, 255, 190)):
+    def __init__(self, font: QFont, color, fill=(255, 255, 255, 190),
+                 avoid_overlap: bool = False):
         super().__init__()
+        self.avoid_overlap = avoid_overlap
         self._font = QFont(font)
         self._color = pg.mkColor(color)
         self._fill = QColor(*fill) if isinstance(fill, tuple) else pg.mkColor(fill)
@@ -73,30 +75,46 @@ class LabelLayer(pg.GraphicsObject):
         self.prepareGeometryChange()
         self.update()
 
+    def _boxes(self, tr):
+        """(label, box, font, metrics) of the labels drawn, under item-to-device ``tr``.
+
+        With ``avoid_overlap`` a label whose box would meet one drawn before it is left
+        out (labels come in priority order), so labels never cover each other.
+        """
+        pad = self.PAD_PX
+        out, taken = [], []
+        for lb in self._labels:
+            font = self._font if lb.font_pt is None else self._sized(lb.font_pt)
+            fm = self._metrics if lb.font_pt is None else QFontMetricsF(font)
+            h = fm.height()
+            pt = tr.map(QPointF(lb.x, lb.y))
+            w = fm.horizontalAdvance(lb.text) + 2 * pad
+            box = QRectF(pt.x() - lb.anchor_x * w, pt.y() - lb.anchor_y * h, w, h)
+            if self.avoid_overlap and any(box.intersects(t) for t in taken):
+                continue
+            taken.append(box)
+            out.append((lb, box, font))
+        return out
+
+    def scene_rects(self) -> list[QRectF]:
+        """The boxes of the labels drawn, in scene coordinates (pixels of the plot widget)."""
+        if not self._labels or self.scene() is None:
+            return []
+        return [box for _lb, box, _f in self._boxes(self.sceneTransform())]
+
     def paint(self, p, *args) -> None:
         if not self._labels:
             return
         tr = p.transform()                # item to device coordinates while painting
         p.save()
         p.resetTransform()
-        pad = self.PAD_PX
-        p.setFont(self._font)
+        color = None
         p.setPen(self._color)
-        font_pt = color = None            # None: the layer's own, as just set
-        fm = self._metrics
-        for lb in self._labels:
-            if lb.font_pt != font_pt:
-                font_pt = lb.font_pt
-                font = self._font if font_pt is None else self._sized(font_pt)
-                p.setFont(font)
-                fm = self._metrics if font_pt is None else QFontMetricsF(font)
+        for lb, box, font in self._boxes(tr):
+            p.setFont(font)
             if lb.color != color:
                 color = lb.color
                 p.setPen(self._color if color is None else pg.mkColor(color))
-            h = fm.height()
-            pt = tr.map(QPointF(lb.x, lb.y))
-            w = fm.horizontalAdvance(lb.text) + 2 * pad
-            box = QRectF(pt.x() - lb.anchor_x * w, pt.y() - lb.anchor_y * h, w, h)
             if self._fill.alpha():
                 p.fillRect(box, self._fill)
             p.drawText(box, Qt.AlignmentFlag.AlignCenter, lb.text)

@@ -37,13 +37,43 @@ CATEGORICAL = ("#000000", "#E69F00", "#56B4E9", "#009E73", "#F0E442", "#0072B2",
 #: Order used for series on white (the yellow is too pale for thin lines; it goes last).
 SERIES = ("#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9", "#000000",
           "#F0E442")
+
+def _relative_luminance(hex_color: str) -> float:
+    """WCAG 2.1 relative luminance of an sRGB colour ("#rrggbb")."""
+    c = [int(hex_color[i:i + 2], 16) / 255.0 for i in (1, 3, 5)]
+    c = [v / 12.92 if v <= 0.04045 else ((v + 0.055) / 1.055) ** 2.4 for v in c]
+    return 0.2126 * c[0] + 0.7152 * c[1] + 0.0722 * c[2]
+
+
+def contrast_on_white(hex_color: str) -> float:
+    """WCAG 2.1 contrast ratio of a colour against white (W3C, WCAG 2.1, 2018, sec. 1.4.11)."""
+    return 1.05 / (_relative_luminance(hex_color) + 0.05)
+
+
+#: Lines need 3:1 against the white plot (WCAG 2.1 non-text contrast).
+LINE_CONTRAST = 3.0
+
+
+def _line_colour(hex_color: str) -> str:
+    """The colour darkened (same hue, in steps of 4 % lightness) until it has
+    :data:`LINE_CONTRAST` against white."""
+    c = QColor(hex_color)
+    while contrast_on_white(c.name()) < LINE_CONTRAST:
+        h, s_, lig, _a = c.getHslF()
+        c = QColor.fromHslF(h, s_, max(0.0, lig - 0.04))
+    return c.name()
+
+
+#: The series colours for lines and outlines: SERIES with the orange and sky blue
+#: darkened to 3:1 on white (the pale yellow dropped); fills keep SERIES.
+LINE_SERIES = tuple(_line_colour(c) for c in SERIES if c != "#F0E442")
 DASHES = (Qt.PenStyle.SolidLine, Qt.PenStyle.DashLine, Qt.PenStyle.DotLine,
           Qt.PenStyle.DashDotLine, Qt.PenStyle.DashDotDotLine)
 
 
 def series_pen(i: int, width: float = 2.0, dashed: bool = True):
     """Pen for the i-th categorical series (colour and, for i >= 1, a dash pattern)."""
-    pen = pg.mkPen(SERIES[i % len(SERIES)], width=width)
+    pen = pg.mkPen(LINE_SERIES[i % len(LINE_SERIES)], width=width)
     if dashed:
         pen.setStyle(DASHES[i % len(DASHES)])
     return pen
@@ -56,6 +86,18 @@ def series_color(i: int) -> QColor:
 @functools.cache
 def _viridis():
     return pg.colormap.get("viridis")
+
+
+def viridis_color(fraction: float) -> QColor:
+    """The colour at ``fraction`` (0..1) of the viridis ramp."""
+    return _viridis().map(float(fraction), mode="qcolor")
+
+
+def arc_color(index: int, n: int = 7) -> QColor:
+    """Colour of the ``index``-th sun-path date arc (lowest sun first): the darker part
+    of viridis, so every arc keeps at least 3:1 contrast on white (a line, not text;
+    checked in tests/app/test_chart_colours.py)."""
+    return viridis_color(0.0 + 0.55 * index / max(n - 1, 1))
 
 
 def month_color(month: int) -> QColor:

@@ -29,10 +29,24 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from .horizon import merged_profile, site_horizon_deg
+from .horizon import (
+    merged_profile,
+    obstacle_elevation_deg,
+    profile_elevation_deg,
+    site_horizon_deg,
+)
 from .site import Site
 from .solarpos import RISE_SET_ELEVATION_DEG, solar_position
 from .sun import day_path, hour_lines, standard_path_dates
+from .sunchart_design import (
+    DateArc,
+    HourBand,
+    chart_centre_deg,
+    chart_x,
+    date_arcs,
+    hour_band,
+    lead_chart,
+)
 from .sunevents import sun_events
 from .timegrid import TIME_BASES, apparent_solar_time_h, local_date, standard_timezone
 from .words import day_month
@@ -49,6 +63,10 @@ SAME_EVENT_S = 120.0
 
 #: Apparent semi-diameter of the sun, degrees (16'; Reda & Andreas 2008, App. A.2).
 SUN_SEMI_DIAMETER_DEG = 0.2667
+
+#: An hour line whose azimuth turns by more than this between two samples passes
+#: by the zenith there and is broken, degrees.
+ZENITH_SWING_DEG = 90.0
 
 #: Obliquity of the ecliptic used to choose where hour lines are labelled, degrees.
 _OBLIQUITY_DEG = 23.44
@@ -167,6 +185,15 @@ class SunChart:
         ``"clock"``, ``"standard"`` or ``"solar"``.
     equator_azimuth_deg : float
         180 for sites north of the equator (and on it), 0 south of it.
+    centre_azimuth_deg : float
+        What the flat chart faces (:func:`~.sunchart_design.chart_centre_deg`):
+        the equator's direction beyond the tropics, east or west within them.
+    lead : str
+        ``"flat"`` or ``"above"``: which chart leads (:func:`~.sunchart_design.lead_chart`).
+    arcs : tuple of DateArc
+        The date arcs (:func:`~.sunchart_design.date_arcs`).
+    hour_band : HourBand
+        Where the flat chart's hour labels go.
     paths : tuple of DayCurve
         Solstices and equinoxes first, then the 21st of each month.
     hour_lines : tuple of HourLine
@@ -174,6 +201,10 @@ class SunChart:
     horizon_azimuth_deg, horizon_elevation_deg : numpy.ndarray
         Site horizon (profile and obstacles merged) every 1° from 0° to 360°
         inclusive, plus the obstacle edges.
+    profile_elevation_deg, obstacle_elevation_deg : numpy.ndarray
+        The measured profile alone and the obstacles alone (NaN where there is
+        none) at ``horizon_azimuth_deg``, so charts can tell terrain and
+        obstacles apart.
     day : DayCurve
         The chosen date's path (empty in polar night).
     summary : DaySummary
@@ -189,10 +220,16 @@ class SunChart:
     year: int
     basis: str
     equator_azimuth_deg: float
+    centre_azimuth_deg: float
+    lead: str
+    arcs: tuple
+    hour_band: HourBand
     paths: tuple
     hour_lines: tuple
     horizon_azimuth_deg: np.ndarray
     horizon_elevation_deg: np.ndarray
+    profile_elevation_deg: np.ndarray
+    obstacle_elevation_deg: np.ndarray
     day: DayCurve
     summary: DaySummary
     events: pd.DataFrame
@@ -477,6 +514,9 @@ def _hour_line_curves(site: Site, year: int, basis: str) -> list[HourLine]:
         el = g["elevation_deg"].to_numpy(dtype=float)
         doy = (pd.DatetimeIndex(g["date"]).day_of_year).to_numpy(dtype=float)
         brk = np.diff(k) != 1
+        # a line passing (nearly) through the zenith swings across the sky between two
+        # samples; joining them would draw a line across the top of a flat chart
+        brk |= np.abs(np.mod(np.diff(az) + 180.0, 360.0) - 180.0) > ZENITH_SWING_DEG
         if basis == "clock":
             off = pd.DatetimeIndex(g["time_utc"]).tz_convert(site.timezone)
             off_min = np.array([o.utcoffset().total_seconds() / 60.0 for o in off])
@@ -597,17 +637,25 @@ def sun_chart(site: Site, date, basis: str = "clock", step_min: float = 5,
     prof = merged_profile(site, 1.0)
     hz_az = np.append(np.asarray(prof.azimuth_deg, dtype=float), 360.0)
     hz_el = np.append(np.asarray(prof.elevation_deg, dtype=float), prof.elevation_deg[0])
+    terrain = profile_elevation_deg(site.horizon, hz_az)
+    objects = obstacle_elevation_deg(site.obstacles, hz_az)
+    objects = np.where(np.isfinite(objects) & (objects > terrain + 1e-9), objects, np.nan)
+    centre = chart_centre_deg(site.latitude_deg)
+    paths = tuple(curves[:-1])
     report(1.0, "done")
     return SunChart(
         site_name=site.name, latitude_deg=site.latitude_deg, longitude_deg=site.longitude_deg,
         timezone=site.timezone, year=year, basis=basis,
-        equator_azimuth_deg=site.equator_azimuth_deg, paths=tuple(curves[:-1]),
+        equator_azimuth_deg=site.equator_azimuth_deg, centre_azimuth_deg=centre,
+        lead=lead_chart(site.latitude_deg), arcs=date_arcs(paths, centre),
+        hour_band=hour_band(lines, list(paths) + [curves[-1]], centre), paths=paths,
         hour_lines=tuple(lines), horizon_azimuth_deg=hz_az, horizon_elevation_deg=hz_el,
+        profile_elevation_deg=terrain, obstacle_elevation_deg=objects,
         day=curves[-1], summary=_summary(table.iloc[-1]),
         events=table.iloc[:-1].reset_index(drop=True))
 
 
 __all__ = [
-    "HOUR_LINE_DAY_STEP", "SAME_EVENT_S", "SUN_SEMI_DIAMETER_DEG", "VISIBILITY_STEP_MIN", "DayCurve", "DaySummary",
+    "HOUR_LINE_DAY_STEP", "SAME_EVENT_S", "ZENITH_SWING_DEG", "DateArc", "HourBand", "chart_x", "SUN_SEMI_DIAMETER_DEG", "VISIBILITY_STEP_MIN", "DayCurve", "DaySummary",
     "HourLine", "SunChart", "basis_hours", "horizon_crossings", "monthly_events", "sun_chart",
 ]

@@ -17,7 +17,7 @@ import numpy as np
 from PySide6.QtCore import QPointF, QRectF
 from PySide6.QtGui import QPainterPath
 
-from tiltyard.engine.words import MONTH_ABBR, compass_tick, day_month
+from tiltyard.engine.words import MONTH_ABBR, MONTH_NAMES, compass_tick
 
 from .. import theme
 from .layout import (
@@ -270,38 +270,6 @@ def _legend(m: Measure, rect: QRectF, entries, s: float, frame: QRectF, out=None
     return ops
 
 
-def month_dash(month: int):
-    """The 21st of a month: solid from January to June, dashed from July to December, so the
-    months the sun takes the same path (January and November...) differ in pattern too."""
-    return None if month <= 6 else DASHES[1]
-
-
-def _month_key(m: Measure, rect: QRectF, months, s: float, frame: QRectF) -> list:
-    """The key of the month paths' colours: a swatch of each month's line and its name."""
-    if not months:
-        return []
-    font = Font(max(LEGEND_PT, 6.8 * s))
-    lh = m.line_height(font)
-    ops = fit_text(m, "21st of the other months:", QRectF(rect.left(), rect.top(),
-                                                           rect.width(), lh), font,
-                   min_size=LEGEND_PT, role="legend").ops
-    cols = 4                       # two rows for the eight months drawn
-    cw = rect.width() / cols
-    for i, month in enumerate(months):
-        r, c = divmod(i, cols)
-        y = rect.top() + lh + 1.5 + r * (lh + 1.0)
-        if y + lh > rect.bottom():
-            break
-        x = rect.left() + c * cw
-        ops += _line_sample(theme.month_color(month).name(), 1.2, month_dash(month),
-                            frame=frame)(QRectF(x, y, 12.0, lh))
-        ops += fit_text(m, MONTH_ABBR[month - 1], QRectF(x + 14.0, y, cw - 15.0, lh), font,
-                        min_size=LEGEND_PT, role="legend.month").ops
-    for op in ops:
-        op.frame = QRectF(frame)
-    return ops
-
-
 def _line_sample(color, width, dash, marker=None, frame=None):
     def draw(r: QRectF):
         y = r.center().y()
@@ -331,22 +299,74 @@ def _hatch(bounds: QRectF, clip_path: QPainterPath, frame: QRectF, spacing: floa
         p.moveTo(x, bounds.bottom())
         p.lineTo(x + h, bounds.top())
         x += spacing
-    return [shape(p, frame, pen(HORIZON_HATCH, 0.35), clip=bounds, clip_path=clip_path,
+    return [shape(p, frame, pen(OBSTACLE_LINE, 0.35), clip=bounds, clip_path=clip_path,
                   role="hatch")]
 
 
 # -- the sun path -------------------------------------------------------------------------------
 
-_PATH_STYLE = {
-    "June solstice": (theme.SERIES[1], 1.6, None),
-    "December solstice": (theme.SERIES[0], 1.6, DASHES[1]),
-    "March equinox": (theme.SERIES[2], 1.2, DASHES[3]),
-    "September equinox": (theme.SERIES[2], 1.2, DASHES[3]),
-}
+#: Line width and dash of each kind of date arc (the same kinds as the app's chart).
+_ARC_STYLE = {"solstice": (1.5, None), "equinox": (1.3, DASHES[1])}
+#: Month-pair arcs alternate dotted and dash-dot (as in the app), so neighbours differ.
+_MONTH_ARC_DASHES = (DASHES[2], DASHES[3])
+
+
+def arc_style(arc, index: int):
+    """Line width and dash of the ``index``-th date arc."""
+    if arc.kind == "month":
+        return 0.8, _MONTH_ARC_DASHES[index % 2]
+    return _ARC_STYLE[arc.kind]
+#: The obstacles' outline and hatching (the categorical palette's vermillion).
+OBSTACLE_LINE = theme.SERIES[1]
+
+
+def arc_key_text(arc) -> str:
+    """The key's words for a date arc: which dates it stands for, in full."""
+    if arc.kind == "solstice":
+        which = "June" if arc.months == (6,) else "December"
+        return f"{which} solstice, {arc.label}"
+    if arc.kind == "equinox":
+        return "equinoxes, March and September"
+    names = " and ".join(MONTH_NAMES[m - 1] for m in arc.months)
+    return f"{arc.label}: 21 {names}"
+
+
+def _horizon_polygon(ax: Axes, plot: QRectF, az, el, centre: float) -> QPainterPath:
+    """The area below a horizon line across the plot (NaN: no area there)."""
+    hx = chart_x(az, centre)
+    hy = np.asarray(el, dtype=float)
+    order = np.argsort(hx, kind="stable")
+    hx, hy = hx[order], hy[order]
+    poly = QPainterPath()
+    ok = np.isfinite(hy)
+    if not ok.any():
+        return poly
+    if ok.all():
+        ext_x = np.concatenate([[hx[-1] - 360.0], hx, [hx[0] + 360.0]])
+        ext_y = np.concatenate([[hy[-1]], hy, [hy[0]]])
+        first = float(np.interp(ax.x0, ext_x, ext_y))
+        hx = np.concatenate([[ax.x0], hx, [ax.x1]])
+        hy = np.concatenate([[first], hy, [first]])
+        ok = np.ones(len(hx), dtype=bool)
+    # one closed piece per run of finite values
+    edges = np.flatnonzero(np.diff(np.concatenate([[0], ok.astype(int), [0]])))
+    for a, b in zip(edges[0::2], edges[1::2], strict=True):
+        px_, py_ = ax.px(hx[a:b]), ax.py(hy[a:b])
+        poly.moveTo(float(px_[0]), plot.bottom() + 2.0)
+        for x, y in zip(px_, py_, strict=True):
+            poly.lineTo(float(x), float(y))
+        poly.lineTo(float(px_[-1]), plot.bottom() + 2.0)
+        poly.closeSubpath()
+    return poly
 
 
 def sun_path_chart(m: Measure, frame: QRectF, chart, basis_words: str, s: float = 1.0) -> list:
-    """Elevation against azimuth: day paths, hour lines and the site horizon.
+    """Elevation against azimuth: date arcs labelled on the arc, hour lines with their
+    labels in a band above the paths, terrain and hatched obstacles, and a key.
+
+    The design's data (centring, arcs, hour band) is the engine's
+    (:mod:`tiltyard.engine.sunchart_design`), as in the app. Every arc is drawn (a sheet
+    cannot be asked for more), two months with the same sun path sharing one.
 
     Parameters
     ----------
@@ -369,113 +389,94 @@ def sun_path_chart(m: Measure, frame: QRectF, chart, basis_words: str, s: float 
     plot = QRectF(left, frame.top() + th + label_h + lh / 2.0 + 4.0,
                   frame.right() - legend_w - 10.0 - left, 0.0)
     plot.setBottom(frame.bottom() - lh - label_h - 4.0)
-    centre = chart.equator_azimuth_deg
-    els = [np.nanmax(p.elevation_deg) for p in chart.paths if len(p)]
-    top = max(els) if els else 30.0
-    ymax = float(min(90.0, max(20.0, math.ceil((top + 4.0) / 10.0) * 10.0)))
+    centre = chart.centre_azimuth_deg
+    band = chart.hour_band
+    ymax = float(min(100.0, max(20.0, band.high_deg)))
     ax = Axes(plot, centre - 180.0, centre + 180.0, 0.0, ymax)
-    xticks = [(a, compass_tick(a))
+    xticks = [(a, compass_tick(a % 360.0))
               for a in np.arange(centre - 180.0, centre + 180.1, 45.0)]
     ystep = 10.0 if ymax <= 60 else 15.0
-    yticks = [(v, f"{v:.0f}°") for v in np.arange(0.0, ymax + 0.1, ystep)]
+    yticks = [(v, f"{v:.0f}°") for v in np.arange(0.0, min(ymax, 90.0) + 0.1, ystep)]
+    facing = "facing the equator" if centre == chart.equator_azimuth_deg else \
+        f"facing {compass_tick(centre % 360.0).split()[0]}, so no path is cut"
     ops += _axes_ops(m, frame, ax, xticks, yticks,
-                     "Azimuth (°, clockwise from true north; facing the equator)",
+                     f"Azimuth (°, clockwise from true north; {facing})",
                      "Sun elevation (°)", s)
-    # the 21st of each month, then the solstices and equinoxes on top
-    months = [p for p in chart.paths if p.kind == "month"]
-    main = [p for p in chart.paths if p.kind != "month"]
-    for p in months:
-        if not len(p):
-            continue
-        x, y = wrap_break(p.azimuth_deg, p.elevation_deg, centre)
-        ops.append(shape(polyline(ax.px(x), ax.py(y)), frame,
-                         pen(theme.month_color(p.month).name(), 0.8, month_dash(p.month)),
-                         clip=plot,
-                         role=f"path.{p.label}"))
+    # the hour band: a light strip above every path
+    band_box = QRectF(plot.left(), float(ax.py(band.high_deg)), plot.width(),
+                      float(ax.py(band.low_deg) - ax.py(band.high_deg)))
+    ops.append(shape(rect_path(band_box), frame, None, "#eef1f4", clip=plot, role="hour-band"))
     # hour lines
     hour_path = QPainterPath()
-    labels = []
     for hl in chart.hour_lines:
         x, y = wrap_break(hl.azimuth_deg, hl.elevation_deg, centre)
         hour_path.addPath(polyline(ax.px(x), ax.py(y)))
-        labels.append(hl)
     if not hour_path.isEmpty():
         ops.append(shape(hour_path, frame, pen(HOUR_LINE, 0.5, (1.0, 1.4)), clip=plot,
                          role="hour-lines"))
-    for p in main:
-        if not len(p):
+    # date arcs, months first, the solstices and the equinoxes on top
+    arcs = sorted(enumerate(chart.arcs), key=lambda t: t[1].kind != "month")
+    for i, arc in arcs:
+        if not len(arc.curve):
             continue
-        color, width, dash = _PATH_STYLE.get(p.label, (TEXT, 1.2, None))
-        x, y = wrap_break(p.azimuth_deg, p.elevation_deg, centre)
-        ops.append(shape(polyline(ax.px(x), ax.py(y)), frame, pen(color, width, dash),
-                         clip=plot, role=f"path.{p.label}"))
-    # the horizon: grey and hatched below the line
-    hx = chart_x(chart.horizon_azimuth_deg, centre)
-    hy = np.asarray(chart.horizon_elevation_deg, dtype=float)
-    order = np.argsort(hx, kind="stable")
-    hx, hy = hx[order], hy[order]
-    if len(hx):
-        ext_x = np.concatenate([[hx[-1] - 360.0], hx, [hx[0] + 360.0]])
-        ext_y = np.concatenate([[hy[-1]], hy, [hy[0]]])
-        first = float(np.interp(ax.x0, ext_x, ext_y))
-    else:
-        first = 0.0
-    hx = np.concatenate([[ax.x0], hx, [ax.x1]])
-    hy = np.concatenate([[first], hy, [first]])
-    px_, py_ = ax.px(hx), ax.py(hy)
-    poly = QPainterPath()
-    poly.moveTo(float(px_[0]), plot.bottom() + 2.0)
-    for a, b in zip(px_, py_, strict=True):
-        poly.lineTo(float(a), float(b))
-    poly.lineTo(float(px_[-1]), plot.bottom() + 2.0)
-    poly.closeSubpath()
-    ops.append(shape(poly, frame, None, HORIZON_FILL, clip=plot, role="horizon-fill"))
-    ops += _hatch(plot, poly, frame)
-    ops.append(shape(polyline(px_, py_), frame, pen(HORIZON_LINE, 0.9), clip=plot,
-                     role="horizon-line"))
-    # hour labels, clear of each other, inside the plot
-    hf = Font(max(LEGEND_PT - 0.5, 6.0 * s), condensed=True)
-    hh = m.line_height(hf)
-    taken = []
-    for hl in labels:
-        if not math.isfinite(hl.label_azimuth_deg) or hl.label_elevation_deg < 1.0:
-            continue
-        x = float(ax.px(chart_x(hl.label_azimuth_deg, centre)))
-        y = float(ax.py(hl.label_elevation_deg))
-        text = f"{hl.hour}h"
-        w = m.width(text, hf) + 1.0
-        y0 = y - hh - 1.5 if hl.label_on_top else y + 1.5
-        box = QRectF(x - w / 2.0, y0, w, hh)
-        if not plot.adjusted(1, 1, -1, -1).contains(box):
-            continue
-        if any(box.intersects(t) for t in taken):
-            continue
+        width, dash = arc_style(arc, i)
+        x, y = wrap_break(arc.curve.azimuth_deg, arc.curve.elevation_deg, centre)
+        ops.append(shape(polyline(ax.px(x), ax.py(y)), frame,
+                         pen(theme.arc_color(i).name(), width, dash), clip=plot,
+                         role=f"path.{arc.label}"))
+    # terrain below the horizon line, obstacles hatched on it
+    terrain = _horizon_polygon(ax, plot, chart.horizon_azimuth_deg,
+                               chart.horizon_elevation_deg, centre)
+    ops.append(shape(terrain, frame, None, HORIZON_FILL, clip=plot, role="horizon-fill"))
+    objects = _horizon_polygon(ax, plot, chart.horizon_azimuth_deg,
+                               chart.obstacle_elevation_deg, centre)
+    if not objects.isEmpty():
+        ops += _hatch(plot, objects, frame)
+        ops.append(shape(objects, frame, pen(OBSTACLE_LINE, 0.6), clip=plot, role="obstacles"))
+    hx, hy = wrap_break(chart.horizon_azimuth_deg, chart.horizon_elevation_deg, centre)
+    ops.append(shape(polyline(ax.px(hx), ax.py(hy)), frame, pen(HORIZON_LINE, 0.9),
+                     clip=plot, role="horizon-line"))
+    # labels: the hours in their band, each arc's name on the arc; none over another
+    taken: list[QRectF] = []
+    inner = plot.adjusted(1, 1, -1, -1)
+
+    def put(text, x, y, font, role, above=True):
+        w = m.width(text, font) + 1.5
+        h = m.line_height(font)
+        box = QRectF(x - w / 2.0, (y - h - 1.0) if above else (y - h / 2.0), w, h)
+        if not inner.contains(box) or any(box.intersects(t) for t in taken):
+            return
         taken.append(box)
-        ops.append(shape(rect_path(box), frame, None, "#ffffff", role="hour-label-bg"))
-        ops += fit_text(m, text, box, hf, align="center", color="#3b4148",
-                        role="hour-label").ops
-    # legend
-    entries = []
-    order = {"June solstice": 0, "December solstice": 1, "March equinox": 2}
-    for p in sorted(main, key=lambda q: order.get(q.label, 9)):
-        if p.label in ("September equinox",):
+        ops.append(shape(rect_path(box), frame, None, "#ffffff" if role != "hour-label"
+                         else "#eef1f4", role=f"{role}-bg"))
+        ops.extend(fit_text(m, text, box, font, align="center", color="#3b4148",
+                            role=role).ops)
+
+    hf = Font(max(LEGEND_PT - 0.5, 6.0 * s), condensed=True)
+    mid = 0.5 * (band.low_deg + band.high_deg)
+    for hour, x in zip(band.hours, band.azimuth_deg, strict=True):
+        put(f"{hour}h", float(ax.px(x)), float(ax.py(mid)), hf, "hour-label", above=False)
+    af = Font(max(LEGEND_PT - 0.5, 6.0 * s))
+    for _i, arc in arcs:
+        if arc.label_index < 0:
             continue
-        color, width, dash = _PATH_STYLE.get(p.label, (TEXT, 1.2, None))
-        name = "equinoxes (Mar, Sep)" if "equinox" in p.label else p.label
-        when = f", {day_month(p.date)}" if "solstice" in p.label else ""
-        extra = "" if len(p) else ": the sun stays below the horizon"
-        entries.append((_line_sample(color, width, dash, frame=frame), name + when + extra))
+        j = arc.label_index
+        x = float(ax.px(chart_x(arc.curve.azimuth_deg[j], centre)))
+        put(arc.label, x, float(ax.py(arc.curve.elevation_deg[j])), af, "arc-label")
+    # the key: every arc, what it stands for, in its colour and pattern
+    entries = []
+    for i, arc in enumerate(chart.arcs):
+        width, dash = arc_style(arc, i)
+        extra = "" if len(arc.curve) else ": the sun stays below the horizon"
+        entries.append((_line_sample(theme.arc_color(i).name(), width, dash, frame=frame),
+                        arc_key_text(arc) + extra))
     entries.append((_line_sample(HOUR_LINE, 0.6, (1.0, 1.4), frame=frame),
-                    f"hour lines, {basis_words}"))
-    entries.append((_fill_sample(frame), "site horizon and obstacles: the sun is hidden in "
-                                         "the hatched area"))
-    lrect = QRectF(frame.right() - legend_w, plot.top(), legend_w, plot.height())
-    below = []
-    ops += _legend(m, lrect, entries, s, frame, below)
-    # the solstice and equinox months are drawn in their own styles, keyed above
-    drawn = sorted({p.month for p in months if len(p)} - {3, 6, 9, 12})
-    key = QRectF(lrect.left(), below[0] + 2.0, lrect.width(), frame.bottom() - below[0] - 2.0)
-    ops += _month_key(m, key, drawn, s, frame)
+                    f"hour lines, {basis_words}; hours in the band above"))
+    entries.append((_fill_sample(frame), "terrain and obstacles (hatched): the sun is "
+                                         "hidden below the line"))
+    lrect = QRectF(frame.right() - legend_w, plot.top(), legend_w,
+                   frame.bottom() - plot.top())
+    ops += _legend(m, lrect, entries, s, frame)
     return ops
 
 
@@ -533,7 +534,7 @@ def monthly_chart(m: Measure, frame: QRectF, series, s: float = 1.0,
 
 #: Colours of the other series: Okabe-Ito without black (the recommendation's) and without
 #: the pale yellow (too faint for thin lines on white).
-_OTHER_COLOURS = tuple(c for c in theme.SERIES if c not in ("#000000", "#F0E442"))
+_OTHER_COLOURS = tuple(c for c in theme.LINE_SERIES if c != "#000000")
 
 
 def _series_style(v: Series):

@@ -405,6 +405,10 @@ def _chart_series(ctx: _Ctx) -> list:
 
 # -- page 2 and on ---------------------------------------------------------------------------
 
+#: Assumption rows laid on the same page as the cautions.
+KEEP_WITH_CAUTIONS = 2
+
+
 class _Flow:
     """Pages of details, filled from the top; a block that does not fit starts a new page."""
 
@@ -473,7 +477,10 @@ def _detail_pages(m: Measure, ctx: _Ctx) -> list[Page]:
             return ops + _pairs(m, col, [row], 1.0)
         return build
 
-    for i, row in enumerate(rows):
+    # the last assumption rows go with the cautions, so the cautions never stand alone
+    # on a page of their own
+    head, tail = rows[:-KEEP_WITH_CAUTIONS], rows[-KEEP_WITH_CAUTIONS:]
+    for i, row in enumerate(head):
         flow.place(pair(row, "Assumptions" if i == 0 else None))
 
     def cautions(col):
@@ -485,7 +492,13 @@ def _detail_pages(m: Measure, ctx: _Ctx) -> list[Page]:
         return [shape(rect_path(box.adjusted(0.4, 0.4, -0.4, -0.4)), box,
                       pen(CAUTION, 0.8), CAUTION_FILL, role="cautions-box")] + ops
 
-    flow.place(cautions)
+    def closing(col):
+        ops = []
+        for j, row in enumerate(tail):
+            ops += pair(row, "Assumptions" if not head and j == 0 else None)(col)
+        return ops + cautions(col)
+
+    flow.place(closing)
     return flow.pages
 
 

@@ -7,6 +7,11 @@
 - The effective horizon (profile and obstacles merged) and the annual horizon
   loss per plane are computed by the engine in the task runner.
 - Profiles are imported from and exported to two-column CSV files.
+
+The chart faces the same way as the Sun path view's flat chart
+(:func:`tiltyard.engine.sunchart_design.chart_centre_deg`): the equator beyond
+the tropics, so at a southern site north is in the middle; its points and
+lines are in chart coordinates (``chart_x``) and go back to azimuths on commit.
 """
 
 from __future__ import annotations
@@ -38,6 +43,7 @@ from tiltyard.engine.assess import AssessmentError, assessment_part, choose_basi
 from tiltyard.engine.horizon import merged_profile
 from tiltyard.engine.horizon_io import read_horizon_csv, write_horizon_csv
 from tiltyard.engine.site import HorizonProfile, Obstacle, SiteError
+from tiltyard.engine.sunchart_design import chart_centre_deg, chart_x
 from tiltyard.engine.words import bearing, compass, model_name
 
 from .. import plots, theme
@@ -119,6 +125,7 @@ class DraggablePoints(pg.ScatterPlotItem):
         self._offset = QPointF(0.0, 0.0)
         self._x = np.zeros(0)
         self._y = np.zeros(0)
+        self.bounds = (0.0, 360.0)            # the chart's edges, chart coordinates
 
     def set_points(self, x, y) -> None:
         self._x = np.asarray(x, dtype=float).copy()
@@ -133,8 +140,9 @@ class DraggablePoints(pg.ScatterPlotItem):
         return self._x.copy(), self._y.copy()
 
     def _limits(self, i: int) -> tuple[float, float]:
-        lo = 0.0 if i == 0 else self._x[i - 1] + MIN_GAP_DEG
-        hi = (360.0 - MIN_GAP_DEG) if i == self._x.size - 1 else self._x[i + 1] - MIN_GAP_DEG
+        lo = self.bounds[0] if i == 0 else self._x[i - 1] + MIN_GAP_DEG
+        hi = (self.bounds[1] - MIN_GAP_DEG) if i == self._x.size - 1 \
+            else self._x[i + 1] - MIN_GAP_DEG
         return lo, hi
 
     def move_point(self, i: int, x: float, y: float) -> tuple[float, float]:
@@ -201,6 +209,7 @@ class HorizonView(View):
     def __init__(self, ctx, parent=None):
         super().__init__(ctx, parent)
         self._updating = False
+        self._centre = 180.0                  # what the chart faces (chart_centre_deg)
         self._select_az: float | None = None
         self._merged: HorizonProfile | None = None
         self._y_range = (-5.0, 25.0)
@@ -448,13 +457,38 @@ class HorizonView(View):
         return brush
 
     def _set_ticks(self) -> None:
-        major = [(45.0 * i, f"{compass(45 * i, 8)}\n{45 * i}°") for i in range(9)]
-        minor = [(15.0 * i, "") for i in range(25) if i % 3]
+        lo = self._centre - 180.0
+        major = []
+        for i in range(9):
+            v = lo + 45.0 * i
+            az = int(round(v % 360.0))
+            major.append((v, f"{compass(az, 8)}\n{az}°"))
+        minor = [(lo + 15.0 * i, "") for i in range(25) if i % 3]
         axis = self.plot.getAxis("bottom")
         axis.setTicks([major, minor])
         axis.setStyle(hideOverlappingLabels=False)
         axis.setHeight(56)                    # two-line tick labels and the axis title
-        self.plot.setXRange(-X_MARGIN_DEG, 360.0 + X_MARGIN_DEG, padding=0.0)
+        self.plot.setXRange(lo - X_MARGIN_DEG, lo + 360.0 + X_MARGIN_DEG, padding=0.0)
+
+    def _face(self, site) -> None:
+        """Face the chart the way the Sun path view's flat chart faces for ``site``."""
+        centre = chart_centre_deg(site.latitude_deg)
+        if centre != self._centre:
+            self._centre = centre
+            self._set_ticks()
+        self.points.bounds = (centre - 180.0, centre + 180.0)
+
+    def _chart_points(self, azimuth_deg, elevation_deg):
+        """Profile points in chart coordinates, in chart order."""
+        x = chart_x(np.asarray(azimuth_deg, dtype=float), self._centre)
+        y = np.asarray(elevation_deg, dtype=float)
+        order = np.argsort(x, kind="stable")
+        return x[order], y[order]
+
+    @staticmethod
+    def _azimuths(xs) -> tuple:
+        """Chart coordinates back to azimuths 0-360 (rounded to 0.1°)."""
+        return tuple(round(float(x) % 360.0, 1) for x in xs)
 
     def _propose(self, **changes) -> bool:
         err = self.ctx.document.propose(**changes)
@@ -487,14 +521,16 @@ class HorizonView(View):
         el = np.asarray(profile.elevation_deg, dtype=float)
         if az.size == 0:
             az, el = np.array([0.0]), np.array([0.0])
-        if az[0] > 0.0:                      # close the curve across north
-            az = np.concatenate([[0.0], az])
+        lo = self._centre - 180.0
+        az, el = self._chart_points(az, el)
+        if az[0] > lo:                       # close the curve across the chart's edge
+            az = np.concatenate([[lo], az])
             el = np.concatenate([[el[-1]], el])
-        az = np.concatenate([az, [360.0]])
+        az = np.concatenate([az, [lo + 360.0]])
         el = np.concatenate([el, [el[0]]])
-        # continue the periodic horizon a little past north on both sides
-        before = az[:-1] > 360.0 - X_MARGIN_DEG - 1.0
-        after = az[1:] < X_MARGIN_DEG + 1.0
+        # continue the periodic horizon a little past the edge on both sides
+        before = az[:-1] > lo + 360.0 - X_MARGIN_DEG - 1.0
+        after = az[1:] < lo + X_MARGIN_DEG + 1.0
         az = np.concatenate([az[:-1][before] - 360.0, az, az[1:][after] + 360.0])
         el = np.concatenate([el[:-1][before], el, el[1:][after]])
         self.horizon_curve.setData(az, el)
@@ -552,9 +588,10 @@ class HorizonView(View):
         lo = min(-5.0, math.floor(min(els) / 5.0) * 5.0 - 5.0)
         hi = min(90.0, max(25.0, math.ceil((max(els) + 12.0) / 5.0) * 5.0))
         if not self.points.dragging:
+            self._face(site)
             self._y_range = (lo, hi)
             self.plot.setYRange(lo, hi, padding=0.0)
-            self.points.set_points(prof.azimuth_deg, prof.elevation_deg)
+            self.points.set_points(*self._chart_points(prof.azimuth_deg, prof.elevation_deg))
         self.horizon_curve.setFillLevel(self._y_range[0] - 100.0)
         self._draw_obstacles(site.obstacles)
         self._fill_timer.start()
@@ -566,15 +603,17 @@ class HorizonView(View):
         pen = QPen(QColor(OBSTACLE_COLOR))
         pen.setWidthF(1.5)
         pen.setCosmetic(True)
+        lo, hi = self._centre - 180.0, self._centre + 180.0
         for ob in obstacles:
             top = ob.elevation_deg
-            start = ob.bearing_deg - ob.width_deg / 2.0
-            end = ob.bearing_deg + ob.width_deg / 2.0
+            mid = float(chart_x(ob.bearing_deg, self._centre))
+            start = mid - ob.width_deg / 2.0
+            end = mid + ob.width_deg / 2.0
             spans = [(start, end)]
-            if start < 0:
-                spans = [(0.0, end), (start + 360.0, 360.0)]
-            elif end > 360:
-                spans = [(start, 360.0), (0.0, end - 360.0)]
+            if start < lo:
+                spans = [(lo, end), (start + 360.0, hi)]
+            elif end > hi:
+                spans = [(start, hi), (lo, end - 360.0)]
             for a, b in spans:
                 rect = QGraphicsRectItem(QRectF(a, 0.0, b - a, top))
                 rect.setPen(pen)
@@ -584,10 +623,10 @@ class HorizonView(View):
                 self._obstacle_items.append(rect)
             text = pg.TextItem(f"{ob.label}\n{_fmt(top)}°", color=theme.TEXT, anchor=(0.5, 1.0))
             text.setFont(theme.plot_font(8.5))
-            x = ob.bearing_deg
-            if start < 0 or end > 360:
-                x = max(end - 360.0, 0.0) / 2.0 if end > 360 else end / 2.0
-            text.setPos(min(max(x, 12.0), 348.0), top)
+            x = mid
+            if start < lo or end > hi:
+                x = lo + (max(end - 360.0, lo) - lo) / 2.0 if end > hi else lo + (end - lo) / 2.0
+            text.setPos(min(max(x, lo + 12.0), hi - 12.0), top)
             text.setZValue(5)
             self.plot.addItem(text)
             self._obstacle_items.append(text)
@@ -633,12 +672,12 @@ class HorizonView(View):
 
     # -- profile edits ----------------------------------------------------------------
     def _point_moved(self, index: int, az: float, el: float) -> None:
-        self.readout.setText(f"Point {index + 1}: azimuth {bearing(az, decimals=1)}, "
+        self.readout.setText(f"Point {index + 1}: azimuth {bearing(az % 360.0, decimals=1)}, "
                              f"elevation {el:.1f}° — let go to keep it")
         xs, ys = self.points.values()
         site = self.ctx.site
         try:
-            preview = site.with_changes(horizon=HorizonProfile(tuple(xs.tolist()),
+            preview = site.with_changes(horizon=HorizonProfile(self._azimuths(xs),
                                                                tuple(ys.tolist())))
         except SiteError:
             return
@@ -648,7 +687,7 @@ class HorizonView(View):
         self.readout.setText("Drag a point up, down or sideways to reshape the horizon; "
                              "it is stored when you let go.")
         try:
-            profile = HorizonProfile(xs, ys)
+            profile = HorizonProfile(self._azimuths(xs), ys)
         except SiteError as exc:
             self.ctx.notify("error", str(exc))
             self.show_site(self.ctx.site)

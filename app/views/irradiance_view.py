@@ -64,11 +64,11 @@ MONTHLY_MISSING = ("this site has no monthly mean daily GHI values; enter the 12
 
 # day curves: key, pen (colour, width, dash) — colour and dash both differ, for greyscale
 _DAY_STYLE = {
-    "poa": (theme.SERIES[0], 2.6, Qt.PenStyle.SolidLine),
-    "ghi": (theme.SERIES[1], 2.0, Qt.PenStyle.DashLine),
-    "dni": (theme.SERIES[2], 2.0, Qt.PenStyle.DotLine),
-    "dhi": (theme.SERIES[3], 2.0, Qt.PenStyle.DashDotLine),
-    "ghi_clear": (theme.SERIES[4], 1.4, Qt.PenStyle.DashDotDotLine),
+    "poa": (theme.LINE_SERIES[0], 2.6, Qt.PenStyle.SolidLine),
+    "ghi": (theme.LINE_SERIES[1], 2.0, Qt.PenStyle.DashLine),
+    "dni": (theme.LINE_SERIES[2], 2.0, Qt.PenStyle.DotLine),
+    "dhi": (theme.LINE_SERIES[3], 2.0, Qt.PenStyle.DashDotLine),
+    "ghi_clear": (theme.LINE_SERIES[4], 1.4, Qt.PenStyle.DashDotDotLine),
     "dni_extra": (theme.CATEGORICAL[0], 1.2, Qt.PenStyle.DashLine),
 }
 _SHADE = QColor(90, 96, 88, 40)   # sun up but behind the site horizon
@@ -81,11 +81,31 @@ def _pen(key: str):
     return pen
 
 
+#: At most this many bar series on the monthly chart (more are not told apart).
+MAX_BAR_SERIES = 6
+#: Each bar series has its own fill pattern as well as its own colour, so the bars are
+#: told apart without colour (deuteranopia, protanopia, grey print).
+BAR_PATTERNS = (Qt.BrushStyle.SolidPattern, Qt.BrushStyle.BDiagPattern,
+                Qt.BrushStyle.Dense4Pattern, Qt.BrushStyle.FDiagPattern,
+                Qt.BrushStyle.DiagCrossPattern, Qt.BrushStyle.HorPattern)
+
+
 def _bar_brush(i: int) -> QBrush:
-    colour = theme.series_color(i)
-    if i >= len(theme.SERIES):  # colours repeat: hatch the second round
-        return QBrush(colour, Qt.BrushStyle.BDiagPattern)
-    return QBrush(colour)
+    return QBrush(theme.series_color(i), BAR_PATTERNS[i % len(BAR_PATTERNS)])
+
+
+def bar_rows(rows) -> tuple[list, list]:
+    """The rows drawn as bars and the rows left to the table.
+
+    Bars show one sky basis only: the site's own rows (horizontal and planes) and the
+    study's options on the same basis, at most :data:`MAX_BAR_SERIES`; study rows on
+    another basis (a clear-sky study beside a weather file) stay in the table.
+    """
+    own = [r for r in rows if not r.from_study]
+    basis = own[0].sky_label if own else (rows[0].sky_label if rows else None)
+    same = [r for r in rows if r.sky_label == basis]
+    shown = same[:MAX_BAR_SERIES]
+    return shown, [r for r in rows if r not in shown]
 
 
 def _swatch_icon(i: int) -> QIcon:
@@ -202,6 +222,7 @@ class IrradianceView(View):
         self._planes: list[tuple[str, float, float]] = []
         self.day = None          # the DayCurves on show
         self.rows = ()           # the OptionTotals on show
+        self.rows_not_barred = []  # of those, the ones only in the table (bar_rows)
         self._dialog = None
 
         outer = QVBoxLayout(self)
@@ -613,11 +634,12 @@ class IrradianceView(View):
             self.bars_plot.removeItem(item)
         self.bar_items = []
         self.bars_legend.clear()
-        n = len(self.rows)
+        shown, self.rows_not_barred = bar_rows(self.rows)
+        n = len(shown)
         group = 0.84
         width = group / max(n, 1)
         top = 0.0
-        for i, r in enumerate(self.rows):
+        for i, r in enumerate(shown):
             if i and i % 4 == 0:
                 yield
             x = np.arange(1, 13) - group / 2 + width * (i + 0.5)
@@ -636,7 +658,9 @@ class IrradianceView(View):
     def _show_row_notes(self) -> None:
         own = [r.sky_label for r in self.rows if not r.from_study]
         basis = own[0] if own else ""
-        self.bars_title.setText(f"Monthly mean daily irradiation per option: {basis}")
+        left = self.rows_not_barred
+        more = f" ({len(left)} more in the table)" if left else ""
+        self.bars_title.setText(f"Monthly mean daily irradiation per option: {basis}{more}")
         # the study's options come from the same assessment, on the same sky
         self.study_note.setText("")
         self.study_note.setVisible(False)
@@ -644,9 +668,11 @@ class IrradianceView(View):
     def _fill_table(self) -> None:
         m = self.table_model
         m.removeRows(0, m.rowCount())
-        for i, r in enumerate(self.rows):
+        shown = bar_rows(self.rows)[0]
+        for r in self.rows:
             name = _Item(degree_text(r.label))
-            name.setIcon(_swatch_icon(i))
+            if r in shown:
+                name.setIcon(_swatch_icon(shown.index(r)))
             loss = ("—" if r.horizon_loss_pct is None else f"{r.horizon_loss_pct:.1f}")
             cells = [name, _Item(r.plane_text),
                      _Item(f"{r.annual_kwh_m2:,.0f}", r.annual_kwh_m2),

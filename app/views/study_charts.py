@@ -195,6 +195,7 @@ class StudyChartDrawing:
         yield
 
         # contour levels, in the grid's own pixels (centres at index + 0.5)
+        contour_labels = []
         for level, width in ((80.0, 1.0), (90.0, 1.0), (95.0, 1.3), (98.0, 1.6)):
             if level <= lo:
                 continue
@@ -216,6 +217,7 @@ class StudyChartDrawing:
             tx = pg.TextItem(f"{level:.0f} %", color=(255, 255, 255), anchor=(0.5, 1.0))
             tx.setFont(theme.plot_font(7.5))
             tx.setPos(xs[k], ys[k])
+            contour_labels.append((f"{level:.0f} %", xs[k], ys[k]))
             mp.addItem(tx)
             self._map_overlay.append(tx)
             yield
@@ -242,16 +244,23 @@ class StudyChartDrawing:
             pct_text = f"{pct:.1f}" if 99.5 <= pct < 100.0 else f"{pct:.0f}"
             labels.append((f"{pl.label} ({pct_text} %)", px, pl.tilt_deg))
             self.map_markers.append((pl.label, px, pl.tilt_deg))
-        self._place_labels(mp, labels, [(mx, my) for _n, mx, my in self.map_markers])
+        self._place_labels(mp, labels, [(mx, my) for _n, mx, my in self.map_markers],
+                           contour_labels)
 
-    def _place_labels(self, plot, labels, markers) -> None:
-        """Put each (text, x, y) label beside its marker, clear of the others and inside."""
+    def _place_labels(self, plot, labels, markers, fixed=()) -> None:
+        """Put each (text, x, y) label beside its marker, clear of the others, of the
+        ``fixed`` (text, x, y) contour labels (centred above their point) and inside."""
         vb = plot.getViewBox()
         sx, sy = (abs(v) for v in vb.viewPixelSize())
         (xmin, xmax), (ymin, ymax) = vb.viewRange()
         font = theme.plot_font(8)
         fm = QFontMetrics(font)
         taken = [(mx - 7 * sx, my - 7 * sy, mx + 7 * sx, my + 7 * sy) for mx, my in markers]
+        small = QFontMetrics(theme.plot_font(7.5))
+        for text, fx, fy in fixed:
+            fw, fh = (small.horizontalAdvance(text) + 8) * sx, (small.height() + 6) * sy
+            taken.append((fx - fw / 2, fy, fx + fw / 2, fy + fh))
+        self.contour_label_boxes = taken[len(markers):]
 
         def clamp(b):
             dx = max(0.0, xmin - b[0]) - max(0.0, b[2] - xmax)

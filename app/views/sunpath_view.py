@@ -8,9 +8,14 @@ Two charts of the same sky:
 - **seen from above**, like a map: north up, east to the right, the zenith at
   the centre and rings at 0°, 30° and 60° elevation.
 
-Both show the day paths of the solstices, the equinoxes and the 21st of every
-month (month colours), the hour lines in the chosen time basis, the site
-horizon with its obstacles filled below the line, and the chosen date in bold.
+Both show the date arcs (by default the solstices and the equinoxes, the other
+months on request, two months with the same sun path sharing an arc), each
+labelled on the arc itself; the hour lines in the chosen time basis, with their
+labels in a band of their own above every path; the site horizon drawn as
+terrain, the obstacles hatched on it; and the chosen date in bold. The flat
+chart's centring, the arcs and the hour band are the engine's
+(:mod:`tiltyard.engine.sunchart_design`); in the tropics the flat chart faces
+east so that no path is cut, and the from-above chart leads.
 All numbers come from :func:`tiltyard.engine.sunchart.sun_chart`, run through
 the task runner; this module only maps them to the screen.
 """
@@ -24,8 +29,9 @@ import zoneinfo
 import numpy as np
 import pyqtgraph as pg
 from PySide6.QtCore import QDate, QPointF, Qt
-from PySide6.QtGui import QColor, QStandardItem, QStandardItemModel
+from PySide6.QtGui import QBrush, QColor, QStandardItem, QStandardItemModel
 from PySide6.QtWidgets import (
+    QCheckBox,
     QComboBox,
     QDateEdit,
     QHBoxLayout,
@@ -37,6 +43,7 @@ from PySide6.QtWidgets import (
 )
 
 from tiltyard.engine.sunchart import sun_chart
+from tiltyard.engine.sunchart_design import chart_x
 from tiltyard.engine.words import MONTH_ABBR, TIME_BASIS_WORDS, bearing, compass, compass_tick
 
 from .. import plots, theme
@@ -47,7 +54,16 @@ from ..widgets import CopyableTable, View
 BASIS_SHORT = {"clock": "clock time", "standard": "standard time", "solar": "solar time"}
 
 
-HOUR_LINE_COLOR = "#8b9198"
+HOUR_LINE_COLOR = "#9aa0a6"
+#: The hour band's fill (a light strip above the paths).
+HOUR_BAND_FILL = (238, 241, 244)
+#: Obstacles on the sun charts: hatched in the categorical palette's vermillion.
+OBSTACLE_COLOR = theme.SERIES[1]
+#: Terrain (the measured profile) below the horizon line: a muted earth tone.
+TERRAIN_FILL = (176, 166, 140, 170)
+TERRAIN_LINE = "#6e6650"
+#: The from-above chart's skyline: a light outline.
+SKYLINE_COLOR = "#8a8272"
 HOUR_TEXT_COLOR = "#4b525a"
 LABEL_FILL = (255, 255, 255, 190)     # behind hour and ring labels, so lines do not cross them
 #: Hour labels nearer the zenith than this (degrees) are written at this distance.
@@ -72,19 +88,6 @@ def duration(hours: float) -> str:
     """A duration as ``15 h 38 min``."""
     m = int(round(hours * 60.0))
     return f"{m // 60} h {m % 60:02d} min"
-
-
-def chart_x(azimuth_deg, centre_deg: float) -> np.ndarray:
-    """Horizontal chart coordinate of an azimuth on a chart centred on ``centre_deg``.
-
-    Centred on 180° (northern sites) the coordinate is the azimuth itself,
-    0..360 with east on the left; centred on 0° (southern sites) it is the
-    azimuth folded to -180..180, so east (90) is on the right. (Facing the
-    equator, east is on the observer's left in the north and right in the
-    south: common practice, no source.)
-    """
-    az = np.asarray(azimuth_deg, dtype=float)
-    return np.mod(az - centre_deg + 180.0, 360.0) - 180.0 + centre_deg
 
 
 def split_at_edges(azimuth_deg, elevation_deg, centre_deg: float):
@@ -126,6 +129,40 @@ def split_at_edges(azimuth_deg, elevation_deg, centre_deg: float):
     return np.concatenate(xs), np.concatenate(ys)
 
 
+_POINTS = {0.0: "north", 90.0: "east", 180.0: "south", 270.0: "west"}
+
+
+def facing_words(centre_deg: float) -> str:
+    """``"facing south, east on the left"``; on an east- or west-facing chart the side
+    north is on (``"facing east, north on the left"``)."""
+    c = centre_deg % 360.0
+    name = _POINTS.get(c) or compass(c, 8)
+    ref = 90.0 if c in (0.0, 180.0) else 0.0
+    side = "left" if chart_x(ref, centre_deg) < centre_deg else "right"
+    return f"facing {name}, {_POINTS[ref]} on the {side}"
+
+
+def obstacle_brush() -> QBrush:
+    return QBrush(QColor(OBSTACLE_COLOR), Qt.BrushStyle.BDiagPattern)
+
+
+def _edge_to_edge(azimuth_deg, elevation_deg, centre_deg: float):
+    """A horizon (or obstacle) line from one edge of the flat chart to the other, sorted
+    by chart x; NaNs (no obstacle) are kept as gaps."""
+    hx = chart_x(azimuth_deg, centre_deg)
+    hy = np.asarray(elevation_deg, dtype=float)
+    order = np.argsort(hx, kind="stable")
+    hx, hy = hx[order], hy[order]
+    hx, keep = np.unique(hx, return_index=True)
+    hy = hy[keep]
+    lo, hi = centre_deg - 180.0, centre_deg + 180.0
+    if hx[0] > lo:
+        hx, hy = np.append(lo, hx), np.append(hy[-1], hy)
+    if hx[-1] < hi:
+        hx, hy = np.append(hx, hi), np.append(hy, hy[0])
+    return hx, hy
+
+
 def polar_xy(azimuth_deg, elevation_deg):
     """Map x/y seen from above: north up, east right, radius = 90° - elevation.
 
@@ -147,6 +184,26 @@ def _pen(color, width: float, style=Qt.PenStyle.SolidLine):
 
 def _hex(c: QColor) -> str:
     return c.name()
+
+
+#: Month-pair arcs alternate dash-dot and dotted, so neighbouring arcs (next in the ramp,
+#: nearly alike under colour-vision deficiency) never share a pattern.
+MONTH_ARC_DASHES = (Qt.PenStyle.DotLine, Qt.PenStyle.DashDotLine)
+
+
+def arc_pen(arc, index: int):
+    """Solstices solid and thick, equinoxes dashed and thick, month pairs thin dotted or
+    dash-dot: told apart by pattern as well as colour (and each is labelled on its arc)."""
+    color = theme.arc_color(index)
+    if arc.kind == "solstice":
+        return _pen(color, 2.6)
+    if arc.kind == "equinox":
+        return _pen(color, 2.4, Qt.PenStyle.DashLine)
+    return _pen(color, 1.4, MONTH_ARC_DASHES[index % 2])
+
+
+def arc_shown(arc, every_month: bool) -> bool:
+    return arc.default or every_month
 
 
 class SunPathView(View):
@@ -193,6 +250,10 @@ class SunPathView(View):
         self.basis.setToolTip("Time basis of the hour lines, the readout and the tables")
         top.addWidget(self.basis)
         outer.addLayout(top)
+        self.every_month = QCheckBox("Every month")
+        self.every_month.setToolTip("Draw the 21st of every month as well as the solstices "
+                                    "and equinoxes (two months with the same sun path share "
+                                    "an arc)")
 
         # -- charts ---------------------------------------------------------------
         charts = QWidget()
@@ -211,6 +272,7 @@ class SunPathView(View):
             p.setMouseEnabled(x=False, y=False)
         cl.addWidget(self.cart, 3)
         cl.addWidget(self.polar, 2)
+        self._charts_layout = cl
         self._setup_cartesian()
         self._setup_polar()
 
@@ -226,7 +288,10 @@ class SunPathView(View):
         ul.setContentsMargins(0, 0, 0, 0)
         ul.setSpacing(2)
         ul.addWidget(charts, 1)
-        ul.addWidget(self.legend)
+        key = QHBoxLayout()
+        key.addWidget(self.legend, 1)
+        key.addWidget(self.every_month, 0, Qt.AlignmentFlag.AlignTop)
+        ul.addLayout(key)
         ul.addWidget(self.readout)
 
         # -- chosen date and the monthly table --------------------------------------
@@ -263,6 +328,8 @@ class SunPathView(View):
             lambda d: (ctx.set_design_date(d.toPython()), self.mark_stale()))
         ctx.design_date_changed.connect(self._design_date_changed)
         self.basis.currentIndexChanged.connect(lambda _i: self.mark_stale())
+        self.every_month.toggled.connect(
+            lambda _on: self._show_chart(self.chart) if self.chart is not None else None)
         ctx.preferences_changed.connect(lambda prefs: self._set_basis(prefs.time_basis))
         self._proxies = [
             pg.SignalProxy(self.cart.scene().sigMouseMoved, rateLimit=30,
@@ -313,8 +380,9 @@ class SunPathView(View):
 
     @staticmethod
     def _label_layer(plot) -> LabelLayer:
-        """The hour labels of one chart, drawn together above the lines."""
-        layer = LabelLayer(theme.plot_font(8.5), HOUR_TEXT_COLOR, LABEL_FILL)
+        """Labels of one chart, drawn together above the lines, none over another."""
+        layer = LabelLayer(theme.plot_font(8.5), HOUR_TEXT_COLOR, LABEL_FILL,
+                           avoid_overlap=True)
         layer.setZValue(12)
         plot.addItem(layer)
         return layer
@@ -326,10 +394,17 @@ class SunPathView(View):
         p.getAxis("left").setWidth(44)
         self._cart_items: dict = {}
         self._cart_labels = self._label_layer(p)
+        self._arc_labels = self._label_layer(p)
         self.horizon_item = self._item(p, self._cart_items, "horizon", 5,
-                                       _pen(theme.HORIZON_LINE, 1.4))
+                                       _pen(TERRAIN_LINE, 1.2))
         self.horizon_item.setFillLevel(-100.0)
-        self.horizon_item.setBrush(pg.mkBrush(*theme.HORIZON_FILL))
+        self.horizon_item.setBrush(pg.mkBrush(*TERRAIN_FILL))
+        self.obstacle_item = self._item(p, self._cart_items, "obstacles", 6,
+                                        _pen(OBSTACLE_COLOR, 1.2))
+        self.obstacle_item.setFillLevel(-100.0)
+        self.obstacle_item.setBrush(obstacle_brush())
+        self.band_item = self._item(p, self._cart_items, "hour band", 0.5, pg.mkPen(None))
+        self.band_item.setBrush(pg.mkBrush(*HOUR_BAND_FILL))
         self.day_item = self._day_items(p, self._cart_items)
 
     def _day_items(self, plot, store):
@@ -362,12 +437,17 @@ class SunPathView(View):
         self._polar_items: dict = {}
         self._polar_texts: dict = {}
         self._polar_labels = self._label_layer(p)
-        # horizon: between the outer ring (0° elevation) and the horizon line
+        self._polar_arc_labels = self._label_layer(p)
+        self._skyline_labels: list[Label] = []   # go on the arc labels' layer, first
+        # skyline: a light outline over a faint fill between the 0° ring and the skyline,
+        # with elevation ticks at its highest points
         self._polar_outer = pg.PlotCurveItem(pen=pg.mkPen(None))
-        self._polar_horizon = pg.PlotCurveItem(pen=_pen(theme.HORIZON_LINE, 1.4))
+        self._polar_horizon = pg.PlotCurveItem(pen=_pen(SKYLINE_COLOR, 1.0))
         fill = pg.FillBetweenItem(self._polar_outer, self._polar_horizon,
-                                  brush=pg.mkBrush(*theme.HORIZON_FILL))
-        for it, z in ((self._polar_outer, 5), (fill, 5), (self._polar_horizon, 6)):
+                                  brush=pg.mkBrush(*TERRAIN_FILL[:3], 70))
+        self._skyline_ticks = pg.PlotCurveItem(pen=_pen(TERRAIN_LINE, 1.2))
+        for it, z in ((self._polar_outer, 5), (fill, 5), (self._polar_horizon, 6),
+                      (self._skyline_ticks, 6)):
             it.setZValue(z)
             p.addItem(it)
         # elevation rings and bearings
@@ -397,6 +477,16 @@ class SunPathView(View):
         p.addItem(zen)
         self.polar_day_item = self._day_items(p, self._polar_items)
         p.setRange(xRange=(-106, 106), yRange=(-104, 104), padding=0)
+
+    def _lead_with(self, lead: str) -> None:
+        """Put the leading chart first and larger (the from-above chart in the tropics)."""
+        cl = self._charts_layout
+        first, second = (self.polar, self.cart) if lead == "above" else (self.cart, self.polar)
+        if cl.indexOf(first) != 0:
+            cl.removeWidget(first)
+            cl.insertWidget(0, first)
+        cl.setStretch(0, 3)
+        cl.setStretch(1, 2)
 
     def _show_site_label(self, site) -> None:
         hemi = "N" if site.latitude_deg >= 0 else "S"
@@ -430,41 +520,57 @@ class SunPathView(View):
             lambda: self._show_day(chart),
             lambda: self._show_events(chart)))
 
-    @staticmethod
-    def _path_pen(curve):
-        color = theme.month_color(curve.month)
-        return _pen(color, 2.6 if curve.kind in ("solstice", "equinox") else 1.3)
+    def _arcs(self, chart):
+        """(index, arc) of the arcs to draw, lowest sun first (the index picks the colour)."""
+        on = self.every_month.isChecked()
+        return [(i, a) for i, a in enumerate(chart.arcs) if arc_shown(a, on)]
 
-    def _draw_paths(self, plot, items, chart, mapper, pick_mapper):
-        """Day paths (solstices and equinoxes above the 21sts) and the pick lists.
+    def _draw_paths(self, plot, items, chart, mapper, pick_mapper, layer, first=()):
+        """The date arcs, their labels on ``layer`` and the pick lists.
 
         A generator: drawing pauses every few items (see ``run_in_stages``).
+        Arcs not shown are given no data (their items are kept for reuse). ``first``
+        are labels that go on ``layer`` before the arcs' (they win a place).
         """
-        shown = {}
+        shown, labels = {}, list(first)
         pick = [(chart.day, *pick_mapper(chart.day.azimuth_deg, chart.day.elevation_deg))]
-        for n, curve in enumerate(chart.paths):
+        drawn = dict(self._arcs(chart))
+        for n, (i, arc) in enumerate(enumerate(chart.arcs)):
             if n and n % PER_TURN == 0:
                 yield
+            curve = arc.curve
             item = self._item(plot, items, ("path", curve.label),
-                              3 if curve.kind == "month" else 4, self._path_pen(curve))
+                              3 if arc.kind == "month" else 4, arc_pen(arc, i))
+            if i not in drawn:
+                self._set(item, [], [])
+                continue
             self._set(item, *mapper(curve.azimuth_deg, curve.elevation_deg))
             shown[curve.label] = item
             pick.append((curve, *pick_mapper(curve.azimuth_deg, curve.elevation_deg)))
+            if arc.label_index >= 0:
+                j = arc.label_index
+                x, y = pick_mapper(curve.azimuth_deg[j:j + 1], curve.elevation_deg[j:j + 1])
+                labels.append(Label(float(np.asarray(x)[0]), float(np.asarray(y)[0]),
+                                    arc.label, 0.5, 1.15, color=theme.TEXT))
+        # the key says what the dashes mean
+        layer.set_labels(labels)
         return shown, pick
 
     def _draw_hours(self, plot, items, layer, chart, mapper, place_label):
         """All hour lines as one curve (NaN between hours) and their labels on ``layer``.
 
-        ``place_label(line)`` gives the label's (x, y, anchor_x, anchor_y).
-        Returns {hour: Label}.
+        ``place_label(line)`` gives the label's (x, y, anchor_x, anchor_y), or None
+        for a line left unlabelled. Returns {hour: Label}.
         """
         xs, ys, labels = [], [], {}
         for line in chart.hour_lines:
             x, y = mapper(line.azimuth_deg, line.elevation_deg)
             xs += [np.asarray(x, dtype=float), [np.nan]]
             ys += [np.asarray(y, dtype=float), [np.nan]]
-            lx, ly, ax, ay = place_label(line)
-            labels[line.hour] = Label(float(lx), float(ly), f"{line.hour}", ax, ay)
+            at = place_label(line)
+            if at is not None:
+                lx, ly, ax, ay = at
+                labels[line.hour] = Label(float(lx), float(ly), f"{line.hour}", ax, ay)
         item = self._item(plot, items, "hours", 1, _pen(HOUR_LINE_COLOR, 1.0))
         self._set(item, np.concatenate(xs) if xs else [], np.concatenate(ys) if ys else [])
         layer.set_labels(labels.values())
@@ -472,46 +578,46 @@ class SunPathView(View):
 
     def _draw_cartesian(self, chart) -> None:
         p = self.cart.getPlotItem()
-        centre = chart.equator_azimuth_deg
+        centre = chart.centre_azimuth_deg
         lo, hi = centre - 180.0, centre + 180.0
-        facing = "south" if centre == 180.0 else "north"
-        side = "left" if centre == 180.0 else "right"
-        p.setTitle(f"Elevation against azimuth · facing {facing}, east on the {side}",
+        self._lead_with(chart.lead)
+        p.setTitle(f"Elevation against azimuth · {facing_words(centre)}",
                    color=theme.TEXT, size="10pt")
         # x ticks: compass letters and degrees every 45°, minor ticks every 15°; the two
-        # edges (both the direction away from the equator) carry the letter only, so it fits
-        major = [(v, compass(v, 8) if v in (lo, hi) else compass_tick(v))
+        # edges (both the direction opposite the centre) carry the letter only, so it fits
+        major = [(v, compass(v % 360.0, 8) if v in (lo, hi) else compass_tick(v % 360.0))
                  for v in np.arange(lo, hi + 1, 45.0)]
         minor = [(v, "") for v in np.arange(lo, hi + 1, 15.0) if v % 45]
         p.getAxis("bottom").setTicks([major, minor])
 
-        # horizon filled below its line
-        hx = chart_x(chart.horizon_azimuth_deg, centre)
-        order = np.argsort(hx, kind="stable")
-        hx, hy = hx[order], chart.horizon_elevation_deg[order]
-        hx, keep = np.unique(hx, return_index=True)
-        hy = hy[keep]
-        if hx[0] > lo:
-            hx, hy = np.append(lo, hx), np.append(hy[-1], hy)
-        if hx[-1] < hi:
-            hx, hy = np.append(hx, hi), np.append(hy, hy[0])
+        # terrain filled below the horizon line, obstacles hatched on it
+        hx, hy = _edge_to_edge(chart.horizon_azimuth_deg, chart.horizon_elevation_deg, centre)
         self._set(self.horizon_item, hx, hy)
+        ox, oy = _edge_to_edge(chart.horizon_azimuth_deg, chart.obstacle_elevation_deg, centre)
+        self._set(self.obstacle_item, ox, oy)
+        band = chart.hour_band
+        self._set(self.band_item, [lo - 10.0, hi + 10.0], [band.high_deg, band.high_deg])
+        self.band_item.setFillLevel(band.low_deg)
         yield
 
         def split(az, el):
             return split_at_edges(az, el, centre)
 
+        at = dict(zip(band.hours, band.azimuth_deg, strict=True))
+        mid = 0.5 * (band.low_deg + band.high_deg)
+
         def place(line):
-            return (float(chart_x(line.label_azimuth_deg, centre)), line.label_elevation_deg,
-                    0.5, 1.1 if line.label_on_top else -0.1)
+            if line.hour not in at:
+                return None
+            return at[line.hour], mid, 0.5, 0.5
 
         self.hour_labels = self._draw_hours(p, self._cart_items, self._cart_labels, chart,
                                             split, place)
 
     def _draw_cartesian_paths(self, chart) -> None:
-        """Second half of the cartesian chart: day paths, the chosen day, the range."""
+        """Second half of the flat chart: date arcs, the chosen day, the range."""
         p = self.cart.getPlotItem()
-        centre = chart.equator_azimuth_deg
+        centre = chart.centre_azimuth_deg
         lo, hi = centre - 180.0, centre + 180.0
         hy = chart.horizon_elevation_deg
 
@@ -519,12 +625,12 @@ class SunPathView(View):
             return split_at_edges(az, el, centre)
 
         self.path_items, self._pick["cart"] = yield from self._draw_paths(
-            p, self._cart_items, chart, split, lambda az, el: (chart_x(az, centre), el))
+            p, self._cart_items, chart, split, lambda az, el: (chart_x(az, centre), el),
+            self._arc_labels)
         self._set_day(self._cart_items, chart.day, split)
 
-        max_el = max([float(np.max(c.elevation_deg)) for c in chart.paths if len(c)] + [10.0])
         ymin = min(-2.0, math.floor(float(np.min(hy))) - 2.0)
-        ymax = min(92.0, max(30.0, math.ceil((max_el + 8.0) / 10.0) * 10.0))
+        ymax = chart.hour_band.high_deg
         # a little room at the sides so the edge ticks show their letters
         p.setRange(xRange=(lo - 6.0, hi + 6.0), yRange=(ymin, ymax), padding=0.0)
 
@@ -535,6 +641,7 @@ class SunPathView(View):
         ox, oy = polar_xy(az, np.zeros_like(az))
         self._set(self._polar_outer, ox, oy)
         self._set(self._polar_horizon, hx, hy)
+        self._set_skyline_ticks(chart)
         # ring labels on the side away from the equator, where paths are fewest;
         # the zenith's label on that side of the centre
         pole = 0.0 if chart.equator_azimuth_deg == 180.0 else 180.0
@@ -550,6 +657,15 @@ class SunPathView(View):
         zen = self._polar_texts[("ring", 90.0)]
         zen.setAnchor((0.5, 1.2) if pole == 0.0 else (0.5, -0.2))
         zen.setPos(0.0, 0.0)
+        # the ring labels (and the skyline's) are written on the arc labels' layer, first,
+        # so an arc label never covers one
+        rings = []
+        for key, t in self._polar_texts.items():
+            if key[0] != "ring":
+                continue
+            t.setVisible(False)
+            rings.append(Label(t.pos().x(), t.pos().y(), t.toPlainText(), t.anchor.x(),
+                               t.anchor.y(), color=theme.MUTED, font_pt=8.0))
 
         def place(line):
             br = math.radians(line.label_azimuth_deg)
@@ -568,29 +684,58 @@ class SunPathView(View):
         self.polar_hour_labels = self._draw_hours(p, self._polar_items, self._polar_labels,
                                                   chart, polar_xy, place)
         self.polar_path_items, self._pick["polar"] = yield from self._draw_paths(
-            p, self._polar_items, chart, polar_xy, polar_xy)
+            p, self._polar_items, chart, polar_xy, polar_xy, self._polar_arc_labels,
+            rings + self._skyline_labels + list(self.polar_hour_labels.values()))
+        self._polar_labels.set_labels(())       # written on the one layer above
         self._set_day(self._polar_items, chart.day, polar_xy)
 
+    def _set_skyline_ticks(self, chart) -> None:
+        """Elevation ticks on the skyline: a short radial tick and its elevation at the
+        skyline's highest points (up to three, at least 40° of azimuth apart)."""
+        az = np.asarray(chart.horizon_azimuth_deg[:-1], dtype=float)
+        el = np.asarray(chart.horizon_elevation_deg[:-1], dtype=float)
+        picks = []
+        for i in np.argsort(-el, kind="stable"):
+            if el[i] < 2.0 or len(picks) == 3:
+                break
+            if all(abs(((az[i] - az[j]) + 180.0) % 360.0 - 180.0) >= 40.0 for j in picks):
+                picks.append(int(i))
+        xs, ys, labels = [], [], []
+        for i in picks:
+            b = math.radians(az[i])
+            r0, r1 = 90.0 - el[i], 90.0 - el[i] - 4.0
+            xs += [r0 * math.sin(b), r1 * math.sin(b), np.nan]
+            ys += [r0 * math.cos(b), r1 * math.cos(b), np.nan]
+            labels.append(Label(r1 * math.sin(b), r1 * math.cos(b), f"{el[i]:.0f}°",
+                                0.5 + 0.6 * math.sin(b), 0.5 - 0.6 * math.cos(b),
+                                color=TERRAIN_LINE))
+        self._set(self._skyline_ticks, xs, ys)
+        self._skyline_labels = labels
+
     def _show_legend(self, chart) -> None:
-        months = " ".join(
-            f"<span style='color:{_hex(theme.month_color(m))}; font-size:13pt'>━</span>"
-            f"&nbsp;{MONTH_ABBR[m - 1]}" for m in range(1, 13))
-        hz = "rgba({},{},{},{:.2f})".format(*theme.HORIZON_FILL[:3], theme.HORIZON_FILL[3] / 255)
+        """The key: each arc drawn (its label, dates and pattern), the chosen date, the
+        hour lines, terrain and obstacles."""
+        pattern = {"solstice": "━━", "equinox": "╍╍", "month": "─·─"}
+        arcs = " &nbsp; ".join(
+            f"<span style='color:{_hex(theme.arc_color(i))}; font-size:12pt'>"
+            f"{pattern[a.kind]}</span>&nbsp;{a.label}" for i, a in self._arcs(chart))
         basis = BASIS_SHORT[chart.basis]
+        terrain = "rgba({},{},{},{:.2f})".format(*TERRAIN_FILL[:3], TERRAIN_FILL[3] / 255)
+        more = "" if self.every_month.isChecked() else " (tick “Every month” for the rest)"
         self.legend.setText(
-            f"<span style='color:{theme.MUTED}'>21st of each month:</span> {months}"
-            " &nbsp;·&nbsp; thick: solstices and equinoxes"
+            f"<span style='color:{theme.MUTED}'>Sun paths:</span> {arcs}{more}"
             f"<br><span style='color:{theme.ACCENT}; font-size:13pt'>━</span>&nbsp;"
             f"{chart.day.label} (dotted where the horizon hides the sun)"
             f" &nbsp;·&nbsp; <span style='color:{HOUR_LINE_COLOR}; font-size:13pt'>━</span>"
-            f"&nbsp;hour lines, {basis}"
-            f" &nbsp;·&nbsp; <span style='background:{hz}'>&nbsp;&nbsp;&nbsp;&nbsp;</span>"
-            "&nbsp;horizon and obstacles")
+            f"&nbsp;hour lines, {basis} (labels in the band above)"
+            f" &nbsp;·&nbsp; <span style='background:{terrain}'>&nbsp;&nbsp;&nbsp;&nbsp;</span>"
+            f"&nbsp;terrain &nbsp;·&nbsp; <span style='color:{OBSTACLE_COLOR}'>▨</span>"
+            "&nbsp;obstacles")
+
 
     def _basis_note(self, chart) -> str:
         if chart.basis == "solar":
-            return "apparent solar time (12:00 = the sun due " + (
-                "south" if chart.equator_azimuth_deg == 180.0 else "north") + " or overhead)"
+            return "apparent solar time (12:00 = the sun on the meridian)"
         zone = zoneinfo.ZoneInfo(chart.timezone)
         offs = []
         for month in (1, 7):

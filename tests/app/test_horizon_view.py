@@ -294,7 +294,22 @@ def test_screenshot(qtbot, make_ctx, idle, artefacts_dir, demo):
     assert view.profile_table.rowCount() == len(site.horizon.azimuth_deg)
     assert view.obstacle_table.rowCount() == len(site.obstacles)
     x, y = view.horizon_curve.getData()
-    assert x.size > 360 and x.min() < 0.0 and x.max() > 360.0
+    # the chart faces the way the Sun path view's flat chart does: the equator beyond
+    # the tropics (north in the middle at the southern shed), east at the tropical clinic
+    centre = {"kelpie-creek-shed": 0.0, "coral-lane-clinic": 90.0}.get(demo, 180.0)
+    assert view._centre == centre
+    lo, hi = view.plot.getViewBox().viewRange()[0]
+    assert lo < centre - 180.0 and hi > centre + 180.0
+    # the horizon continues past both edges
+    assert x.size > 360 and x.min() < centre - 180.0 and x.max() > centre + 180.0
+    # the points are the profile's, in chart order, and map back to its azimuths
+    px, py = view.points.values()
+    assert np.all(np.diff(px) > 0)
+    assert np.all((px >= centre - 180.0) & (px < centre + 180.0))
+    shown = sorted(zip(view._azimuths(px), py.tolist(), strict=True))
+    stored = sorted(zip((round(a % 360.0, 1) for a in site.horizon.azimuth_deg),
+                        site.horizon.elevation_deg, strict=True))
+    assert shown == stored
     if demo == "high-pass-hut":
         assert y.min() < 0.0                 # the negative part of the horizon is drawn
     assert view.grab().save(os.path.join(artefacts_dir, f"horizon-{demo}.png"))

@@ -10,7 +10,7 @@ import pvlib
 import pytest
 from PySide6.QtCore import QDate, Qt
 
-from tiltyard.app.views.irradiance_view import IrradianceView
+from tiltyard.app.views.irradiance_view import MAX_BAR_SERIES, IrradianceView, bar_rows
 from tiltyard.engine.assess import assessment_part
 from tiltyard.engine.assessment import Mounting, file_sha256
 from tiltyard.engine.daycurves import irradiance_day
@@ -291,7 +291,14 @@ def test_render_the_view(qtbot, make_ctx, idle, artefacts_dir, demo):
     view = _open(qtbot, ctx, idle)
     ctx.publish_study(_study(ctx))
     idle(ctx.runner)
-    assert len(view.bar_items) >= 8
+    # eight and more options: the bars show at most six, on one sky basis, each in its
+    # own colour and fill pattern; the rest are in the table
+    assert len(view.rows) >= 8 and len(view.bar_items) == MAX_BAR_SERIES
+    assert len({r.sky_label for r in bar_rows(view.rows)[0]}) == 1
+    styles = {(b.opts["brush"].color().name(), b.opts["brush"].style()) for b in view.bar_items}
+    assert len({st for _c, st in styles}) == len(view.bar_items)
+    assert view.table_model.rowCount() == len(view.rows)
+    assert "more in the table" in view.bars_title.text()
     assert all(len(item.getData()[0]) > 0 for key, item in view.day_items.items()
                if item.isVisible())
     path = os.path.join(artefacts_dir, f"irradiance_view_{demo}.png")

@@ -21,6 +21,7 @@ from tiltyard.app.sheet.pdf import page_image
 from tiltyard.engine.assess import assess
 from tiltyard.engine.assessment import demo_assessment
 from tiltyard.engine.demo_sites import demo_site_names
+from tiltyard.engine.words import MONTH_NAMES
 
 META = SheetMeta("Jane Doe", "Example Solar Ltd", dt.date(2025, 5, 12))
 #: Printable area: printers leave up to a quarter inch unprinted on each edge of A4 and
@@ -165,8 +166,48 @@ def test_the_chart_series_differ_by_more_than_colour(sheet):
     styles = {(o.pen.style(), tuple(o.pen.dashPattern()), round(o.pen.widthF(), 2))
               for o in series}
     assert len(styles) == len(series)               # every monthly series its own line
-    months = [o for o in page.ops if isinstance(o, ShapeOp) and o.role.startswith("path.")
-              and "21" in o.role]
-    keyed = {o.text for o in page.texts() if o.role == "legend.month"}
-    drawn = {o.role for o in months}
-    assert keyed or not drawn                       # month colours have a key
+    # the sun chart's arcs: each its own colour, width and dash, and the arcs of each kind
+    # (solstice, equinox, month pair) share a pattern that no other kind has
+    arcs = [o for o in page.ops if isinstance(o, ShapeOp) and o.role.startswith("path.")]
+    assert arcs
+    looks = {(o.pen.color().name(), tuple(o.pen.dashPattern()), round(o.pen.widthF(), 2))
+             for o in arcs}
+    assert len(looks) == len(arcs)
+
+
+def _month_words(text):
+    return {i + 1 for i, name in enumerate(MONTH_NAMES) if name in text}
+
+
+@pytest.mark.parametrize("name", demo_site_names())
+def test_every_month_drawn_on_the_sun_chart_is_in_its_key(name):
+    data = sheet_data(name)
+    doc = lay_out(data, META, paper="a4").document
+    page = doc.pages[0]
+    drawn = {o.role[len("path."):] for o in page.ops
+             if isinstance(o, ShapeOp) and o.role.startswith("path.")}
+    key = " ".join(o.text for o in page.texts() if o.role == "legend")
+    chart = data.sun
+    months_drawn = set()
+    for arc in chart.arcs:
+        if arc.label in drawn:
+            months_drawn |= set(arc.months)
+            # the key names the arc's dates in full
+            assert _month_words(key) >= set(arc.months), (arc.label, key)
+    # every month is drawn (on its own arc or on the arc it shares)
+    assert months_drawn == set(range(1, 13)) or any(not len(a.curve) for a in chart.arcs)
+    # and labelled on the arc where there is room: at least the solstices
+    labels = {o.text for o in page.texts() if o.role == "arc-label"}
+    assert labels, name
+
+
+@pytest.mark.parametrize("paper", ["a4", "letter"])
+def test_the_cautions_never_stand_alone_on_a_page(paper):
+    for name in demo_site_names():
+        doc = lay_out(sheet_data(name), META, paper=paper).document
+        for i, page in enumerate(doc.pages):
+            if not any(isinstance(o, ShapeOp) and o.role == "cautions-box" for o in page.ops):
+                continue
+            others = [o for o in page.texts() if not o.role.startswith(
+                ("head.", "footer", "caution", "section.cautions"))]
+            assert others, (name, paper, i + 1)

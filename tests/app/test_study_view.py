@@ -207,6 +207,12 @@ def test_bad_tilt_range_shows_the_range_and_keeps_the_result(qtbot, make_ctx, id
     assert names == ["optimum"] + [p.label for p in st.site.planes]
     assert len(view.map_labels) == len(names)
     assert view.map_bar.levels()[1] == 100.0
+    # the plane labels keep off the contour percentages (boxes in data coordinates)
+    boxes = [b for _t, b in view.map_labels]
+    assert view.contour_label_boxes
+    for b in boxes:
+        for c in view.contour_label_boxes:
+            assert min(b[2], c[2]) <= max(b[0], c[0]) or min(b[3], c[3]) <= max(b[1], c[1])
 
 
 def test_copy_table_gives_tab_separated_text_with_units(qtbot, make_ctx, idle):

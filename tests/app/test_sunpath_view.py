@@ -183,4 +183,47 @@ def test_render_screenshots(qtbot, make_ctx, idle, artefacts_dir, demo, date):
     path = os.path.join(artefacts_dir, f"sunpath_{demo}.png")
     assert view.grab().save(path)
     assert os.path.getsize(path) > 10_000
-    assert len(view.path_items) == 16 and view.hour_labels
+    # by default the solstices and the equinoxes (one arc for both); every month on
+    # request, two months with the same sun path sharing an arc: seven arcs in all
+    assert set(view.path_items) == {"December solstice", "March equinox", "June solstice"}
+    assert view.hour_labels
+    view.every_month.setChecked(True)
+    idle(ctx.runner)
+    assert len(view.path_items) == 7
+
+
+def _overlaps(rects):
+    return [(a, b) for i, a in enumerate(rects) for b in rects[i + 1:]
+            if a.intersects(b)]
+
+
+@pytest.mark.parametrize("size", [(1280, 720), (1920, 1080)])
+@pytest.mark.parametrize("demo", ["larkmoor-dairy", "kelpie-creek-shed", "coral-lane-clinic",
+                                  "tarnvik-cabin"])
+def test_chart_labels_never_meet_and_stay_on_their_points(qtbot, make_ctx, idle, demo, size):
+    ctx = make_ctx(demo)
+    view = _open(qtbot, ctx, idle, date=(2023, 5, 10), size=size)
+    view.every_month.setChecked(True)
+    idle(ctx.runner)
+    qtbot.wait(30)
+    cart = view._cart_labels.scene_rects() + view._arc_labels.scene_rects()
+    assert len(view._cart_labels.scene_rects()) >= 4 and view._arc_labels.scene_rects()
+    assert _overlaps(cart) == []
+    polar = view._polar_arc_labels.scene_rects() + view._polar_labels.scene_rects()
+    rings = {lb.text for lb in view._polar_arc_labels.labels if lb.text.endswith("°")}
+    assert {"0°", "30°", "60°", "90°"} <= rings
+    assert _overlaps(polar) == []
+    # the hour labels sit in the band, each centred on its hour's azimuth (no drift with
+    # the window's size), and inside the plot
+    band = view.chart.hour_band
+    vb = view.cart.getPlotItem().getViewBox()
+    plot_rect = vb.sceneBoundingRect()
+    mid = 0.5 * (band.low_deg + band.high_deg)
+    for rect, hour in zip(view._cart_labels.scene_rects(), view._cart_labels.labels,
+                          strict=False):
+        assert plot_rect.contains(rect), hour.text
+    for hour, x in zip(band.hours, band.azimuth_deg, strict=True):
+        label = view.hour_labels[hour]
+        at = vb.mapViewToScene(QPointF(label.x, label.y))
+        want = vb.mapViewToScene(QPointF(x, mid))
+        assert abs(at.x() - want.x()) < 1.0 and abs(at.y() - want.y()) < 1.0
