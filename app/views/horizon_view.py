@@ -42,7 +42,7 @@ from tiltyard.engine.words import bearing, compass, model_name
 
 from .. import plots, theme
 from ..engine_process import EngineCall
-from ..widgets import CopyableTable, ValidatedField, View
+from ..widgets import CopyableTable, ValidatedField, View, wrapping
 
 #: Elevations a profile point may be dragged to, degrees (the range
 #: HorizonProfile accepts; the engine still validates on commit).
@@ -234,7 +234,7 @@ class HorizonView(View):
         cl = QVBoxLayout(chart_box)
         cl.setContentsMargins(0, 0, 0, 0)
         self.plot_widget = plots.plot_widget()
-        self.plot_widget.setMinimumHeight(300)
+        self.plot_widget.setMinimumHeight(250)
         self.plot = self.plot_widget.getPlotItem()
         theme.style_plot(self.plot, "Elevation (°)", "Azimuth (° clockwise from true north)")
         self.plot.setMenuEnabled(False)
@@ -271,6 +271,7 @@ class HorizonView(View):
         self.readout = QLabel("Drag a point up, down or sideways to reshape the horizon; "
                               "it is stored when you let go.")
         self.readout.setProperty("role", "muted")
+        wrapping(self.readout, lines=2)
         cl.addWidget(self.readout)
         left.addWidget(chart_box, 1)
 
@@ -355,7 +356,7 @@ class HorizonView(View):
         ll.addWidget(self.loss_table, 0)
         self.loss_note = QLabel()
         self.loss_note.setProperty("role", "muted")
-        self.loss_note.setWordWrap(True)
+        wrapping(self.loss_note, lines=6)  # the column is narrow on a 1024 px screen
         ll.addWidget(self.loss_note)
         left.addWidget(loss, 0)
 
