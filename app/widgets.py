@@ -246,6 +246,15 @@ class ValidatedField(QWidget):
         self.edit.style().unpolish(self.edit)
         self.edit.style().polish(self.edit)
 
+    def clear(self) -> None:
+        """Empty the field, its message and any commit still pending (a form that
+        took the value: Enter within ``COMMIT_MS`` of the last key must not leave the
+        pending commit to re-check the emptied field)."""
+        self._pending = False
+        self._timer.stop()
+        self.edit.clear()
+        self.set_error("")
+
     def set_text(self, text: str) -> None:
         """Show a value coming from the site (no signal)."""
         if self.edit.text() != text and not self.edit.hasFocus():
