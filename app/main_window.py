@@ -18,6 +18,7 @@ from PySide6.QtWidgets import (
     QMessageBox,
     QProgressBar,
     QPushButton,
+    QScrollArea,
     QSizePolicy,
     QStackedWidget,
     QVBoxLayout,
@@ -132,7 +133,7 @@ class MainWindow(QMainWindow):
         row = VIEW_TITLES.index(title)
         view = view_class(title)(self.ctx)
         placeholder = self.stack.widget(row)
-        self.stack.insertWidget(row, view)
+        self.stack.insertWidget(row, _view_holder(view))
         self.stack.removeWidget(placeholder)
         placeholder.deleteLater()
         return view
@@ -163,7 +164,8 @@ class MainWindow(QMainWindow):
         return self.views[title]
 
     def current_view(self):
-        return self.stack.currentWidget()
+        holder = self.stack.currentWidget()
+        return holder.widget() if isinstance(holder, QScrollArea) else holder
 
     # -- menus --------------------------------------------------------------
     def _build_menus(self) -> None:
@@ -487,6 +489,17 @@ class _LazyViews(Mapping):
 
     def __len__(self) -> int:
         return len(VIEW_TITLES)
+
+
+def _view_holder(view: QWidget) -> QScrollArea:
+    """A frameless scroll area around a view, so no view sets the window's minimum size:
+    below the view's own minimum (a small laptop screen) it scrolls instead."""
+    holder = QScrollArea()
+    holder.setObjectName("viewHolder")
+    holder.setFrameShape(QScrollArea.Shape.NoFrame)
+    holder.setWidgetResizable(True)
+    holder.setWidget(view)
+    return holder
 
 
 def _slug(name: str) -> str:

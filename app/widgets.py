@@ -92,6 +92,15 @@ class View(QWidget):
         ctx.document.site_changed.connect(self._on_site_changed)
         ctx.document.settings_changed.connect(lambda _a: self.mark_stale())
 
+    def hasHeightForWidth(self) -> bool:  # noqa: N802 - Qt override
+        # the window holds each view in a scroll area, which would scroll to the
+        # preferred height for the width (every wrapped line at its ease); the view
+        # scrolls only below its minimum size, and its layout shares out what is left
+        return False
+
+    def heightForWidth(self, _width: int) -> int:  # noqa: N802 - Qt override
+        return self.minimumSizeHint().height()      # the scroll area asks the layout
+
     def draw_in_stages(self, owner: str, steps) -> None:
         """Draw a result through the runner's ``run_in_stages``, now if the view is
         visible, else once it is next shown.
@@ -237,6 +246,15 @@ class ValidatedField(QWidget):
         self.edit.style().unpolish(self.edit)
         self.edit.style().polish(self.edit)
 
+    def clear(self) -> None:
+        """Empty the field, its message and any commit still pending (a form that
+        took the value: Enter within ``COMMIT_MS`` of the last key must not leave the
+        pending commit to re-check the emptied field)."""
+        self._pending = False
+        self._timer.stop()
+        self.edit.clear()
+        self.set_error("")
+
     def set_text(self, text: str) -> None:
         """Show a value coming from the site (no signal)."""
         if self.edit.text() != text and not self.edit.hasFocus():
@@ -252,6 +270,16 @@ def _reason(exc: Exception) -> str:
     if isinstance(exc, SiteError):
         return f"{exc.value!r}: {exc.reason}" if hasattr(exc, "reason") else str(exc)
     return str(exc)
+
+
+def wrapping(label: QLabel, lines: int = 0) -> QLabel:
+    """Let a label wrap instead of setting its row's minimum width (a laptop screen),
+    keeping room for ``lines`` lines when given, so a readout whose text changes as the
+    pointer moves does not move what sits under it."""
+    label.setWordWrap(True)
+    if lines:
+        label.setMinimumHeight(lines * label.fontMetrics().lineSpacing() + 2)
+    return label
 
 
 class CopyableTable(QTableView):

@@ -14,7 +14,8 @@ below it):
 - The header line is optional. A header naming the columns in the other order
   (``elevation_deg,azimuth_deg``) is honoured.
 - The separator is a comma or a semicolon (whichever the first line uses);
-  numbers use a decimal point. Quoting follows the usual CSV rules (Python's
+  numbers use a decimal point, or a decimal comma in a semicolon-separated file
+  (``90;3,25``). Quoting follows the usual CSV rules (Python's
   :mod:`csv` module).
 - Blank lines and lines starting with ``#`` are skipped.
 - Each azimuth may appear once; 0 and 360 are the same direction.
@@ -84,7 +85,7 @@ def _read_text(path: Path) -> str:
 
 def _is_number(text: str) -> bool:
     try:
-        float(text)
+        float(text.replace(",", "."))
     except ValueError:
         return False
     return True
@@ -100,8 +101,12 @@ def _header_order(cells: list[str]) -> tuple[int, int] | None:
     return 0, 1
 
 
-def _parse_value(text: str, column: str, line: int) -> float:
+def _parse_value(text: str, column: str, line: int, decimal_comma: bool = False) -> float:
+    """One cell in degrees; with ``decimal_comma`` (a ";"-separated file, as spreadsheets
+    in many locales write it) "2,5" is 2.5."""
     t = text.strip()
+    if decimal_comma:
+        t = t.replace(",", ".")
     if not t:
         raise HorizonFileError(f"line {line}, {column}", text, "is empty; every line needs an "
                                "azimuth and an elevation in degrees", line=line)
@@ -193,8 +198,8 @@ def _parse(text: str) -> HorizonProfile:
                                    f"has {len(cells)} value(s); expected 2 (azimuth and "
                                    f"elevation in degrees, separated by a {sep}){hint}",
                                    line=number)
-        az = _parse_value(cells[order[0]], "azimuth_deg", number)
-        el = _parse_value(cells[order[1]], "elevation_deg", number)
+        az = _parse_value(cells[order[0]], "azimuth_deg", number, delimiter == ";")
+        el = _parse_value(cells[order[1]], "elevation_deg", number, delimiter == ";")
         if not 0.0 <= az <= 360.0:
             raise HorizonFileError(f"line {number}, azimuth_deg", cells[order[0]],
                                    "must be between 0 and 360 deg (clockwise from true north)",

@@ -96,7 +96,8 @@ def _number(field_name: str, value: Any, lo: float | None = None, hi: float | No
 
 
 def _range_text(lo, hi, unit):
-    u = f" {unit}" if unit else ""
+    # degrees follow the number ("360°"); other units after a space ("100 m")
+    u = "" if not unit else ("°" if unit in ("°", "deg") else f" {unit}")
     if lo is not None and hi is not None:
         return f"between {lo:g} and {hi:g}{u}"
     if lo is not None:
@@ -361,7 +362,8 @@ def parse_coordinate(text: str, axis: str) -> float:
 
     Accepts decimal degrees (``53.71``, ``-2.48``, ``53,71``) and degrees,
     minutes and seconds with a hemisphere letter before or after
-    (``53°42'36"N``, ``N 53 42 36``, ``2 28.8 W``, ``2d28m48sW``).
+    (``53°42'36"N``, ``N 53 42 36``, ``2 28.8 W``, ``2d28m48sW``); "º" and "˚"
+    count as the degree sign.
 
     Parameters
     ----------
@@ -390,7 +392,10 @@ def parse_coordinate(text: str, axis: str) -> float:
         raise ValueError(f"axis must be 'latitude' or 'longitude', not {axis!r}")
     field_name = f"{axis}_deg"
     letters, limit = ("NS", 90.0) if axis == "latitude" else ("EW", 180.0)
-    m = _DMS_RE.match(text or "")
+    # the masculine ordinal "º" and the ring "˚" look like a degree sign and are
+    # what many keyboards and phones give for one
+    text = (text or "").replace("º", "°").replace("˚", "°")
+    m = _DMS_RE.match(text)
     if not m or (m.group("h1") and m.group("h2")):
         raise SiteError(field_name, text, "is not a coordinate; type decimal degrees "
                         f"(e.g. {'53.71' if axis == 'latitude' else '-2.48'}) or degrees "
@@ -415,5 +420,5 @@ def parse_coordinate(text: str, axis: str) -> float:
         sign = -1.0 if hemi in "SW" else 1.0
     value *= sign
     if not -limit <= value <= limit:
-        raise SiteError(field_name, text, f"must be between -{limit:g} and {limit:g} deg")
+        raise SiteError(field_name, text, f"must be between -{limit:g}° and {limit:g}°")
     return value

@@ -48,7 +48,7 @@ from tiltyard.engine.words import bearing, compass, model_name
 
 from .. import plots, theme
 from ..engine_process import EngineCall
-from ..widgets import CopyableTable, ValidatedField, View
+from ..widgets import CopyableTable, ValidatedField, View, wrapping
 
 #: Elevations a profile point may be dragged to, degrees (the range
 #: HorizonProfile accepts; the engine still validates on commit).
@@ -72,7 +72,7 @@ def _fmt(v: float, digits: int = 1) -> str:
 def _to_float(text: str, field: str, unit: str) -> float:
     t = text.strip().replace(",", ".")
     if not t:
-        raise SiteError(field, text, f"is required (a number in {unit})")
+        raise SiteError(field, text, f"is required: type a number in {unit}")
     try:
         value = float(t)
     except ValueError:
@@ -90,21 +90,23 @@ OBSTACLE_FIELDS = (
     ("height_m", "Height above panels", "m", "e.g. 9.5"),
 )
 _PROBE = {"bearing_deg": 180.0, "width_deg": 10.0, "distance_m": 10.0, "height_m": 1.0}
-_UNITS = {"bearing_deg": "deg", "width_deg": "deg", "distance_m": "m", "height_m": "m"}
+_UNITS = {"bearing_deg": "°", "width_deg": "°", "distance_m": "m", "height_m": "m"}
+_CAPTIONS = {name: caption for name, caption, _u, _p in OBSTACLE_FIELDS}
 
 
 def parse_obstacle_value(name: str, text: str) -> float:
     """Parse one obstacle field and check it with the Obstacle constructor.
 
-    Raises SiteError whose reason names the field (``distance_m must be
-    between 0.1 and 100000 m``), so the message beside the field says which
-    value and which range.
+    Raises SiteError whose reason names the field by its label in the form
+    ("Distance must be between 0.1 and 100000 m"), so the message beside the
+    field says which value and which range in the user's words.
     """
+    caption = _CAPTIONS[name]
     try:
         value = _to_float(text, name, _UNITS[name])
         Obstacle("probe", **{**_PROBE, name: value})
     except SiteError as exc:
-        raise SiteError(name, text.strip(), f"{exc.field} {exc.reason}") from None
+        raise SiteError(name, text.strip(), f"{caption} {exc.reason}") from None
     return value
 
 
@@ -243,7 +245,7 @@ class HorizonView(View):
         cl = QVBoxLayout(chart_box)
         cl.setContentsMargins(0, 0, 0, 0)
         self.plot_widget = plots.plot_widget()
-        self.plot_widget.setMinimumHeight(300)
+        self.plot_widget.setMinimumHeight(250)
         self.plot = self.plot_widget.getPlotItem()
         theme.style_plot(self.plot, "Elevation (°)", "Azimuth (° clockwise from true north)")
         self.plot.setMenuEnabled(False)
@@ -280,6 +282,7 @@ class HorizonView(View):
         self.readout = QLabel("Drag a point up, down or sideways to reshape the horizon; "
                               "it is stored when you let go.")
         self.readout.setProperty("role", "muted")
+        wrapping(self.readout, lines=2)
         cl.addWidget(self.readout)
         left.addWidget(chart_box, 1)
 
@@ -364,7 +367,7 @@ class HorizonView(View):
         ll.addWidget(self.loss_table, 0)
         self.loss_note = QLabel()
         self.loss_note.setProperty("role", "muted")
-        self.loss_note.setWordWrap(True)
+        wrapping(self.loss_note, lines=6)  # the column is narrow on a 1024 px screen
         ll.addWidget(self.loss_note)
         left.addWidget(loss, 0)
 
@@ -785,7 +788,7 @@ class HorizonView(View):
             except SiteError as exc:
                 bad.append(name)
                 if show:
-                    f.set_error(f"{exc.value!r}: {exc.reason}")
+                    f.set_error(exc.reason)
         return None if bad else values
 
     def _preview_obstacle(self, _text: str = "") -> None:
@@ -804,7 +807,8 @@ class HorizonView(View):
         values = self._form_values(show=True)
         if values is None:
             bad = [n for n, f in self.obstacle_fields.items() if f.message]
-            self.form_message.setText("Not added: check " + ", ".join(bad) + ".")
+            self.form_message.setText("Not added: check "
+                                      + ", ".join(_CAPTIONS[n].lower() for n in bad) + ".")
             self.form_message.show()
             return
         site = self.ctx.site
@@ -818,8 +822,7 @@ class HorizonView(View):
         if self._propose(obstacles=site.obstacles + (ob,)):
             self.form_message.hide()
             for f in (self.obstacle_label, *self.obstacle_fields.values()):
-                f.edit.clear()
-                f.set_error("")
+                f.clear()
             self.obstacle_preview.setText(f"Added “{ob.label}”.")
 
     def remove_selected_obstacles(self) -> None:

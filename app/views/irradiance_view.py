@@ -53,7 +53,7 @@ from tiltyard.engine.words import (
 from .. import plots, theme
 from ..engine_process import EngineCall
 from ..weather_dialog import WeatherDialog
-from ..widgets import CopyableTable, View
+from ..widgets import CopyableTable, View, wrapping
 
 #: The sky bases and transposition models the view offers.
 SKY_KEYS = ("auto", "clear", "monthly", "file")
@@ -237,6 +237,12 @@ class IrradianceView(View):
         grid.setHorizontalSpacing(10)
         grid.setVerticalSpacing(4)
         self.sky_combo = QComboBox()
+        # long basis names elide in the closed box (the list shows them whole), so the
+        # controls never widen the window past a laptop screen
+        self.sky_combo.setSizeAdjustPolicy(
+            QComboBox.SizeAdjustPolicy.AdjustToMinimumContentsLengthWithIcon)
+        self.sky_combo.setMinimumContentsLength(18)
+        self.sky_combo.view().setTextElideMode(Qt.TextElideMode.ElideNone)
         for key in SKY_KEYS:
             self.sky_combo.addItem(sky_choice_words(key, capital=True), key)
         self.sky_combo.setToolTip("Best available: the site's weather file if it has one, else "
@@ -254,7 +260,7 @@ class IrradianceView(View):
         self.plane_combo = QComboBox()
         self.plane_combo.setSizeAdjustPolicy(
             QComboBox.SizeAdjustPolicy.AdjustToMinimumContentsLengthWithIcon)
-        self.plane_combo.setMinimumContentsLength(40)
+        self.plane_combo.setMinimumContentsLength(22)
         self.plane_combo.view().setTextElideMode(Qt.TextElideMode.ElideNone)
         self.plane_combo.currentIndexChanged.connect(self._plane_picked)
         self.date_edit = QDateEdit()
@@ -299,8 +305,10 @@ class IrradianceView(View):
         left = QVBoxLayout()
         self.day_title = QLabel("")
         self.day_title.setStyleSheet("font-weight: 600;")
+        wrapping(self.day_title, lines=2)
         left.addWidget(self.day_title)
         self.day_widget = pg.GraphicsLayoutWidget()
+        self.day_widget.setMinimumHeight(200)     # a short screen scrolls rather than squash it
         self.day_plot = plots.plot_item()
         self.day_widget.addItem(self.day_plot, row=0, col=0)
         theme.style_plot(self.day_plot, "Irradiance (W/m²)", "Local clock time (h)")
@@ -329,8 +337,10 @@ class IrradianceView(View):
         right = QVBoxLayout()
         self.bars_title = QLabel("")
         self.bars_title.setStyleSheet("font-weight: 600;")
+        wrapping(self.bars_title, lines=2)
         right.addWidget(self.bars_title)
         self.bars_widget = pg.GraphicsLayoutWidget()
+        self.bars_widget.setMinimumHeight(200)     # a short screen scrolls rather than squash it
         self.bars_plot = plots.plot_item()
         self.bars_widget.addItem(self.bars_plot, row=0, col=0)
         theme.style_plot(self.bars_plot, "Mean daily irradiation (kWh/m²/day)", "Month")

@@ -127,11 +127,10 @@ class SheetView(View):
         outer = QVBoxLayout(self)
         outer.setContentsMargins(14, 10, 14, 6)
         outer.setSpacing(6)
-        top = QHBoxLayout()
         head = QLabel("Feasibility sheet")
         head.setProperty("role", "heading")
-        top.addWidget(head)
-        top.addStretch(1)
+        outer.addWidget(head)       # a line of its own: the controls fit a laptop screen
+        top = QHBoxLayout()
         top.addWidget(QLabel("Paper"))
         self.paper = QComboBox()
         for key, (name, _w, _h) in PAPERS.items():
@@ -175,6 +174,7 @@ class SheetView(View):
             self.data_actions[key] = act
         self.data_button.setMenu(menu)
         top.addWidget(self.data_button)
+        top.addStretch(1)
         outer.addLayout(top)
 
         body = QHBoxLayout()

@@ -143,7 +143,6 @@ class SiteView(View):
         tl.addWidget(self.tz_error)
         tl.addWidget(self.tz_note)
         form.addRow("Time zone", tz_row)
-        grid.addWidget(place, 1, 0)
 
         # -- ground -------------------------------------------------------------
         ground = QGroupBox("Ground reflectance (albedo)")
@@ -169,7 +168,7 @@ class SiteView(View):
         self.albedo_months = self._twelve_fields(
             lambda t: _number(t, "albedo", 0, 1, ""), self._monthly_albedo_edited)
         gl.addWidget(self.albedo_months["widget"])
-        grid.addWidget(ground, 2, 0)
+        gl.addStretch(1)        # beside a taller group the space goes below, not between
 
         # -- planes -------------------------------------------------------------
         planes = QGroupBox("Existing planes (roof slopes as they are)")
@@ -204,7 +203,6 @@ class SiteView(View):
         hint.setProperty("role", "muted")
         hint.setWordWrap(True)
         pl.addWidget(hint)
-        grid.addWidget(planes, 1, 1)
 
         # -- monthly GHI --------------------------------------------------------
         ghi = QGroupBox("Monthly mean daily global horizontal irradiation")
@@ -220,7 +218,6 @@ class SiteView(View):
         note.setProperty("role", "muted")
         note.setWordWrap(True)
         ml.addWidget(note)
-        grid.addWidget(ghi, 2, 1)
 
         notes = QGroupBox("Notes")
         nl = QVBoxLayout(notes)
@@ -228,7 +225,6 @@ class SiteView(View):
         self.notes.setMaximumHeight(80)
         self.notes.textChanged.connect(self._notes_edited)
         nl.addWidget(self.notes)
-        grid.addWidget(notes, 3, 0, 1, 2)
 
         client = QGroupBox("Prepared for (printed on the feasibility sheet)")
         cl = QFormLayout(client)
@@ -241,11 +237,47 @@ class SiteView(View):
             e.editingFinished.connect(lambda key=key, e=e: self._client_edited(key, e.text()))
             cl.addRow(label, e)
             self.client_fields[key] = e
-        grid.addWidget(client, 4, 0, 1, 2)
-        grid.setRowStretch(5, 1)
-        grid.setColumnStretch(0, 1)
-        grid.setColumnStretch(1, 1)
+        self._grid = grid
+        self._columns = (place, ground), (planes, ghi), (notes, client)
+        self._two_columns = None
+        self._arrange(True)
         self.show_site(ctx.site)
+
+    # -- layout -------------------------------------------------------------
+    def _arrange(self, two: bool) -> None:
+        """The groups in two columns, or one under the other when the view is too narrow
+        for two (a small laptop screen), so no form column is cut off."""
+        if two == self._two_columns:
+            return
+        self._two_columns = two
+        grid = self._grid
+        (place, ground), (planes, ghi), (notes, client) = self._columns
+        for w in (place, ground, planes, ghi, notes, client):
+            grid.removeWidget(w)
+        if two:
+            cells = ((place, 1, 0, 1), (ground, 2, 0, 1), (planes, 1, 1, 1), (ghi, 2, 1, 1),
+                     (notes, 3, 0, 2), (client, 4, 0, 2))
+        else:
+            cells = tuple((w, row, 0, 2) for row, w in
+                          enumerate((place, ground, planes, ghi, notes, client), start=1))
+        for w, row, col, span in cells:
+            grid.addWidget(w, row, col, 1, span)
+        for row in range(1, 8):
+            grid.setRowStretch(row, 0)
+        grid.setRowStretch(len(cells) + 1 if not two else 5, 1)
+        grid.setColumnStretch(0, 1)
+        grid.setColumnStretch(1, 1 if two else 0)
+
+    def two_column_width(self) -> int:
+        """The narrowest view that shows the groups side by side."""
+        (place, ground), (planes, ghi), _ = self._columns
+        left = max(place.minimumSizeHint().width(), ground.minimumSizeHint().width())
+        right = max(planes.minimumSizeHint().width(), ghi.minimumSizeHint().width(), 380)
+        return left + right + 18 * 3 + 20      # margins, spacing and a scroll bar
+
+    def resizeEvent(self, event) -> None:  # noqa: N802 - Qt override
+        super().resizeEvent(event)
+        self._arrange(event.size().width() >= self.two_column_width())
 
     # -- helpers ------------------------------------------------------------
     def _twelve_fields(self, parse, on_edit):

@@ -50,7 +50,7 @@ from ..study_model import (
     StudySortProxy,
     StudyTableModel,
 )
-from ..widgets import CopyableTable, ValidatedField, View
+from ..widgets import CopyableTable, ValidatedField, View, wrapping
 from .study_charts import CHARTS, StudyChartDrawing
 
 OBJECTIVES = (("annual total", "annual"), ("worst month", "worst-month"),
@@ -132,7 +132,8 @@ class StudyView(StudyChartDrawing, View):
         top.addWidget(self.basis, 1)
         self.status = QLabel()
         self.status.setProperty("role", "muted")
-        top.addWidget(self.status)
+        wrapping(self.status)
+        top.addWidget(self.status, 1)
         outer.addLayout(top)
 
         upper = QHBoxLayout()
@@ -276,8 +277,8 @@ class StudyView(StudyChartDrawing, View):
         row.addWidget(sub)
         hint = QLabel("click a header to sort · Ctrl+C copies the selected rows")
         hint.setProperty("role", "muted")
-        row.addWidget(hint)
-        row.addStretch(1)
+        wrapping(hint)
+        row.addWidget(hint, 1)
         self.copy_button = QPushButton("Copy table")
         self.copy_button.setToolTip("Copy the whole table as tab-separated text (for a "
                                     "spreadsheet)")

@@ -37,6 +37,7 @@ from PySide6.QtWidgets import (
     QHBoxLayout,
     QHeaderView,
     QLabel,
+    QScrollArea,
     QSizePolicy,
     QVBoxLayout,
     QWidget,
@@ -49,7 +50,7 @@ from tiltyard.engine.words import MONTH_ABBR, TIME_BASIS_WORDS, bearing, compass
 from .. import plots, theme
 from ..engine_process import EngineCall
 from ..plot_labels import Label, LabelLayer
-from ..widgets import CopyableTable, View
+from ..widgets import CopyableTable, View, wrapping
 
 BASIS_SHORT = {"clock": "clock time", "standard": "standard time", "solar": "solar time"}
 
@@ -231,6 +232,7 @@ class SunPathView(View):
         top.addWidget(head)
         self.site_label = QLabel()
         self.site_label.setProperty("role", "muted")
+        wrapping(self.site_label)
         top.addWidget(self.site_label, 1)
         top.addWidget(QLabel("Date"))
         self.date_edit = QDateEdit()
@@ -281,6 +283,7 @@ class SunPathView(View):
         self.legend.setTextFormat(Qt.TextFormat.RichText)
         self.readout = QLabel("Point at a path on either chart to read its time and position.")
         self.readout.setProperty("role", "muted")
+        wrapping(self.readout, lines=2)
         self.readout.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
 
         upper = QWidget()
@@ -303,13 +306,21 @@ class SunPathView(View):
         self.day_text.setTextFormat(Qt.TextFormat.RichText)
         self.day_text.setWordWrap(True)
         self.day_text.setAlignment(Qt.AlignmentFlag.AlignTop | Qt.AlignmentFlag.AlignLeft)
-        self.day_text.setFixedWidth(250)
         self.day_text.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
-        ll.addWidget(self.day_text)
+        # the day's figures scroll in their own column on a short screen, beside the table
+        day_box = QScrollArea()
+        day_box.setFrameShape(QScrollArea.Shape.NoFrame)
+        day_box.setWidgetResizable(True)
+        day_box.setHorizontalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
+        day_box.setWidget(self.day_text)
+        day_box.setFixedWidth(262)
+        day_box.setMinimumHeight(90)
+        ll.addWidget(day_box)
         tbox = QVBoxLayout()
         tbox.setSpacing(2)
         self.table_caption = QLabel()
         self.table_caption.setProperty("role", "muted")
+        wrapping(self.table_caption)
         tbox.addWidget(self.table_caption)
         self.events_model = QStandardItemModel(0, 0, self)
         self.table = CopyableTable()
@@ -826,10 +837,12 @@ class SunPathView(View):
             m.appendRow(items)
         hdr.setSectionResizeMode(QHeaderView.ResizeMode.Stretch)
         hdr.setSectionResizeMode(0, QHeaderView.ResizeMode.ResizeToContents)
-        # room for all twelve months without scrolling
-        rows = self.table.verticalHeader().defaultSectionSize() * m.rowCount()
-        self.table.setFixedHeight(hdr.sizeHint().height() + rows + 2 * self.table.frameWidth()
-                                  + 2)
+        # room for all twelve months without scrolling where the screen has it; on a
+        # short screen the table scrolls, keeping four months in sight
+        row_h = self.table.verticalHeader().defaultSectionSize()
+        frame = hdr.sizeHint().height() + 2 * self.table.frameWidth() + 2
+        self.table.setMaximumHeight(frame + row_h * m.rowCount())
+        self.table.setMinimumHeight(frame + row_h * min(4, m.rowCount()))
         self.table_caption.setText(f"Sun on the 21st of each month · times in "
                                    f"{self._basis_note(chart)}")
 

@@ -130,15 +130,15 @@ def test_invalid_distance_names_the_field_and_adds_nothing(qtbot, make_ctx, idle
     qtbot.keyClicks(view.obstacle_fields["distance_m"].edit, "0")
     message = view.obstacle_fields["distance_m"].message
     # the Obstacle constructor's own range (engine/site.py)
-    assert "distance_m" in message and "between 0.1 and 100000 m" in message
+    assert "Distance must be" in message and "distance_m" not in message and "between 0.1 and 100000 m" in message
     qtbot.mouseClick(view.add_obstacle_button, Qt.MouseButton.LeftButton)
     assert len(ctx.site.obstacles) == n
     assert view.obstacle_table.rowCount() == n
-    assert "distance_m" in view.form_message.text()
+    assert "distance" in view.form_message.text() and "_m" not in view.form_message.text()
     assert not ctx.document.dirty
     view.obstacle_fields["distance_m"].edit.clear()
     qtbot.keyClicks(view.obstacle_fields["distance_m"].edit, "x")
-    assert "distance_m is not a number" in view.obstacle_fields["distance_m"].message
+    assert "Distance is not a number" in view.obstacle_fields["distance_m"].message
     idle(ctx.runner)
 
 

@@ -26,7 +26,7 @@ def test_out_of_range_latitude_shows_the_range_and_keeps_the_site(qtbot, make_ct
     qtbot.addWidget(view)
     view.latitude.edit.clear()
     qtbot.keyClicks(view.latitude.edit, "95")
-    assert "between -90 and 90" in view.latitude.message
+    assert "between -90° and 90°" in view.latitude.message
     qtbot.wait(2 * view.latitude.COMMIT_MS)
     assert ctx.site.latitude_deg == 53.71
     assert not ctx.document.dirty

@@ -86,9 +86,10 @@ def test_bad_number_names_the_line(tmp_path):
     assert "'abc'" in str(err) and str(path) in str(err)
 
 
-def test_decimal_comma_gets_a_hint():
-    with pytest.raises(HorizonFileError, match=r"line 2, elevation_deg.*decimals with a point"):
-        parse_horizon_csv("0;3\n90;2,5\n")
+def test_decimal_comma_in_a_comma_separated_file_gets_a_hint():
+    # a ";" file may use a decimal comma (below); in a "," file it splits the value
+    with pytest.raises(HorizonFileError, match=r"line 2 .*decimals are written with a point"):
+        parse_horizon_csv("0,3\n90,2,5\n")
 
 
 def test_wrong_number_of_values():
@@ -135,3 +136,12 @@ def test_whole_file_problems(tmp_path):
     bad.write_bytes("azimut,élévation\n0,1\n".encode("latin-1"))
     with pytest.raises(HorizonFileError, match="not UTF-8"):
         read_horizon_csv(bad)
+
+
+def test_a_semicolon_file_may_write_decimals_with_a_comma():
+    from tiltyard.engine.horizon_io import parse_horizon_csv as parse
+    with_header = parse("azimuth_deg;elevation_deg\n0;2,5\n90;3,25\n180;10,0\n")
+    no_header = parse("0;2,5\n90;3,25\n180;10\n")
+    assert with_header.elevation_deg == (2.5, 3.25, 10.0)
+    assert no_header == with_header
+    assert parse("0;2.5\n90;3.25\n180;10\n") == with_header    # a point still reads

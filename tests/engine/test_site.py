@@ -72,7 +72,7 @@ def test_latitude_out_of_range_names_field_value_and_range():
     # latitude is defined on [-90, 90] deg (geographic definition, common practice, no source)
     with pytest.raises(SiteError) as exc:
         Site("x", latitude_deg=91, longitude_deg=0)
-    _assert_names(exc.value, "latitude_deg", "91", "between -90 and 90 deg")
+    _assert_names(exc.value, "latitude_deg", "91", "between -90 and 90°")
     assert exc.value.value == 91
 
 
@@ -80,7 +80,7 @@ def test_longitude_out_of_range_names_field_value_and_range():
     # longitude is defined on [-180, 180] deg (geographic definition, common practice, no source)
     with pytest.raises(SiteError) as exc:
         Site("x", latitude_deg=0, longitude_deg=-181)
-    _assert_names(exc.value, "longitude_deg", "-181", "between -180 and 180 deg")
+    _assert_names(exc.value, "longitude_deg", "-181", "between -180 and 180°")
 
 
 def test_poles_and_date_line_are_accepted():
@@ -168,7 +168,7 @@ def test_horizon_lengths_must_match_in_a_file(tmp_path):
 def test_horizon_elevation_range_and_distinct_azimuths():
     with pytest.raises(SiteError) as exc:
         HorizonProfile((0, 90), (5, 95))
-    _assert_names(exc.value, "horizon.elevation_deg[1]", "95", "between -30 and 90 deg")
+    _assert_names(exc.value, "horizon.elevation_deg[1]", "95", "between -30 and 90°")
     with pytest.raises(SiteError) as exc:
         HorizonProfile((0, 360), (5, 6))  # the same direction twice
     assert exc.value.field == "horizon.azimuth_deg"
@@ -214,7 +214,7 @@ def test_plane_tilt_95_is_refused():
     # tilt runs from horizontal (0) to vertical (90) (DESIGN.md)
     with pytest.raises(SiteError) as exc:
         Plane("roof", tilt_deg=95, azimuth_deg=180)
-    _assert_names(exc.value, "tilt_deg", "95", "between 0 and 90 deg")
+    _assert_names(exc.value, "tilt_deg", "95", "between 0 and 90°")
 
 
 def test_plane_tilt_95_in_a_file_names_the_plane(tmp_path):
@@ -223,7 +223,7 @@ def test_plane_tilt_95_in_a_file_names_the_plane(tmp_path):
     with pytest.raises(SiteError) as exc:
         load_site(path)
     assert exc.value.field == "planes[0].tilt_deg"
-    assert "between 0 and 90 deg" in str(exc.value)
+    assert "between 0 and 90°" in str(exc.value)
 
 
 def test_monthly_linke_turbidity_out_of_range():

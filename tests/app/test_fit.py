@@ -1,0 +1,156 @@
+"""The window fits a small laptop screen: no view sets a minimum window size over
+1024×600, and at 1024×600, 1280×720, 1366×768 and 1920×1080 every view's text labels
+and fields keep to their own places (none overlaps another, none is cut short, no form
+column runs out of the view).
+
+In-chart labels are checked with the charts; here only the widgets around them.
+"""
+
+from __future__ import annotations
+
+import pytest
+from PySide6.QtCore import QRect
+from PySide6.QtWidgets import (
+    QAbstractButton,
+    QAbstractItemView,
+    QComboBox,
+    QLabel,
+    QLineEdit,
+    QScrollArea,
+    QTabBar,
+    QWidget,
+)
+
+from tiltyard.app.desktop import create_window
+
+SMALLEST = (1024, 600)
+SIZES = (SMALLEST, (1280, 720), (1366, 768), (1920, 1080))
+TEXT_KINDS = (QLabel, QAbstractButton, QLineEdit, QComboBox)
+
+
+@pytest.fixture
+def window(qtbot):
+    w = create_window("larkmoor-dairy")
+    w.ask_unsaved = lambda: "discard"
+    qtbot.addWidget(w)
+    w.show()
+    yield w
+    w.close()
+    assert w.runner.active_thread_count() == 0
+
+
+def _inside_something_drawn(widget: QWidget, view: QWidget) -> bool:
+    """True for a widget inside a table's cells, a tab bar or a chart: those lay out
+    their own children (cell editors, tab buttons) and are not form widgets."""
+    import pyqtgraph as pg
+    p = widget.parentWidget()
+    while p is not None and p is not view:
+        if isinstance(p, (QAbstractItemView, QTabBar, pg.GraphicsView, QComboBox)):
+            return True
+        p = p.parentWidget()
+    return False
+
+
+def _text_widgets(view: QWidget) -> list[QWidget]:
+    out = []
+    for w in view.findChildren(QWidget):
+        if not isinstance(w, TEXT_KINDS) or not w.isVisible() or _inside_something_drawn(w, view):
+            continue
+        if isinstance(w, QLabel) and not w.text().strip():
+            continue
+        out.append(w)
+    return out
+
+
+def _rect_in(widget: QWidget, view: QWidget) -> QRect:
+    return QRect(widget.mapTo(view, widget.rect().topLeft()), widget.size())
+
+
+def _related(a: QWidget, b: QWidget) -> bool:
+    return a.isAncestorOf(b) or b.isAncestorOf(a)
+
+
+def _problems(view: QWidget) -> list[str]:
+    widgets = _text_widgets(view)
+    rects = {id(w): _rect_in(w, view) for w in widgets}
+    found = []
+    whole = view.rect()
+    for w in widgets:
+        r = rects[id(w)]
+        name = w.text() if hasattr(w, "text") and w.text() else type(w).__name__
+        # sideways only: a view (or the Site view's form inside it) may scroll down
+        if r.left() < 0 or r.right() > whole.right():
+            found.append(f"{name!r} runs out of the view sideways ({r} in {whole})")
+        if (isinstance(w, QLabel) and not w.wordWrap() and w.textFormat() != 1
+                and "<" not in w.text()):
+            need = w.fontMetrics().horizontalAdvance(w.text()) + 2 * w.margin()
+            if r.width() + 1 < need and w.sizePolicy().horizontalPolicy().name != "Ignored":
+                found.append(f"label {w.text()!r} is cut: {r.width()} px of {need}")
+        if isinstance(w, QLabel) and w.wordWrap() and w.hasHeightForWidth():
+            need = w.heightForWidth(r.width())
+            if r.height() + 2 < need:
+                found.append(f"wrapped label {w.text()[:40]!r} is cut: {r.height()} px "
+                             f"of {need}")
+    for i, a in enumerate(widgets):
+        for b in widgets[i + 1:]:
+            if _related(a, b):
+                continue
+            if rects[id(a)].intersects(rects[id(b)]):
+                inter = rects[id(a)].intersected(rects[id(b)])
+                if inter.width() > 1 and inter.height() > 1:
+                    ta = getattr(a, "text", lambda: "")() or type(a).__name__
+                    tb = getattr(b, "text", lambda: "")() or type(b).__name__
+                    found.append(f"{ta!r} overlaps {tb!r}")
+    return found
+
+
+def test_no_view_sets_a_minimum_window_over_1024_by_600(window, qtbot, idle):
+    for title in list(window.views):
+        window.show_view(title)
+        idle(window.runner, 120.0)
+        hint = window.minimumSizeHint()
+        assert hint.width() <= SMALLEST[0] and hint.height() <= SMALLEST[1], (title, hint)
+        assert window.minimumSize().width() <= SMALLEST[0], title
+    window.resize(*SMALLEST)
+    qtbot.wait(50)
+    assert (window.width(), window.height()) == SMALLEST
+
+
+def test_every_view_at_laptop_sizes_keeps_its_labels_apart(window, qtbot, idle):
+    seen = {}
+    problems = []
+    for title in list(window.views):
+        view = window.show_view(title)
+        idle(window.runner, 120.0)
+        holder = window.stack.currentWidget()
+        assert isinstance(holder, QScrollArea) and holder.widget() is view
+        for size in SIZES:
+            window.resize(*size)
+            qtbot.wait(30)
+            idle(window.runner, 120.0)
+            assert (window.width(), window.height()) == size, (title, size)
+            # the width always fits (a form column is never cut); at 1024x600 a view
+            # may scroll up and down
+            assert view.width() <= holder.viewport().width(), (title, size, view.width())
+            if size != SMALLEST:
+                assert not holder.verticalScrollBar().isVisible() or title == "Site", (
+                    title, size, view.minimumSizeHint(), holder.viewport().size(),
+                    window.banner.isVisible() and window.banner.text)
+            problems += [(title, size, p) for p in _problems(view)]
+            seen[(title, size)] = len(_text_widgets(view))
+    assert not problems, "\n".join(map(str, problems))
+    assert all(n > 3 for n in seen.values()), seen     # the check looked at something
+
+
+def test_choosing_a_weather_file_does_not_grow_the_window(window, qtbot, idle, tmp_path):
+    view = window.show_view("Irradiance")
+    idle(window.runner, 120.0)
+    window.resize(1280, 720)
+    qtbot.wait(30)
+    long_name = tmp_path / ("a weather file with a rather long name for this site, "
+                            "measured on the roof in 2019 and 2020.csv")
+    from tiltyard.engine.assessment import WeatherSource
+    window.ctx.set_settings(weather=WeatherSource(path=str(long_name)))
+    qtbot.wait(50)
+    assert window.width() == 1280 and window.minimumSizeHint().width() <= SMALLEST[0]
+    assert view.width() <= window.stack.currentWidget().viewport().width()
