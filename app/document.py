@@ -88,7 +88,12 @@ class SiteDocument(QObject):
         self._dirty = False            # unsaved before any edit (a new or recovered site)
         self._demo_name: str | None = DEFAULT_DEMO if site is None else None
         self.undo_stack = QUndoStack(self)
-        self.undo_stack.cleanChanged.connect(lambda _clean: self.state_changed.emit())
+        # a bound slot, not a lambda: Qt drops it with the document (a lambda outlived the
+        # stack at teardown and raised "Signal source has been deleted")
+        self.undo_stack.cleanChanged.connect(self._on_clean_changed)
+
+    def _on_clean_changed(self, _clean: bool) -> None:
+        self.state_changed.emit()
 
     # -- state ----------------------------------------------------------------
     @property
