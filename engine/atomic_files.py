@@ -58,18 +58,23 @@ def remove_stale_temps(path: str | os.PathLike) -> list[Path]:
         The files removed.
     """
     path = Path(path)
-    pattern = _temp_pattern(path)
+    return _sweep(_folder(path), _temp_pattern(path))
+
+
+def _sweep(folder: Path, pattern: re.Pattern) -> list[Path]:
+    """Remove the files of ``folder`` that match ``pattern`` (group 1: the writer's pid)
+    and whose writer no longer runs; the files removed."""
     removed = []
     try:
-        names = os.listdir(_folder(path))
+        names = os.listdir(folder)
     except OSError:
         return removed
     for name in names:
         m = pattern.match(name)
         if m and not _alive(int(m.group(1))):
             try:
-                os.unlink(_folder(path) / name)
-                removed.append(_folder(path) / name)
+                os.unlink(folder / name)
+                removed.append(folder / name)
             except OSError:
                 pass
     return removed
@@ -87,21 +92,7 @@ def remove_stale_temps_in(folder: str | os.PathLike) -> list[Path]:
     list of Path
         The files removed.
     """
-    folder = Path(folder)
-    removed = []
-    try:
-        names = os.listdir(folder)
-    except OSError:
-        return removed
-    for name in names:
-        m = _ANY_TEMP.match(name)
-        if m and not _alive(int(m.group(1))):
-            try:
-                os.unlink(folder / name)
-                removed.append(folder / name)
-            except OSError:
-                pass
-    return removed
+    return _sweep(Path(folder), _ANY_TEMP)
 
 
 @contextlib.contextmanager
