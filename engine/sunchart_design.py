@@ -158,6 +158,9 @@ class DateArc:
         The path drawn.
     label_index : int
         Sample of ``curve`` the label is written at (-1: none, the sun never up).
+    label_candidates : tuple of int
+        Further samples to try, best first, where the first is taken by another
+        label (:func:`arc_label_candidates`); empty for an empty path.
     """
 
     label: str
@@ -166,6 +169,38 @@ class DateArc:
     default: bool
     curve: object
     label_index: int
+    label_candidates: tuple = ()
+
+
+#: Heights along a path (fractions of its highest elevation) where its label may go,
+#: best first: clear of the noon hour line and of the horizon, then higher or lower.
+LABEL_FRACTIONS = (0.55, 0.35, 0.75, 0.2, 0.9)
+
+
+def arc_label_candidates(azimuth_deg, elevation_deg, centre_deg: float,
+                         fractions=LABEL_FRACTIONS) -> tuple:
+    """Where along a path its label may go, best first: for each of ``fractions`` of
+    the path's highest elevation, the nearest sample on the side of the path
+    (morning or afternoon) that keeps it further from the flat chart's edges, then
+    the other side. Empty for an empty path.
+
+    A chart places each arc's label at the first candidate whose box is free, so
+    arcs that crowd each other at one height still get their names.
+    """
+    el = np.asarray(elevation_deg, dtype=float)
+    if len(el) == 0:
+        return ()
+    az = np.asarray(azimuth_deg, dtype=float)
+    top = int(np.argmax(el))
+    out: list[int] = []
+    for f in fractions:
+        after = top + int(np.argmin(np.abs(el[top:] - f * el[top])))
+        before = int(np.argmin(np.abs(el[:top + 1] - f * el[top])))
+        x = chart_x(az[[after, before]], centre_deg)
+        room = 180.0 - np.abs(x - centre_deg)
+        pair = (after, before) if room[0] >= min(room[1], 45.0) else (before, after)
+        out += [j for j in pair if j not in out]
+    return tuple(out)
 
 
 def arc_label_index(azimuth_deg, elevation_deg, centre_deg: float,
@@ -174,15 +209,8 @@ def arc_label_index(azimuth_deg, elevation_deg, centre_deg: float,
     path's highest elevation (clear of the noon hour line and of the horizon), on
     the side of the path (morning or afternoon) that keeps it further from the
     flat chart's edges; -1 for an empty path."""
-    el = np.asarray(elevation_deg, dtype=float)
-    if len(el) == 0:
-        return -1
-    top = int(np.argmax(el))
-    after = top + int(np.argmin(np.abs(el[top:] - fraction * el[top])))
-    before = int(np.argmin(np.abs(el[:top + 1] - fraction * el[top])))
-    x = chart_x(np.asarray(azimuth_deg, dtype=float)[[after, before]], centre_deg)
-    room = 180.0 - np.abs(x - centre_deg)
-    return after if room[0] >= min(room[1], 45.0) else before
+    found = arc_label_candidates(azimuth_deg, elevation_deg, centre_deg, (fraction,))
+    return found[0] if found else -1
 
 
 def date_arcs(paths, centre_deg: float) -> tuple:
@@ -206,7 +234,9 @@ def date_arcs(paths, centre_deg: float) -> tuple:
         out.append(DateArc(label=label, months=months, kind=kind, default=kind != "month",
                            curve=curve,
                            label_index=arc_label_index(curve.azimuth_deg, curve.elevation_deg,
-                                                       centre_deg)))
+                                                       centre_deg),
+                           label_candidates=arc_label_candidates(
+                               curve.azimuth_deg, curve.elevation_deg, centre_deg)[1:]))
     return tuple(out)
 
 
@@ -272,6 +302,6 @@ def hour_band(hour_lines, paths, centre_deg: float,
                     hours=tuple(h for h, _ in kept), azimuth_deg=tuple(x for _, x in kept))
 
 
-__all__ = ["ARC_GROUPS", "CENTRE_CANDIDATES_DEG", "HOUR_LABEL_MIN_SEP_DEG", "DateArc",
-           "HourBand", "arc_label_index", "chart_centre_deg", "chart_x", "date_arcs",
-           "edge_cost", "hour_band", "lead_chart"]
+__all__ = ["ARC_GROUPS", "CENTRE_CANDIDATES_DEG", "HOUR_LABEL_MIN_SEP_DEG", "LABEL_FRACTIONS",
+           "DateArc", "HourBand", "arc_label_candidates", "arc_label_index", "chart_centre_deg",
+           "chart_x", "date_arcs", "edge_cost", "hour_band", "lead_chart"]

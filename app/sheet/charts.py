@@ -270,6 +270,21 @@ def _legend(m: Measure, rect: QRectF, entries, s: float, frame: QRectF, out=None
     return ops
 
 
+def _legend_width(m: Measure, texts, frame: QRectF, height: float, s: float) -> float:
+    """The key's width: 28 % of the chart (at most 150 pt at scale 1), widened in steps
+    up to 40 % where its rows at their natural height would not fit ``height``, so
+    that no row is dropped or cut while there is room beside the plot."""
+    font = Font(max(LEGEND_PT, 6.8 * s))
+    sample_w = 20.0 * s
+    width = min(150.0 * s, frame.width() * 0.28)
+    while True:
+        need = sum(natural_height(m, t, width - sample_w - 4.0, font, 3) + 2.5 * s
+                   for t in texts)
+        if need <= height or width >= frame.width() * 0.4:
+            return width
+        width = min(width + 10.0 * s, frame.width() * 0.4)
+
+
 def _line_sample(color, width, dash, marker=None, frame=None):
     def draw(r: QRectF):
         y = r.center().y()
@@ -381,13 +396,18 @@ def sun_path_chart(m: Measure, frame: QRectF, chart, basis_words: str, s: float 
     """
     ops, th = _title(m, frame, "Sun path through the year, with the site horizon", s,
                      "title.sunpath")
-    legend_w = min(150.0 * s, frame.width() * 0.28)
     tick_font = Font(max(LEGEND_PT, 6.6 * s), condensed=True)
     lh = m.line_height(tick_font)
     label_h = m.line_height(Font(max(LEGEND_PT, 7.0 * s)))
+    top = frame.top() + th + label_h + lh / 2.0 + 4.0
+    key_texts = [arc_key_text(arc) + ("" if len(arc.curve) else
+                                      ": the sun stays below the horizon")
+                 for arc in chart.arcs]
+    key_texts += [f"hour lines, {basis_words}; hours in the band above",
+                  "terrain and obstacles (hatched): the sun is hidden below the line"]
+    legend_w = _legend_width(m, key_texts, frame, frame.bottom() - top, s)
     left = frame.left() + m.width("90°", tick_font) + 4.0
-    plot = QRectF(left, frame.top() + th + label_h + lh / 2.0 + 4.0,
-                  frame.right() - legend_w - 10.0 - left, 0.0)
+    plot = QRectF(left, top, frame.right() - legend_w - 10.0 - left, 0.0)
     plot.setBottom(frame.bottom() - lh - label_h - 4.0)
     centre = chart.centre_azimuth_deg
     band = chart.hour_band
@@ -445,12 +465,13 @@ def sun_path_chart(m: Measure, frame: QRectF, chart, basis_words: str, s: float 
         h = m.line_height(font)
         box = QRectF(x - w / 2.0, (y - h - 1.0) if above else (y - h / 2.0), w, h)
         if not inner.contains(box) or any(box.intersects(t) for t in taken):
-            return
+            return False
         taken.append(box)
         ops.append(shape(rect_path(box), frame, None, "#ffffff" if role != "hour-label"
                          else "#eef1f4", role=f"{role}-bg"))
         ops.extend(fit_text(m, text, box, font, align="center", color="#3b4148",
                             role=role).ops)
+        return True
 
     hf = Font(max(LEGEND_PT - 0.5, 6.0 * s), condensed=True)
     mid = 0.5 * (band.low_deg + band.high_deg)
@@ -460,20 +481,15 @@ def sun_path_chart(m: Measure, frame: QRectF, chart, basis_words: str, s: float 
     for _i, arc in arcs:
         if arc.label_index < 0:
             continue
-        j = arc.label_index
-        x = float(ax.px(chart_x(arc.curve.azimuth_deg[j], centre)))
-        put(arc.label, x, float(ax.py(arc.curve.elevation_deg[j])), af, "arc-label")
+        for j in (arc.label_index, *arc.label_candidates):
+            x = float(ax.px(chart_x(arc.curve.azimuth_deg[j], centre)))
+            if put(arc.label, x, float(ax.py(arc.curve.elevation_deg[j])), af, "arc-label"):
+                break
     # the key: every arc, what it stands for, in its colour and pattern
-    entries = []
-    for i, arc in enumerate(chart.arcs):
-        width, dash = arc_style(arc, i)
-        extra = "" if len(arc.curve) else ": the sun stays below the horizon"
-        entries.append((_line_sample(theme.arc_color(i).name(), width, dash, frame=frame),
-                        arc_key_text(arc) + extra))
-    entries.append((_line_sample(HOUR_LINE, 0.6, (1.0, 1.4), frame=frame),
-                    f"hour lines, {basis_words}; hours in the band above"))
-    entries.append((_fill_sample(frame), "terrain and obstacles (hatched): the sun is "
-                                         "hidden below the line"))
+    samples = [_line_sample(theme.arc_color(i).name(), *arc_style(arc, i), frame=frame)
+               for i, arc in enumerate(chart.arcs)]
+    samples += [_line_sample(HOUR_LINE, 0.6, (1.0, 1.4), frame=frame), _fill_sample(frame)]
+    entries = list(zip(samples, key_texts, strict=True))
     lrect = QRectF(frame.right() - legend_w, plot.top(), legend_w,
                    frame.bottom() - plot.top())
     ops += _legend(m, lrect, entries, s, frame)
@@ -497,7 +513,6 @@ def monthly_chart(m: Measure, frame: QRectF, series, s: float = 1.0,
                   title: str = "Monthly irradiation on the plane of the compared options") -> list:
     """Monthly irradiation of several options, one line with markers per option."""
     ops, th = _title(m, frame, title, s, "title.monthly")
-    legend_w = min(150.0 * s, frame.width() * 0.28)
     tick_font = Font(max(LEGEND_PT, 6.6 * s), condensed=True)
     lh = m.line_height(tick_font)
     label_h = m.line_height(Font(max(LEGEND_PT, 7.0 * s)))
@@ -506,9 +521,11 @@ def monthly_chart(m: Measure, frame: QRectF, series, s: float = 1.0,
     ymax = max(step, math.ceil(vmax * 1.04 / step) * step)
     yticks = [(v, f"{v:g}") for v in np.arange(0.0, ymax + step / 2, step)]
     left = frame.left() + max(m.width(t, tick_font) for _v, t in yticks) + 4.0
-    plot = QRectF(left, frame.top() + th + label_h + lh / 2.0 + 4.0,
-                  frame.right() - legend_w - 10.0 - left, 0.0)
-    plot.setBottom(frame.bottom() - lh - label_h - 4.0)
+    top = frame.top() + th + label_h + lh / 2.0 + 4.0
+    bottom = frame.bottom() - lh - label_h - 4.0
+    legend_w = _legend_width(m, [v.name for v in series], frame, bottom - top, s)
+    plot = QRectF(left, top, frame.right() - legend_w - 10.0 - left, 0.0)
+    plot.setBottom(bottom)
     ax = Axes(plot, 0.5, 12.5, 0.0, ymax)
     xticks = [(i + 1, MONTH_ABBR[i]) for i in range(12)]
     ops += _axes_ops(m, frame, ax, xticks, yticks, "Month",

@@ -231,7 +231,8 @@ def _page1(m: Measure, ctx: _Ctx, s: float):
     avail = col.remaining
     need = 2 * MIN_CHART_H * s + 12.0
     ok = not col.overflow and not key_over and avail >= need
-    sun_h = max(0.0, (avail - 12.0) * 0.49)
+    # the sun chart's key has more rows (up to nine) than the monthly chart's (six)
+    sun_h = max(0.0, (avail - 12.0) * 0.54)
     sun_box = col.take(sun_h)
     col.gap(12.0)
     mon_box = col.take(col.remaining)

@@ -106,3 +106,19 @@ def test_cli_client_flags(tmp_path, qapp):
                              pypdf.PdfReader(io.BytesIO(out.read_bytes())).pages).split())
     assert "Prepared for Creek Co-op · reference KC-7" in text
     assert load_demo("kelpie-creek-shed").client == ""          # the demo is unchanged
+
+
+def test_a_full_client_block_on_letter_keeps_every_key_row_whole(qapp):
+    # the client block takes page 1 lines from the charts; their keys widen instead of
+    # dropping or cutting a row (seen: "Two-axis (ceiling): 2739 kWh/…" and the sun
+    # chart's last two rows missing on Letter at the cabin)
+    a = demo_assessment("tarnvik-cabin")
+    a = a.with_site(a.site.with_changes(client="Fjord Cabins Ltd", address="Tarnvik 12",
+                                        reference="Q-2026-114"))
+    doc = lay_out(assess(a).sheet_data(), META, "letter").document
+    legend = [o for o in doc.pages[0].texts() if o.role == "legend"]
+    text = " ".join(" ".join(o.text for o in legend).split())
+    assert "…" not in text
+    for words in ("December solstice", "June solstice", "hour lines", "terrain and obstacles",
+                  "Two-axis (ceiling)", "a year"):
+        assert words in text, words

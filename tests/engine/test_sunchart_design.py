@@ -9,6 +9,8 @@ from tiltyard.engine.demo_sites import load_demo
 from tiltyard.engine.sunchart import sun_chart
 from tiltyard.engine.sunchart_design import (
     HOUR_LABEL_MIN_SEP_DEG,
+    arc_label_candidates,
+    arc_label_index,
     chart_centre_deg,
     chart_x,
     edge_cost,
@@ -104,3 +106,15 @@ def test_hour_band_is_above_every_path_and_labels_keep_apart(charts):
         assert np.all(np.diff(x) >= HOUR_LABEL_MIN_SEP_DEG)
         lo = chart.centre_azimuth_deg - 180.0
         assert np.all((x > lo) & (x < lo + 360.0))
+
+
+def test_label_candidates_start_at_the_label_place_and_never_repeat():
+    # a symmetric arch: 0..180 degrees of azimuth, elevation a half sine (shape only)
+    az = np.linspace(90.0, 270.0, 181)
+    el = 40.0 * np.sin(np.radians(az - 90.0))
+    found = arc_label_candidates(az, el, 180.0)
+    assert found[0] == arc_label_index(az, el, 180.0)
+    assert len(found) == len(set(found)) and all(0 <= j < len(az) for j in found)
+    # both sides of the arch are offered at every height
+    assert {j > 90 for j in found} == {True, False}
+    assert arc_label_candidates([], [], 180.0) == () and arc_label_index([], [], 180.0) == -1
