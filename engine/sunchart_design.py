@@ -240,6 +240,35 @@ def date_arcs(paths, centre_deg: float) -> tuple:
     return tuple(out)
 
 
+def polar_xy(azimuth_deg, elevation_deg):
+    """Map x/y of the from-above chart: north up, east right, radius = 90° - elevation.
+
+    An azimuthal equidistant sky map centred on the zenith (common practice, no
+    source); elevations below 0° are drawn on the horizon ring. Units: degrees of
+    zenith angle (the horizon ring has radius 90).
+    """
+    az = np.radians(np.asarray(azimuth_deg, dtype=float))
+    r = 90.0 - np.clip(np.asarray(elevation_deg, dtype=float), 0.0, 90.0)
+    return r * np.sin(az), r * np.cos(az)
+
+
+def skyline_peaks(azimuth_deg, elevation_deg, n: int = 3, min_sep_deg: float = 40.0,
+                  min_elevation_deg: float = 2.0) -> tuple:
+    """Where the from-above chart ticks its skyline: the indices of the highest
+    points, at most ``n``, at least ``min_sep_deg`` of azimuth apart and at least
+    ``min_elevation_deg`` high (a tick on a flat skyline says nothing), highest first.
+    """
+    az = np.asarray(azimuth_deg, dtype=float)
+    el = np.asarray(elevation_deg, dtype=float)
+    picks: list[int] = []
+    for i in np.argsort(-np.nan_to_num(el, nan=-np.inf), kind="stable"):
+        if not el[i] >= min_elevation_deg or len(picks) == n:
+            break
+        if all(abs(((az[i] - az[j]) + 180.0) % 360.0 - 180.0) >= min_sep_deg for j in picks):
+            picks.append(int(i))
+    return tuple(picks)
+
+
 #: Which hours keep their label first when two would meet: noon, 6 and 18, every
 #: third hour, even hours, the rest.
 def _hour_rank(hour: int) -> int:
@@ -304,4 +333,5 @@ def hour_band(hour_lines, paths, centre_deg: float,
 
 __all__ = ["ARC_GROUPS", "CENTRE_CANDIDATES_DEG", "HOUR_LABEL_MIN_SEP_DEG", "LABEL_FRACTIONS",
            "DateArc", "HourBand", "arc_label_candidates", "arc_label_index", "chart_centre_deg",
-           "chart_x", "date_arcs", "edge_cost", "hour_band", "lead_chart"]
+           "chart_x", "date_arcs", "edge_cost", "hour_band", "lead_chart", "polar_xy",
+           "skyline_peaks"]

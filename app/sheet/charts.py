@@ -346,6 +346,20 @@ def arc_key_text(arc) -> str:
     return f"{arc.label}: 21 {names}"
 
 
+def sun_key(chart, basis_words: str, hours_where: str, frame: QRectF) -> list:
+    """The sun chart's key, flat or from above: every arc in its colour and pattern
+    with the dates it stands for, the hour lines, and the terrain with its obstacles."""
+    entries = [(_line_sample(theme.arc_color(i).name(), *arc_style(arc, i), frame=frame),
+                arc_key_text(arc) + ("" if len(arc.curve) else
+                                     ": the sun stays below the horizon"))
+               for i, arc in enumerate(chart.arcs)]
+    entries.append((_line_sample(HOUR_LINE, 0.6, (1.0, 1.4), frame=frame),
+                    f"hour lines, {basis_words}; {hours_where}"))
+    entries.append((_fill_sample(frame), "terrain and obstacles (hatched): the sun is "
+                                         "hidden behind them"))
+    return entries
+
+
 def _horizon_polygon(ax: Axes, plot: QRectF, az, el, centre: float) -> QPainterPath:
     """The area below a horizon line across the plot (NaN: no area there)."""
     hx = chart_x(az, centre)
@@ -400,12 +414,8 @@ def sun_path_chart(m: Measure, frame: QRectF, chart, basis_words: str, s: float 
     lh = m.line_height(tick_font)
     label_h = m.line_height(Font(max(LEGEND_PT, 7.0 * s)))
     top = frame.top() + th + label_h + lh / 2.0 + 4.0
-    key_texts = [arc_key_text(arc) + ("" if len(arc.curve) else
-                                      ": the sun stays below the horizon")
-                 for arc in chart.arcs]
-    key_texts += [f"hour lines, {basis_words}; hours in the band above",
-                  "terrain and obstacles (hatched): the sun is hidden below the line"]
-    legend_w = _legend_width(m, key_texts, frame, frame.bottom() - top, s)
+    entries = sun_key(chart, basis_words, "hours in the band above", frame)
+    legend_w = _legend_width(m, [t for _s, t in entries], frame, frame.bottom() - top, s)
     left = frame.left() + m.width("90°", tick_font) + 4.0
     plot = QRectF(left, top, frame.right() - legend_w - 10.0 - left, 0.0)
     plot.setBottom(frame.bottom() - lh - label_h - 4.0)
@@ -486,10 +496,6 @@ def sun_path_chart(m: Measure, frame: QRectF, chart, basis_words: str, s: float 
             if put(arc.label, x, float(ax.py(arc.curve.elevation_deg[j])), af, "arc-label"):
                 break
     # the key: every arc, what it stands for, in its colour and pattern
-    samples = [_line_sample(theme.arc_color(i).name(), *arc_style(arc, i), frame=frame)
-               for i, arc in enumerate(chart.arcs)]
-    samples += [_line_sample(HOUR_LINE, 0.6, (1.0, 1.4), frame=frame), _fill_sample(frame)]
-    entries = list(zip(samples, key_texts, strict=True))
     lrect = QRectF(frame.right() - legend_w, plot.top(), legend_w,
                    frame.bottom() - plot.top())
     ops += _legend(m, lrect, entries, s, frame)
@@ -568,5 +574,5 @@ def _series_style(v: Series):
     return color, dash, 1.0, others[i % len(others)]
 
 
-__all__ = ["Axes", "Series", "chart_x", "marker_path", "monthly_chart", "nice_step",
-           "polyline", "sun_path_chart", "wrap_break"]
+__all__ = ["Axes", "Series", "arc_key_text", "arc_style", "chart_x", "marker_path",
+           "monthly_chart", "nice_step", "polyline", "sun_key", "sun_path_chart", "wrap_break"]

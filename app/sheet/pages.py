@@ -58,6 +58,7 @@ from .layout import (
     rect_path,
     shape,
 )
+from .sun_above import sun_above_chart
 
 #: Page margins, points (left, top, right, bottom).
 MARGINS = (42.0, 38.0, 42.0, 34.0)
@@ -231,15 +232,18 @@ def _page1(m: Measure, ctx: _Ctx, s: float):
     avail = col.remaining
     need = 2 * MIN_CHART_H * s + 12.0
     ok = not col.overflow and not key_over and avail >= need
-    # the sun chart's key has more rows (up to nine) than the monthly chart's (six)
-    sun_h = max(0.0, (avail - 12.0) * 0.54)
+    # the sun chart's key has more rows (up to nine) than the monthly chart's (six); a
+    # round chart from above needs more height still
+    sun_h = max(0.0, (avail - 12.0) * (0.6 if ctx.sun.lead == "above" else 0.54))
     sun_box = col.take(sun_h)
     col.gap(12.0)
     mon_box = col.take(col.remaining)
     page.frames["sunpath"] = sun_box
     page.frames["monthly"] = mon_box
     if sun_box.height() > 40 and mon_box.height() > 40:
-        page.add(sun_path_chart(m, sun_box, ctx.sun, time_basis_words(ctx.meta.time_basis), s))
+        # the chart the app leads with: from above where a flat one would cut a path
+        sun = sun_above_chart if ctx.sun.lead == "above" else sun_path_chart
+        page.add(sun(m, sun_box, ctx.sun, time_basis_words(ctx.meta.time_basis), s))
         page.add(monthly_chart(m, mon_box, _chart_series(ctx), s))
     else:
         ok = False

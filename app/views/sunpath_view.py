@@ -44,7 +44,7 @@ from PySide6.QtWidgets import (
 )
 
 from tiltyard.engine.sunchart import sun_chart
-from tiltyard.engine.sunchart_design import chart_x
+from tiltyard.engine.sunchart_design import chart_x, polar_xy, skyline_peaks
 from tiltyard.engine.words import MONTH_ABBR, TIME_BASIS_WORDS, bearing, compass, compass_tick
 
 from .. import plots, theme
@@ -162,17 +162,6 @@ def _edge_to_edge(azimuth_deg, elevation_deg, centre_deg: float):
     if hx[-1] < hi:
         hx, hy = np.append(hx, hi), np.append(hy, hy[0])
     return hx, hy
-
-
-def polar_xy(azimuth_deg, elevation_deg):
-    """Map x/y seen from above: north up, east right, radius = 90° - elevation.
-
-    An azimuthal equidistant sky map centred on the zenith (common practice, no
-    source); elevations below 0° are drawn on the horizon ring.
-    """
-    az = np.radians(np.asarray(azimuth_deg, dtype=float))
-    r = 90.0 - np.clip(np.asarray(elevation_deg, dtype=float), 0.0, 90.0)
-    return r * np.sin(az), r * np.cos(az)
 
 
 def _pen(color, width: float, style=Qt.PenStyle.SolidLine):
@@ -705,12 +694,7 @@ class SunPathView(View):
         skyline's highest points (up to three, at least 40° of azimuth apart)."""
         az = np.asarray(chart.horizon_azimuth_deg[:-1], dtype=float)
         el = np.asarray(chart.horizon_elevation_deg[:-1], dtype=float)
-        picks = []
-        for i in np.argsort(-el, kind="stable"):
-            if el[i] < 2.0 or len(picks) == 3:
-                break
-            if all(abs(((az[i] - az[j]) + 180.0) % 360.0 - 180.0) >= 40.0 for j in picks):
-                picks.append(int(i))
+        picks = skyline_peaks(az, el)
         xs, ys, labels = [], [], []
         for i in picks:
             b = math.radians(az[i])

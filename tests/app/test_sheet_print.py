@@ -212,3 +212,13 @@ def test_the_cautions_never_stand_alone_on_a_page(paper):
             others = [o for o in page.texts() if not o.role.startswith(
                 ("head.", "footer", "caution", "section.cautions"))]
             assert others, (name, paper, i + 1)
+
+
+@pytest.mark.parametrize("name", demo_site_names())
+def test_the_sheet_leads_with_the_chart_the_app_leads_with(name):
+    data = sheet_data(name)
+    roles = {o.role for o in lay_out(data, META, paper="a4").document.pages[0].ops}
+    # from above in the tropics, where a flat chart would cut or squeeze a path
+    # (tiltyard.engine.sunchart_design.lead_chart); the same key either way
+    assert ("horizon-ring" in roles) == (data.sun.lead == "above"), name
+    assert ("hour-band" in roles) == (data.sun.lead == "flat"), name

@@ -15,6 +15,8 @@ from tiltyard.engine.sunchart_design import (
     chart_x,
     edge_cost,
     lead_chart,
+    polar_xy,
+    skyline_peaks,
 )
 
 #: Below this elevation a path meeting the chart edge is its end at the horizon, not a cut.
@@ -118,3 +120,21 @@ def test_label_candidates_start_at_the_label_place_and_never_repeat():
     # both sides of the arch are offered at every height
     assert {j > 90 for j in found} == {True, False}
     assert arc_label_candidates([], [], 180.0) == () and arc_label_index([], [], 180.0) == -1
+
+
+def test_from_above_map_puts_north_up_east_right_and_the_zenith_in_the_centre():
+    # azimuthal equidistant sky map (common practice, no source)
+    x, y = polar_xy([0.0, 90.0, 180.0, 270.0, 45.0], [0.0, 0.0, 30.0, 60.0, 90.0])
+    np.testing.assert_allclose(x, [0.0, 90.0, 0.0, -30.0, 0.0], atol=1e-12)
+    np.testing.assert_allclose(y, [90.0, 0.0, -60.0, 0.0, 0.0], atol=1e-12)
+    # below the horizon is drawn on the horizon ring
+    assert np.hypot(*polar_xy(123.0, -5.0)) == pytest.approx(90.0)
+
+
+def test_skyline_ticks_go_to_separate_high_points():
+    az = np.arange(0.0, 360.0, 5.0)
+    el = np.zeros_like(az)
+    el[[10, 12, 40, 60]] = [20.0, 18.0, 9.0, 1.0]       # 50°, 60°, 200°, 300°
+    # 60° is within 40° of the higher 50°; 300° is under the 2° floor
+    assert skyline_peaks(az, el) == (10, 40)
+    assert skyline_peaks(az, np.zeros_like(az)) == ()
