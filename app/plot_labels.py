@@ -21,7 +21,9 @@ from PySide6.QtGui import QColor, QFont, QFontMetricsF
 class Label:
     """One label: ``text`` at data point (``x``, ``y``); the anchor is the fraction
     of the label box's width and height that sits on the point ((0.5, 1.0):
-    centred above it; values outside 0..1 leave a gap)."""
+    centred above it; values outside 0..1 leave a gap). ``alternates`` are further
+    (x, y) data points, best first, tried in turn on a layer that avoids overlaps when
+    the box at (``x``, ``y``) is taken."""
 
     x: float
     y: float
@@ -30,6 +32,7 @@ class Label:
     anchor_y: float = 0.5
     color: str | None = None        # the layer's colour when None
     font_pt: float | None = None    # the layer's font size when None
+    alternates: tuple = ()
 
 
 class LabelLayer(pg.GraphicsObject):
@@ -87,13 +90,15 @@ class LabelLayer(pg.GraphicsObject):
             font = self._font if lb.font_pt is None else self._sized(lb.font_pt)
             fm = self._metrics if lb.font_pt is None else QFontMetricsF(font)
             h = fm.height()
-            pt = tr.map(QPointF(lb.x, lb.y))
             w = fm.horizontalAdvance(lb.text) + 2 * pad
-            box = QRectF(pt.x() - lb.anchor_x * w, pt.y() - lb.anchor_y * h, w, h)
-            if self.avoid_overlap and any(box.intersects(t) for t in taken):
-                continue
-            taken.append(box)
-            out.append((lb, box, font))
+            places = ((lb.x, lb.y), *lb.alternates) if self.avoid_overlap else ((lb.x, lb.y),)
+            for x, y in places:
+                pt = tr.map(QPointF(x, y))
+                box = QRectF(pt.x() - lb.anchor_x * w, pt.y() - lb.anchor_y * h, w, h)
+                if not (self.avoid_overlap and any(box.intersects(t) for t in taken)):
+                    taken.append(box)
+                    out.append((lb, box, font))
+                    break
         return out
 
     def scene_rects(self) -> list[QRectF]:

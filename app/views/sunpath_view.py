@@ -548,10 +548,15 @@ class SunPathView(View):
             shown[curve.label] = item
             pick.append((curve, *pick_mapper(curve.azimuth_deg, curve.elevation_deg)))
             if arc.label_index >= 0:
-                j = arc.label_index
-                x, y = pick_mapper(curve.azimuth_deg[j:j + 1], curve.elevation_deg[j:j + 1])
-                labels.append(Label(float(np.asarray(x)[0]), float(np.asarray(y)[0]),
-                                    arc.label, 0.5, 1.15, color=theme.TEXT))
+                # the label's place on the arc, then the others along it (a crowded
+                # chart still names every arc)
+                js = [arc.label_index, *arc.label_candidates]
+                x, y = pick_mapper(curve.azimuth_deg[js], curve.elevation_deg[js])
+                x, y = np.asarray(x, dtype=float), np.asarray(y, dtype=float)
+                labels.append(Label(float(x[0]), float(y[0]), arc.label, 0.5, 1.15,
+                                    color=theme.TEXT,
+                                    alternates=tuple(zip(x[1:].tolist(), y[1:].tolist(),
+                                                         strict=True))))
         # the key says what the dashes mean
         layer.set_labels(labels)
         return shown, pick

@@ -209,6 +209,9 @@ def test_chart_labels_never_meet_and_stay_on_their_points(qtbot, make_ctx, idle,
     cart = view._cart_labels.scene_rects() + view._arc_labels.scene_rects()
     assert len(view._cart_labels.scene_rects()) >= 4 and view._arc_labels.scene_rects()
     assert _overlaps(cart) == []
+    # every arc is named: a label whose place is taken moves along its arc
+    assert len(view._arc_labels.scene_rects()) == len(view._arc_labels.labels) == \
+        sum(1 for a in view.chart.arcs if len(a.curve))
     polar = view._polar_arc_labels.scene_rects() + view._polar_labels.scene_rects()
     rings = {lb.text for lb in view._polar_arc_labels.labels if lb.text.endswith("°")}
     assert {"0°", "30°", "60°", "90°"} <= rings
