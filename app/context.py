@@ -30,7 +30,8 @@ class AppContext(QObject):
     study_changed = Signal(object)      # TiltStudy or None
     design_date_changed = Signal(object)  # datetime.date
     preferences_changed = Signal(object)
-    message = Signal(str, str)          # level ("error"|"warning"|"info"), text
+    message = Signal(str, str, str)     # level ("error"|"warning"|"info"), text, owner
+    resolved = Signal(str)              # owner whose cause is fixed
 
     def __init__(self, document: SiteDocument, runner: TaskRunner, prefs: Preferences,
                  parent=None):
@@ -52,11 +53,25 @@ class AppContext(QObject):
 
     def set_settings(self, **changes) -> bool:
         """Change the open site's settings; an error goes to the message banner."""
-        err = self.document.set_settings(**changes)
+        return self._edited(self.document.set_settings(**changes), "settings", changes)
+
+    def propose(self, **changes) -> bool:
+        """Change the open site itself; an error goes to the message banner."""
+        return self._edited(self.document.propose(**changes), "site", changes)
+
+    def _edited(self, err, kind: str, changes: dict) -> bool:
+        """Say an edit's error, owned by the fields it touched; a good edit of the same
+        fields takes that error away."""
+        owner = f"{kind}:" + ",".join(sorted(changes))
         if err is not None:
-            self.notify("error", str(err))
+            self.notify("error", str(err), owner)
             return False
+        self.resolve(owner)
         return True
+
+    def resolve(self, owner: str) -> None:
+        """What raised the message owned by ``owner`` is fixed: the message goes."""
+        self.resolved.emit(owner)
 
     def publish_study(self, study) -> None:
         self.study = study
@@ -84,5 +99,7 @@ class AppContext(QObject):
         self.prefs = prefs
         self.preferences_changed.emit(prefs)
 
-    def notify(self, level: str, text: str) -> None:
-        self.message.emit(level, text)
+    def notify(self, level: str, text: str, owner: str = "") -> None:
+        """Show a message in the banner; ``owner`` names what raised it (see
+        :meth:`MessageBanner.resolve`)."""
+        self.message.emit(level, text, owner)

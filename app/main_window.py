@@ -108,7 +108,10 @@ class MainWindow(QMainWindow):
         self.runner.busy.connect(self._set_busy)
         self.runner.progress.connect(self._on_progress)
         self.runner.error.connect(self._on_task_error)
-        self.ctx.message.connect(lambda level, text: self.banner.show_message(level, text))
+        self.runner.succeeded.connect(lambda label: self.banner.resolve(f"task:{label}"))
+        self.ctx.message.connect(
+            lambda level, text, owner: self.banner.show_message(level, text, owner=owner))
+        self.ctx.resolved.connect(self.banner.resolve)
 
         self._build_menus()
         self.document.state_changed.connect(self._update_title)
@@ -451,7 +454,7 @@ class MainWindow(QMainWindow):
             self.status_label.setText(text)
 
     def _on_task_error(self, label: str, message: str, tb: str) -> None:
-        self.banner.show_message("error", f"{label}: {message}", tb)
+        self.banner.show_message("error", f"{label}: {message}", tb, owner=f"task:{label}")
 
     def _update_title(self) -> None:
         mark = "*" if self.document.dirty else ""

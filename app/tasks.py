@@ -106,12 +106,15 @@ class TaskRunner(QObject):
         Channel label, fraction 0..1 and stage text.
     error(str, str, str)
         Channel, one-line message and traceback of a failed task.
+    succeeded(str)
+        Label of a task whose result was shown without error.
     """
 
     busy = Signal(bool)
     progress = Signal(str, float, str)
     error = Signal(str, str, str)
     finished = Signal(str)
+    succeeded = Signal(str)
 
     def __init__(self, parent=None, max_threads: int = 2):
         super().__init__(parent)
@@ -269,12 +272,16 @@ class TaskRunner(QObject):
         current = self._current(task)
         self._retire(task)
         if current and not self._closed:
+            ok = True
             if task.on_result is not None:
                 try:
                     task.on_result(result)
                 except Exception as exc:  # noqa: BLE001 - a view fault must not kill the app
+                    ok = False
                     self.error.emit(task.label, f"could not show the result: {exc}",
                                     traceback.format_exc())
+            if ok:
+                self.succeeded.emit(task.label)
             self.progress.emit(task.label, 1.0, "done")
             self.finished.emit(task.channel)
 

@@ -27,7 +27,12 @@ SHOWN_SETTLE_MS = 20
 
 
 class MessageBanner(QFrame):
-    """A non-modal message strip above the views; closes on request."""
+    """A non-modal message strip above the views; closes on request.
+
+    A message may name its ``owner`` (the task or the edited fields that raised it):
+    :meth:`resolve` with that owner takes it away once the cause is fixed, and changing
+    view leaves it standing.
+    """
 
     def __init__(self, parent=None):
         super().__init__(parent)
@@ -44,9 +49,10 @@ class MessageBanner(QFrame):
         lay.addWidget(self.label, 1)
         lay.addWidget(close, 0, Qt.AlignmentFlag.AlignTop)
         self.details = ""
+        self.owner = ""
         self.hide()
 
-    def show_message(self, level: str, text: str, details: str = "") -> None:
+    def show_message(self, level: str, text: str, details: str = "", owner: str = "") -> None:
         self.setProperty("level", level)
         self.style().unpolish(self)
         self.style().polish(self)
@@ -54,7 +60,13 @@ class MessageBanner(QFrame):
         self.label.setText(prefix + text)
         self.details = details
         self.setToolTip(details[-2000:] if details else "")
+        self.owner = owner
         self.show()
+
+    def resolve(self, owner: str) -> None:
+        """The cause named ``owner`` is fixed: its message goes, any other stays."""
+        if owner and self.owner == owner and self.isVisible():
+            self.hide()
 
     @property
     def level(self) -> str:

@@ -494,11 +494,7 @@ class HorizonView(View):
         return tuple(round(float(x) % 360.0, 1) for x in xs)
 
     def _propose(self, **changes) -> bool:
-        err = self.ctx.document.propose(**changes)
-        if err is not None:
-            self.ctx.notify("error", str(err))
-            return False
-        return True
+        return self.ctx.propose(**changes)
 
     # -- computations --------------------------------------------------------------
     def refresh(self) -> None:
@@ -893,9 +889,10 @@ class HorizonView(View):
     def _imported(self, result) -> None:
         if isinstance(result, SiteError):
             self._io_show("error", f"Import failed, the horizon is unchanged: {result}")
-            self.ctx.notify("error", f"horizon import failed: {result}")
+            self.ctx.notify("error", f"horizon import failed: {result}", "horizon import")
             return
         if self._propose(horizon=result):
+            self.ctx.resolve("horizon import")
             self._io_show("info", f"Imported {len(result.azimuth_deg)} points.")
 
     def export_csv(self, path) -> None:
@@ -913,8 +910,9 @@ class HorizonView(View):
     def _exported(self, result) -> None:
         if isinstance(result, OSError):
             self._io_show("error", f"Export failed: {result.strerror or result}")
-            self.ctx.notify("error", f"horizon export failed: {result}")
+            self.ctx.notify("error", f"horizon export failed: {result}", "horizon export")
             return
+        self.ctx.resolve("horizon export")
         written, n = result
         self._io_show("info", f"Exported {n} points to {written.name}.")
 

@@ -318,11 +318,7 @@ class SiteView(View):
     def _propose(self, **changes) -> bool:
         if self._updating:
             return False
-        err = self.ctx.document.propose(**changes)
-        if err is not None:
-            self.ctx.notify("error", str(err))
-            return False
-        return True
+        return self.ctx.propose(**changes)
 
     @staticmethod
     def _parse_name(text: str) -> str:

@@ -245,7 +245,7 @@ def test_bad_csv_import_shows_the_line_and_keeps_the_site(qtbot, make_ctx, idle,
     bad = tmp_path / "survey.csv"
     bad.write_text("azimuth_deg,elevation_deg\n0,3\n90,abc\n180,11\n", encoding="utf-8")
     messages = []
-    ctx.message.connect(lambda level, text: messages.append((level, text)))
+    ctx.message.connect(lambda level, text, _owner: messages.append((level, text)))
     site = ctx.site
     monkeypatch.setattr(view, "ask_import_path", lambda: str(bad))
     qtbot.mouseClick(view.import_button, Qt.MouseButton.LeftButton)

@@ -172,6 +172,37 @@ def test_a_worker_error_is_a_visible_non_modal_message(window, qtbot, idle):
     assert w.isEnabled()
 
 
+def test_an_error_belongs_to_what_raised_it(window, qtbot, idle):
+    # issue 14, point 1: a message goes when its cause is fixed, not when the view changes
+    w = window()
+    assert not w.ctx.propose(elevation_m=-1e9)          # refused: below any site
+    assert w.banner.isVisible() and w.banner.level == "error"
+    for row in range(w.nav.count()):                     # every view in turn: it stays
+        w.nav.setCurrentRow(row)
+        assert w.banner.isVisible()
+    assert w.ctx.propose(name="Another name")            # another field: it stays
+    assert w.banner.isVisible()
+    assert w.ctx.propose(elevation_m=120.0)              # the same field fixed: it goes
+    assert not w.banner.isVisible()
+
+    state = {"fail": True}
+
+    def job(progress):
+        if state["fail"]:
+            raise RuntimeError("deliberate test fault")
+        return 1
+
+    w.runner.submit("test", job, lambda r: None, label="Test job", debounce_ms=0)
+    idle(w.runner)
+    assert w.banner.isVisible() and "deliberate test fault" in w.banner.text
+    assert w.ctx.propose(elevation_m=130.0)              # an unrelated edit: it stays
+    assert w.banner.isVisible()
+    state["fail"] = False
+    w.runner.submit("test", job, lambda r: None, label="Test job", debounce_ms=0)
+    idle(w.runner)                                       # the same task succeeds: it goes
+    assert not w.banner.isVisible()
+
+
 def test_a_newer_request_cancels_the_older(window, qtbot, idle):
     w = window()
     seen = []
