@@ -16,7 +16,10 @@ import pyqtgraph as pg
 from PySide6.QtCore import QTimer
 from PySide6.QtGui import QColor, QPen
 
+from . import theme
 from .tasks import TURN_MS
+
+theme.configure_charts()     # pyqtgraph's defaults, before any chart is made
 
 #: Plots the views hold in all: sun path 2, horizon 1, irradiance 2, tilt study 3.
 PLOTS_NEEDED = 8

@@ -21,7 +21,6 @@ from typing import Any
 from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 
 from . import site_limits as _limits
-from .monthly import first_dark_daylight_month
 
 #: Who a sheet is prepared for: the site's optional ``prepared_for`` object (format 2; a
 #: reader that does not know it ignores it, and it decides no figure).
@@ -290,6 +289,7 @@ class Site:
             object.__setattr__(self, "monthly_ghi_kwh_m2_day",
                                _twelve("monthly_ghi_kwh_m2_day", self.monthly_ghi_kwh_m2_day,
                                        0, 12, "kWh/m2/day"))
+            from .monthly import first_dark_daylight_month  # numpy, only when needed
             i = first_dark_daylight_month(self.latitude_deg, self.monthly_ghi_kwh_m2_day)
             if i is not None:     # decided once, here, for every sky basis and command
                 raise SiteError(f"monthly_ghi_kwh_m2_day[{i}]", self.monthly_ghi_kwh_m2_day[i],
