@@ -104,6 +104,15 @@ def _range_text(lo, hi, unit):
     return f"at most {hi:g}{u}"
 
 
+def _first_dark_daylight_month(latitude_deg: float, ghi_kwh_m2_day) -> int | None:
+    """:func:`tiltyard.engine.monthly.first_dark_daylight_month`, loaded (with numpy)
+    only when a month has no irradiation at all: a site opens before numpy loads."""
+    if all(v > 0.0 for v in ghi_kwh_m2_day):
+        return None
+    from .monthly import first_dark_daylight_month
+    return first_dark_daylight_month(latitude_deg, ghi_kwh_m2_day)
+
+
 def _text(field_name: str, value: Any, limit: int) -> str:
     """Validate a text field: a str of at most ``limit`` characters, storable as UTF-8."""
     if not isinstance(value, str):
@@ -289,8 +298,7 @@ class Site:
             object.__setattr__(self, "monthly_ghi_kwh_m2_day",
                                _twelve("monthly_ghi_kwh_m2_day", self.monthly_ghi_kwh_m2_day,
                                        0, 12, "kWh/m2/day"))
-            from .monthly import first_dark_daylight_month  # numpy, only when needed
-            i = first_dark_daylight_month(self.latitude_deg, self.monthly_ghi_kwh_m2_day)
+            i = _first_dark_daylight_month(self.latitude_deg, self.monthly_ghi_kwh_m2_day)
             if i is not None:     # decided once, here, for every sky basis and command
                 raise SiteError(f"monthly_ghi_kwh_m2_day[{i}]", self.monthly_ghi_kwh_m2_day[i],
                                 "must be more than 0 in a month with daylight (every month "
