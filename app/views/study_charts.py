@@ -99,6 +99,7 @@ class StudyCharts(QWidget):
     def _chart(title: str, left: str, bottom: str, grid: bool = True):
         """A plot widget styled as every chart here: no menu, no buttons, no mouse."""
         widget = plots.plot_widget()
+        widget.setMinimumHeight(plots.CHART_MIN_HEIGHT_PX)   # a short screen scrolls instead
         plot = widget.getPlotItem()
         theme.style_plot(plot, left, bottom)
         plot.setTitle(title, size="9.5pt")

@@ -50,7 +50,7 @@ from ..study_model import (
     StudySortProxy,
     StudyTableModel,
 )
-from ..widgets import CopyableTable, ValidatedField, View, wrapping
+from ..widgets import CopyableTable, ValidatedField, View, WholeLabel, wrapping
 from .study_charts import CHARTS, StudyChartDrawing
 
 OBJECTIVES = (("annual total", "annual"), ("worst month", "worst-month"),
@@ -124,15 +124,13 @@ class StudyView(StudyChartDrawing, View):
         self.heading.setProperty("role", "heading")
         top.addWidget(self.heading)
         top.addSpacing(12)
-        self.basis = QLabel()
+        self.basis = WholeLabel()
         self.basis.setProperty("role", "muted")
         self.basis.setToolTip("The sky basis and diffuse model are the ones chosen for "
                               "Irradiance; changing them there re-runs the study.")
-        self.basis.setWordWrap(True)
-        top.addWidget(self.basis, 1)
-        self.status = QLabel()
+        top.addWidget(self.basis, 2)      # the basis is the longer text: it wraps less
+        self.status = WholeLabel()
         self.status.setProperty("role", "muted")
-        wrapping(self.status)
         top.addWidget(self.status, 1)
         outer.addLayout(top)
 
@@ -307,17 +305,14 @@ class StudyView(StudyChartDrawing, View):
         self._fit_table(8)
         lay.addWidget(self.table, 1)
 
-        self.recommendation = QLabel("Computing the study…")
-        self.recommendation.setWordWrap(True)
+        self.recommendation = WholeLabel("Computing the study…")
         self.recommendation.setTextFormat(Qt.TextFormat.RichText)
         lay.addWidget(self.recommendation)
-        self.bound = QLabel()
-        self.bound.setWordWrap(True)
+        self.bound = WholeLabel()
         self.bound.setProperty("role", "muted")
         self.bound.hide()
         lay.addWidget(self.bound)
-        self.warnings = QLabel()
-        self.warnings.setWordWrap(True)
+        self.warnings = WholeLabel()
         self.warnings.setStyleSheet(f"color: {theme.WARNING};")
         self.warnings.hide()
         lay.addWidget(self.warnings)

@@ -154,3 +154,38 @@ def test_choosing_a_weather_file_does_not_grow_the_window(window, qtbot, idle, t
     qtbot.wait(50)
     assert window.width() == 1280 and window.minimumSizeHint().width() <= SMALLEST[0]
     assert view.width() <= window.stack.currentWidget().viewport().width()
+
+
+CHART_SIZES = (SMALLEST, (1280, 720), (1366, 768))
+
+
+def test_every_chart_keeps_a_usable_height_and_the_view_scrolls_instead(window, qtbot, idle):
+    """At 1024×600, 1280×720 and 1366×768 every chart of every view is at least
+    ``plots.CHART_MIN_HEIGHT_PX`` tall (its labels, ticks and data stay readable); a view
+    that needs more height than the window gives scrolls."""
+    import pyqtgraph as pg
+
+    from tiltyard.app import plots
+    heights = {}
+    for title in list(window.views):
+        view = window.show_view(title)
+        idle(window.runner, 120.0)
+        holder = window.stack.currentWidget()
+        for size in CHART_SIZES:
+            window.resize(*size)
+            qtbot.wait(30)
+            idle(window.runner, 120.0)
+            charts = [c for c in view.findChildren(pg.GraphicsView) if c.isVisible()]
+            for chart in charts:
+                heights[(title, size, chart.objectName() or type(chart).__name__,
+                         len(heights))] = chart.height()
+            if any(c.height() < plots.CHART_MIN_HEIGHT_PX for c in charts):
+                continue            # reported below, with every other short chart
+            # everything the view holds is reachable: it fits or the holder scrolls
+            bar = holder.verticalScrollBar()
+            assert view.height() <= holder.viewport().height() or bar.maximum() > 0, (
+                title, size, view.height(), holder.viewport().height())
+    short = {k: h for k, h in heights.items() if h < plots.CHART_MIN_HEIGHT_PX}
+    assert not short, short
+    charted = {k[0] for k in heights}
+    assert {"Horizon", "Sun path", "Irradiance", "Tilt study"} <= charted, charted
