@@ -109,7 +109,10 @@ class StudyView(StudyChartDrawing, View):
                       "switch_b": None}
         self._year = REFERENCE_YEAR
         self._map_overlay = []
+        self._map_label_items = []       # the map's labels and leaders, placed per size
+        self._map_watched = self._curve_watched = False
         self._curve_overlay = []
+        self._curve_best = self._curve_line = None
         self._timeline_items = []
         self._timeline_labels = None
         self._month_lines = []
