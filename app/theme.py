@@ -56,6 +56,19 @@ def contrast_on_white(hex_color: str) -> float:
     return 1.05 / (_relative_luminance(hex_color) + 0.05)
 
 
+def contrast(a: str, b: str) -> float:
+    """WCAG 2.1 contrast ratio of two colours ("#rrggbb"; W3C, WCAG 2.1, 2018, sec. 1.4.3)."""
+    la, lb = sorted((_relative_luminance(a), _relative_luminance(b)), reverse=True)
+    return (la + 0.05) / (lb + 0.05)
+
+
+def text_on(fill: str) -> str:
+    """White or black, whichever reads better on ``fill``: at least 4.58:1 on any fill
+    (WCAG 2.1 asks 4.5:1 of small text; between white and the body text colour, a
+    mid-grey fill would give only 4:1)."""
+    return "#ffffff" if contrast("#ffffff", fill) > contrast("#000000", fill) else "#000000"
+
+
 #: Lines need 3:1 against the white plot (WCAG 2.1 non-text contrast).
 LINE_CONTRAST = 3.0
 

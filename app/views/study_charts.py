@@ -38,6 +38,14 @@ OBJECTIVE_AXIS = {"annual": "Annual irradiation (kWh/m²)",
 #: Light-to-dark ramp for tilt blocks on the schedule timeline (0° light, 90° dark).
 _TILT_RAMP = pg.ColorMap(pos=[0.0, 1.0], color=[QColor("#e3edf3"), QColor("#163c50")])
 
+
+
+def tilt_fill(tilt_deg: float) -> QColor:
+    """The schedule timeline's fill for a block at ``tilt_deg`` (light flat, dark steep:
+    a lightness ramp, so it reads the same with any colour vision and in grey)."""
+    return _TILT_RAMP.map(float(tilt_deg) / 90.0, mode="qcolor")
+
+
 _OPTIMUM_WORDS = {"annual": "fixed optimum", "worst-month": "worst-month optimum",
                   "months": "chosen-months optimum"}
 
@@ -416,8 +424,7 @@ class StudyChartDrawing:
                     if p.tilt_deg is None:
                         brushes.append(QBrush(QColor(theme.GRID), Qt.BrushStyle.BDiagPattern))
                     else:
-                        brushes.append(pg.mkBrush(_TILT_RAMP.map(p.tilt_deg / 90.0,
-                                                                 mode="qcolor")))
+                        brushes.append(pg.mkBrush(tilt_fill(p.tilt_deg)))
                     texts.append((s, e, p.tilt_deg))
             pen = (pg.mkPen(theme.SERIES[1], width=2.5) if opt is rec
                    else pg.mkPen(theme.SURFACE, width=1))
@@ -434,7 +441,7 @@ class StudyChartDrawing:
                     continue
                 else:
                     txt = f"{t:.0f}°"
-                    colour = "#ffffff" if t > 40 else theme.TEXT
+                    colour = theme.text_on(tilt_fill(t).name())
                 labels.append(Label((s + e) / 2.0, row, txt, color=colour,
                                     font_pt=7.5 if e - s < 40 else 8.5))
         if self._timeline_labels is None:
@@ -466,4 +473,5 @@ class StudyChartDrawing:
 
 
 
-__all__ = ["CHARTS", "COLOUR_BAR", "OBJECTIVE_AXIS", "StudyChartDrawing", "StudyCharts"]
+__all__ = ["CHARTS", "COLOUR_BAR", "OBJECTIVE_AXIS", "StudyChartDrawing", "StudyCharts",
+           "tilt_fill"]
