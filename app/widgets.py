@@ -283,6 +283,8 @@ class WholeLabel(QLabel):
     def __init__(self, text: str = "", parent=None):
         super().__init__(text, parent)
         self.setWordWrap(True)
+        # given more height than its text needs, the text stays at the top
+        self.setAlignment(Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignTop)
 
     def setText(self, text: str) -> None:  # noqa: N802 - Qt override
         super().setText(text)

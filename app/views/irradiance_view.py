@@ -343,7 +343,7 @@ class IrradianceView(View):
         self.bars_widget.setMinimumHeight(plots.CHART_MIN_HEIGHT_PX)
         self.bars_plot = plots.plot_item()
         self.bars_widget.addItem(self.bars_plot, row=0, col=0)
-        theme.style_plot(self.bars_plot, "Mean daily irradiation (kWh/m²/day)", "Month")
+        theme.style_plot(self.bars_plot, "Irradiation (kWh/m²/day)", "Month")
         self.bars_plot.getAxis("left").setWidth(62)    # room for "4.5" beside the label
         self.bars_plot.setMouseEnabled(x=False, y=False)
         self.bars_plot.hideButtons()

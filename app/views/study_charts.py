@@ -76,8 +76,7 @@ class StudyCharts(QWidget):
         lay.setContentsMargins(0, 0, 0, 0)
         lay.setSpacing(6)
 
-        self.curve_plot, cp = self._chart("Annual irradiation vs tilt",
-                                          "Annual irradiation (kWh/m²)", "Tilt (°)")
+        self.curve_plot, cp = self._chart("Annual irradiation vs tilt", "kWh/m²", "Tilt (°)")
         self.curve = cp.plot([], [], pen=theme.series_pen(0, dashed=False))
         self.curve_opt = pg.ScatterPlotItem(size=11, symbol="o", brush=pg.mkBrush(theme.ACCENT),
                                             pen=pg.mkPen("w", width=1.5))
@@ -135,7 +134,9 @@ class StudyChartDrawing:
         tilt = study.tilt_curve.index.to_numpy(dtype=float)
         kwh = study.tilt_curve["objective_kwh_m2"].to_numpy(dtype=float)
         objective = study.options_used.objective
-        cp.setLabel("left", OBJECTIVE_AXIS[objective])
+        # the title names the quantity, the axis its unit: a chart 200 px tall has no
+        # room for the whole name along its axis
+        cp.setLabel("left", "kWh/m²")
         cp.setTitle(OBJECTIVE_AXIS[objective].split(" (")[0] + " vs tilt", size="9.5pt")
         self.curve.setData(tilt, kwh)
         i = int(np.argmax(kwh))

@@ -141,8 +141,9 @@ class StudyView(StudyChartDrawing, View):
         upper.setSpacing(10)
         upper.addWidget(self._build_editor())
         upper.addWidget(self._build_table(), 1)
-        outer.addLayout(upper)
-        outer.addWidget(self._build_charts(), 1)
+        # a tall window shares its height: the editor shows whole, the charts grow
+        outer.addLayout(upper, 2)
+        outer.addWidget(self._build_charts(), 3)
 
         self._loading = False
         ctx.document.replaced.connect(self._load_settings)

@@ -159,14 +159,33 @@ def test_choosing_a_weather_file_does_not_grow_the_window(window, qtbot, idle, t
 CHART_SIZES = (SMALLEST, (1280, 720), (1366, 768))
 
 
+def _clipped_axis_labels(chart, title, size) -> list:
+    """Axis titles longer than their axis (drawn cut at the plot's edge)."""
+    import pyqtgraph as pg
+    out = []
+    for item in chart.scene().items():
+        if not isinstance(item, pg.AxisItem) or not item.isVisible() or not item.label.isVisible():
+            continue
+        text = item.label.toPlainText()
+        if not text:
+            continue
+        room = item.height() if item.orientation in ("left", "right") else item.width()
+        need = item.label.boundingRect().width()
+        if need > room + 1:
+            out.append((title, size, text, round(need), round(room)))
+    return out
+
+
 def test_every_chart_keeps_a_usable_height_and_the_view_scrolls_instead(window, qtbot, idle):
     """At 1024×600, 1280×720 and 1366×768 every chart of every view is at least
-    ``plots.CHART_MIN_HEIGHT_PX`` tall (its labels, ticks and data stay readable); a view
-    that needs more height than the window gives scrolls."""
+    ``plots.CHART_MIN_HEIGHT_PX`` tall (its labels, ticks and data stay readable) and
+    no axis title is longer than its axis; a view that needs more height than the
+    window gives scrolls."""
     import pyqtgraph as pg
 
     from tiltyard.app import plots
     heights = {}
+    clipped = []
     for title in list(window.views):
         view = window.show_view(title)
         idle(window.runner, 120.0)
@@ -179,6 +198,7 @@ def test_every_chart_keeps_a_usable_height_and_the_view_scrolls_instead(window, 
             for chart in charts:
                 heights[(title, size, chart.objectName() or type(chart).__name__,
                          len(heights))] = chart.height()
+                clipped += _clipped_axis_labels(chart, title, size)
             if any(c.height() < plots.CHART_MIN_HEIGHT_PX for c in charts):
                 continue            # reported below, with every other short chart
             # everything the view holds is reachable: it fits or the holder scrolls
@@ -187,6 +207,7 @@ def test_every_chart_keeps_a_usable_height_and_the_view_scrolls_instead(window, 
                 title, size, view.height(), holder.viewport().height())
     short = {k: h for k, h in heights.items() if h < plots.CHART_MIN_HEIGHT_PX}
     assert not short, short
+    assert not clipped, clipped
     charted = {k[0] for k in heights}
     assert {"Horizon", "Sun path", "Irradiance", "Tilt study"} <= charted, charted
 

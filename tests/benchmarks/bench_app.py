@@ -151,29 +151,33 @@ def stall_run():
     for title in list(w.views):
         w.show_view(title)
         settle()
-        steps.append(f"opened {title}")
+        steps.append((f"opened {title}", len(ticks)))
     w.show_view("Sun path" if "Sun path" in w.views else "Site")
     for lat in (53.0, 52.5, 52.0, 51.5, 51.0):       # a burst of edits, as when typing
         w.document.propose(latitude_deg=lat)
         pump(0.05)
     settle()
-    steps.append("latitude edited 5 times in 250 ms")
+    steps.append(("latitude edited 5 times in 250 ms", len(ticks)))
     for demo in ("kelpie-creek-shed", "coral-lane-clinic", "tarnvik-cabin"):
         w.open_demo(demo)
         for title in list(w.views):
             w.show_view(title)
             pump(0.05)
         settle()
-        steps.append(f"opened demo {demo}, every view")
+        steps.append((f"opened demo {demo}, every view", len(ticks)))
     study = w.views.get("Tilt study")
     if study is not None and hasattr(study, "objective"):
         w.show_view("Tilt study")
         study.objective.setCurrentIndex(1)
         settle()
-        steps.append("study objective changed")
+        steps.append(("study objective changed", len(ticks)))
     beat.stop()
     gaps = [b - a for a, b in zip(ticks, ticks[1:], strict=False)]
     startup_gaps, gaps = gaps[:n_startup - 1], gaps[n_startup - 1:]
+    # each step with the longest stall in it
+    bounds = [n_startup - 1] + [end - 1 for _label, end in steps]
+    steps = [f"{label} (longest {max(gaps[a - n_startup + 1:b - n_startup + 1] or [0])} ms)"
+             for (label, _end), a, b in zip(steps, bounds, bounds[1:], strict=True)]
     w.runner.shutdown()
     w.close()
     engine_process.shutdown_pool()
