@@ -177,7 +177,7 @@ def stall_run():
     # each step with the longest stall in it
     bounds = [n_startup - 1] + [end - 1 for _label, end in steps]
     steps = [f"{label} (longest {max(gaps[a - n_startup + 1:b - n_startup + 1] or [0])} ms)"
-             for (label, _end), a, b in zip(steps, bounds, bounds[1:], strict=True)]
+             for (label, _end), a, b in zip(steps, bounds[:-1], bounds[1:], strict=True)]
     w.runner.shutdown()
     w.close()
     engine_process.shutdown_pool()
