@@ -142,8 +142,8 @@ class StudyView(StudyChartDrawing, View):
         upper.addWidget(self._build_editor())
         upper.addWidget(self._build_table(), 1)
         # a tall window shares its height: the editor shows whole, the charts grow
-        outer.addLayout(upper, 2)
-        outer.addWidget(self._build_charts(), 3)
+        outer.addLayout(upper, 1)
+        outer.addWidget(self._build_charts(), 1)
 
         self._loading = False
         ctx.document.replaced.connect(self._load_settings)
@@ -320,6 +320,7 @@ class StudyView(StudyChartDrawing, View):
         self.warnings.setStyleSheet(f"color: {theme.WARNING};")
         self.warnings.hide()
         lay.addWidget(self.warnings)
+        lay.addStretch(1)               # room to spare goes under the texts, not between
         return w
 
     def _build_charts(self) -> QWidget:
