@@ -13,6 +13,18 @@ from tiltyard.engine.demo_sites import DEFAULT_DEMO, demo_site_names
 #: Set to a delay in ms to open the window, report it ready and quit (smoke tests, benchmarks).
 SMOKE_ENV = "TILTYARD_SMOKE_QUIT_MS"
 
+#: The interpreter's thread switch interval while the app runs, s (Python's default is
+#: 0.005). A thread running Python (a sheet laid out, results arriving) makes the GUI
+#: thread wait up to this long for the interpreter lock each time a Qt call hands it
+#: back, many times in one repaint; a shorter interval shortens those waits.
+SWITCH_INTERVAL_S = 0.001
+
+
+def configure_interpreter() -> None:
+    """Settings of the interpreter for a responsive GUI thread (:data:`SWITCH_INTERVAL_S`)."""
+    sys.setswitchinterval(SWITCH_INTERVAL_S)
+
+
 #: Delay after the window is shown before start-up loads what the first view does not
 #: need (the window's first paint happens in the turns before it), ms.
 FIRST_PAINT_MS = 30
@@ -91,6 +103,7 @@ def run(site_arg: str | None = None, argv: list[str] | None = None) -> int:
     from PySide6.QtWidgets import QApplication
 
     from . import engine_process, settings, theme
+    configure_interpreter()
     app = QApplication.instance() or QApplication(argv or sys.argv[:1])
     app.setOrganizationName(settings.ORGANISATION)
     app.setApplicationName(settings.APPLICATION)

@@ -102,8 +102,9 @@ def stall_run():
     from PySide6.QtWidgets import QApplication
 
     from tiltyard.app import theme
-    from tiltyard.app.desktop import create_window
+    from tiltyard.app.desktop import configure_interpreter, create_window
 
+    configure_interpreter()          # as tiltyard.app.desktop.run does
     app = QApplication.instance() or QApplication([])
     theme.apply(app)
     clock = QElapsedTimer()
