@@ -16,8 +16,8 @@ import datetime as _dt
 from PySide6.QtCore import QObject, Signal
 
 from tiltyard.engine.assessment import Assessment
+from tiltyard.engine.choices import REFERENCE_YEAR
 from tiltyard.engine.site import Site
-from tiltyard.engine.timegrid import REFERENCE_YEAR
 
 from .document import SiteDocument
 from .settings import Preferences

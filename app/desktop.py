@@ -13,6 +13,22 @@ from tiltyard.engine.demo_sites import DEFAULT_DEMO, demo_site_names
 #: Set to a delay in ms to open the window, report it ready and quit (smoke tests, benchmarks).
 SMOKE_ENV = "TILTYARD_SMOKE_QUIT_MS"
 
+#: The interpreter's thread switch interval while the app runs, s (Python's default is
+#: 0.005). A thread running Python (a sheet laid out, results arriving) makes the GUI
+#: thread wait up to this long for the interpreter lock each time a Qt call hands it
+#: back, many times in one repaint; a shorter interval shortens those waits.
+SWITCH_INTERVAL_S = 0.001
+
+
+def configure_interpreter() -> None:
+    """Settings of the interpreter for a responsive GUI thread (:data:`SWITCH_INTERVAL_S`)."""
+    sys.setswitchinterval(SWITCH_INTERVAL_S)
+
+
+#: Delay after the window is shown before start-up loads what the first view does not
+#: need (the window's first paint happens in the turns before it), ms.
+FIRST_PAINT_MS = 30
+
 
 WARM_UP_MODULES = ("tiltyard.engine.tilt", "tiltyard.engine.sunchart",
                    "tiltyard.engine.daycurves", "tiltyard.engine.horizon_loss",
@@ -44,8 +60,6 @@ def prepare_ahead(window) -> threading.Thread:
     """
     from PySide6.QtCore import QTimer
 
-    from . import plots
-
     def load() -> None:
         gc.disable()            # loading modules makes no garbage worth a collection
         try:
@@ -64,6 +78,7 @@ def prepare_ahead(window) -> threading.Thread:
             return
         poll.stop()
         if not window.runner.closed:
+            from . import plots  # pyqtgraph: loaded by the thread above, after the show
             plots.prepare(then=lambda: window.build_views_ahead(then=gc.freeze))
     poll.timeout.connect(check)
     poll.start()
@@ -87,22 +102,27 @@ def run(site_arg: str | None = None, argv: list[str] | None = None) -> int:
     """Open the app and run its event loop; returns the exit status."""
     from PySide6.QtWidgets import QApplication
 
-    from . import engine_process, plots, settings, theme
+    from . import engine_process, settings, theme
+    configure_interpreter()
     app = QApplication.instance() or QApplication(argv or sys.argv[:1])
     app.setOrganizationName(settings.ORGANISATION)
     app.setApplicationName(settings.APPLICATION)
     theme.apply(app)
+    from PySide6.QtCore import QTimer
     window = create_window(site_arg)
     window.show()
     window.offer_recovery()
-    # start the engine's worker processes and load the engine (pvlib, scipy, pandas)
-    # here too, while the user reads the first view
-    engine_process.start_pool()
-    prepare_ahead(window)
+
+    def after_first_paint() -> None:
+        # start the engine's worker processes and load the engine (pvlib, scipy, pandas)
+        # and the charts here too, while the user reads the first view; not before the
+        # window has painted: a thread importing holds the interpreter lock
+        if not window.runner.closed:
+            engine_process.start_pool()
+            prepare_ahead(window)
+    QTimer.singleShot(FIRST_PAINT_MS, after_first_paint)
     if os.environ.get(SMOKE_ENV):
         # smoke tests and the start-up benchmark: say when the window is usable, then quit
-        from PySide6.QtCore import QTimer
-
         def ready():
             print(f"tiltyard: window ready: {window.windowTitle()}", flush=True)
             window.ask_unsaved = lambda: "discard"
@@ -114,4 +134,5 @@ def run(site_arg: str | None = None, argv: list[str] | None = None) -> int:
     finally:
         window.runner.shutdown()
         engine_process.shutdown_pool()
-        plots.discard()
+        if "tiltyard.app.plots" in sys.modules:
+            sys.modules["tiltyard.app.plots"].discard()

@@ -16,7 +16,14 @@ import pyqtgraph as pg
 from PySide6.QtCore import QTimer
 from PySide6.QtGui import QColor, QPen
 
+from . import theme
 from .tasks import TURN_MS
+
+theme.configure_charts()     # pyqtgraph's defaults, before any chart is made
+
+#: The least height of a chart on screen, px: below it tick labels, titles and data
+#: crowd one another. A view on a short screen scrolls rather than squash a chart.
+CHART_MIN_HEIGHT_PX = 200
 
 #: Plots the views hold in all: sun path 2, horizon 1, irradiance 2, tilt study 3.
 PLOTS_NEEDED = 8
@@ -115,5 +122,5 @@ def discard() -> None:
 
 register("plot", new_plot, PLOTS_NEEDED)
 
-__all__ = ["PLOTS_NEEDED", "OpaqueGridAxisItem", "discard", "new_plot", "plot_item",
+__all__ = ["CHART_MIN_HEIGHT_PX", "PLOTS_NEEDED", "OpaqueGridAxisItem", "discard", "new_plot", "plot_item",
            "plot_widget", "prepare", "ready_count", "register", "take"]

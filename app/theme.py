@@ -13,11 +13,17 @@
 from __future__ import annotations
 
 import functools
+from typing import TYPE_CHECKING
 
-import pyqtgraph as pg
 from PySide6.QtCore import Qt
 from PySide6.QtGui import QColor, QFont, QPalette
 from PySide6.QtWidgets import QApplication, QGraphicsItem
+
+if TYPE_CHECKING:
+    import pyqtgraph as pg
+
+# pyqtgraph (150-350 ms to import) is loaded only by the functions that draw charts,
+# so the window and its first view (the Site form) show before it is loaded
 
 ACCENT = "#2f6d8c"          # slate blue: selection, bold day path, recommended option
 ACCENT_SOFT = "#dfeaf1"
@@ -50,6 +56,19 @@ def contrast_on_white(hex_color: str) -> float:
     return 1.05 / (_relative_luminance(hex_color) + 0.05)
 
 
+def contrast(a: str, b: str) -> float:
+    """WCAG 2.1 contrast ratio of two colours ("#rrggbb"; W3C, WCAG 2.1, 2018, sec. 1.4.3)."""
+    la, lb = sorted((_relative_luminance(a), _relative_luminance(b)), reverse=True)
+    return (la + 0.05) / (lb + 0.05)
+
+
+def text_on(fill: str) -> str:
+    """White or black, whichever reads better on ``fill``: at least 4.58:1 on any fill
+    (WCAG 2.1 asks 4.5:1 of small text; between white and the body text colour, a
+    mid-grey fill would give only 4:1)."""
+    return "#ffffff" if contrast("#ffffff", fill) > contrast("#000000", fill) else "#000000"
+
+
 #: Lines need 3:1 against the white plot (WCAG 2.1 non-text contrast).
 LINE_CONTRAST = 3.0
 
@@ -73,6 +92,7 @@ DASHES = (Qt.PenStyle.SolidLine, Qt.PenStyle.DashLine, Qt.PenStyle.DotLine,
 
 def series_pen(i: int, width: float = 2.0, dashed: bool = True):
     """Pen for the i-th categorical series (colour and, for i >= 1, a dash pattern)."""
+    import pyqtgraph as pg
     pen = pg.mkPen(LINE_SERIES[i % len(LINE_SERIES)], width=width)
     if dashed:
         pen.setStyle(DASHES[i % len(DASHES)])
@@ -85,6 +105,7 @@ def series_color(i: int) -> QColor:
 
 @functools.cache
 def _viridis():
+    import pyqtgraph as pg
     return pg.colormap.get("viridis")
 
 
@@ -108,6 +129,7 @@ def month_color(month: int) -> QColor:
 @functools.cache
 def percent_colormap():
     """Sequential map for 'percent of the optimum' grids (read once from pyqtgraph's files)."""
+    import pyqtgraph as pg
     return pg.colormap.get("cividis")
 
 
@@ -135,7 +157,7 @@ QLineEdit[invalid="true"] {{ border: 1px solid {ERROR}; background: #fdf3f2; }}
 
 
 def apply(app: QApplication) -> None:
-    """Apply the theme to the application and to pyqtgraph's defaults."""
+    """Apply the theme to the application (pyqtgraph's defaults: :func:`configure_charts`)."""
     app.setStyle("Fusion")
     pal = app.palette()
     pal.setColor(QPalette.ColorRole.Window, QColor(SURFACE))
@@ -153,6 +175,11 @@ def apply(app: QApplication) -> None:
         font.setPointSizeF(9.5)
     app.setFont(font)
     app.setStyleSheet(STYLE_SHEET)
+
+
+def configure_charts() -> None:
+    """pyqtgraph's defaults for our charts (:mod:`tiltyard.app.plots` calls it on import)."""
+    import pyqtgraph as pg
     pg.setConfigOptions(background="w", foreground=TEXT, antialias=True)
 
 
@@ -164,6 +191,7 @@ def plot_font(size_pt: float = 9.0) -> QFont:
 
 def style_plot(plot: pg.PlotItem, left: str, bottom: str) -> None:
     """Axis labels with units and a light grid, the same on every chart."""
+    import pyqtgraph as pg
     plot.showGrid(x=True, y=True, alpha=0.25)
     plot.setLabel("left", left)
     plot.setLabel("bottom", bottom)

@@ -284,6 +284,36 @@ def _reason(exc: Exception) -> str:
     return str(exc)
 
 
+class WholeLabel(QLabel):
+    """A word-wrapped label that always has the height its text needs at its width.
+
+    A layout short of height gives a wrapped label no more than its minimum size hint
+    (about two lines) and cuts the rest; this label raises its minimum height to what
+    its text needs, so a short window scrolls the view instead.
+    """
+
+    def __init__(self, text: str = "", parent=None):
+        super().__init__(text, parent)
+        self.setWordWrap(True)
+        # given more height than its text needs, the text stays at the top
+        self.setAlignment(Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignTop)
+
+    def setText(self, text: str) -> None:  # noqa: N802 - Qt override
+        super().setText(text)
+        self._fit()
+
+    def resizeEvent(self, event) -> None:  # noqa: N802 - Qt override
+        super().resizeEvent(event)
+        self._fit()
+
+    def _fit(self) -> None:
+        if self.width() <= 0:
+            return
+        need = self.heightForWidth(self.width()) if self.text() else 0
+        if need >= 0 and need != self.minimumHeight():
+            self.setMinimumHeight(need)
+
+
 def wrapping(label: QLabel, lines: int = 0) -> QLabel:
     """Let a label wrap instead of setting its row's minimum width (a laptop screen),
     keeping room for ``lines`` lines when given, so a readout whose text changes as the

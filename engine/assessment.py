@@ -22,16 +22,27 @@ import os
 from dataclasses import asdict, dataclass, field, fields, is_dataclass, replace
 from importlib import resources
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from .atomic_files import write_bytes_atomically
+from .choices import (
+    CLEARSKY_MODELS,
+    REFERENCE_YEAR,
+    SOLAR_CONSTANT_W_M2,
+    TRANSPOSITION_MODELS,
+    RowSettings,
+    StudySettings,
+    check_positions,
+    check_sky_choices,
+    check_step_min,
+)
 from .demo_sites import is_site_path, load_demo
-from .plane import TRANSPOSITION_MODELS
 from .site import MOUNTINGS, Site, SiteError
 from .site_file import FORMAT_NAME, FORMAT_VERSION, load_site_document, site_from_dict, site_to_dict
-from .sky import CLEARSKY_MODELS, SOLAR_CONSTANT_W_M2
-from .skyyear import IrradianceOptions
-from .tilt import RowSettings, StudyOptions, StudySettings
-from .timegrid import REFERENCE_YEAR, check_step_min
+
+if TYPE_CHECKING:
+    from .skyyear import IrradianceOptions
+    from .tilt import StudyOptions
 
 #: Sky bases an assessment may ask for. ``auto``: the weather file if one is named,
 #: else the site's twelve monthly values if all are there, else the clear sky.
@@ -162,10 +173,11 @@ class Assessment:
                              f"{', '.join(CLEARSKY_MODELS)}")
         if self.interval_min is not None:
             check_step_min(self.interval_min)
-        # the study's and the sky's own checks, in one place each
-        IrradianceOptions(model=self.model, clearsky_model=self.clearsky_model,
-                          solar_constant_w_m2=self.solar_constant_w_m2, year=self.year)
-        self.study_options(IrradianceOptions(year=self.year))
+        # the sky's and the study's own checks, in one place each (engine.choices, which
+        # needs no numerical library, so a site opens before they are loaded)
+        check_sky_choices(self.model, "clear", self.clearsky_model, self.solar_constant_w_m2,
+                          self.year, 60)
+        check_positions(self.mounting_kind, int(self.mounting.max_positions), MOUNTINGS)
 
     @property
     def mounting_kind(self) -> str:
@@ -173,6 +185,7 @@ class Assessment:
 
     def study_options(self, irradiance: IrradianceOptions) -> StudyOptions:
         """The tilt study's options for this assessment on the sky ``irradiance``."""
+        from .tilt import StudyOptions
         return StudyOptions(irradiance=irradiance, mounting=self.mounting_kind,
                             max_positions=int(self.mounting.max_positions),
                             **asdict(self.study), **asdict(self.rows))

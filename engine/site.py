@@ -21,7 +21,6 @@ from typing import Any
 from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 
 from . import site_limits as _limits
-from .monthly import first_dark_daylight_month
 
 #: Who a sheet is prepared for: the site's optional ``prepared_for`` object (format 2; a
 #: reader that does not know it ignores it, and it decides no figure).
@@ -103,6 +102,15 @@ def _range_text(lo, hi, unit):
     if lo is not None:
         return f"at least {lo:g}{u}"
     return f"at most {hi:g}{u}"
+
+
+def _first_dark_daylight_month(latitude_deg: float, ghi_kwh_m2_day) -> int | None:
+    """:func:`tiltyard.engine.monthly.first_dark_daylight_month`, loaded (with numpy)
+    only when a month has no irradiation at all: a site opens before numpy loads."""
+    if all(v > 0.0 for v in ghi_kwh_m2_day):
+        return None
+    from .monthly import first_dark_daylight_month
+    return first_dark_daylight_month(latitude_deg, ghi_kwh_m2_day)
 
 
 def _text(field_name: str, value: Any, limit: int) -> str:
@@ -290,7 +298,7 @@ class Site:
             object.__setattr__(self, "monthly_ghi_kwh_m2_day",
                                _twelve("monthly_ghi_kwh_m2_day", self.monthly_ghi_kwh_m2_day,
                                        0, 12, "kWh/m2/day"))
-            i = first_dark_daylight_month(self.latitude_deg, self.monthly_ghi_kwh_m2_day)
+            i = _first_dark_daylight_month(self.latitude_deg, self.monthly_ghi_kwh_m2_day)
             if i is not None:     # decided once, here, for every sky basis and command
                 raise SiteError(f"monthly_ghi_kwh_m2_day[{i}]", self.monthly_ghi_kwh_m2_day[i],
                                 "must be more than 0 in a month with daylight (every month "

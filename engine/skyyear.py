@@ -15,19 +15,15 @@ import numpy as np
 import pandas as pd
 
 from .allsky import monthly_sky
+from .choices import REFERENCE_YEAR, SOLAR_CONSTANT_W_M2, check_sky_choices
+from .choices import SKY_BASES as SKY_BASES
 from .horizon import sun_visible
-from .plane import TRANSPOSITION_MODELS
 from .site import Site
-from .sky import CLEARSKY_MODELS, SOLAR_CONSTANT_W_M2, clear_sky, extraterrestrial_normal
+from .sky import clear_sky, extraterrestrial_normal
 from .sun import evaluation_points
-from .timegrid import REFERENCE_YEAR, TimeGrid, check_step_min, year_grid
+from .timegrid import TimeGrid, year_grid
 from .weather import WeatherData
 from .weather_grid import check_weather_step, weather_sky
-
-#: Sky bases: the clear sky; a synthetic year from the site's monthly mean
-#: daily GHI (:func:`tiltyard.engine.allsky.monthly_sky`); a weather series
-#: (:func:`tiltyard.engine.weather_grid.weather_sky`).
-SKY_BASES = ("clear", "monthly", "file")
 
 
 @dataclass(frozen=True)
@@ -63,20 +59,8 @@ class IrradianceOptions:
     weather: WeatherData | None = field(default=None, repr=False)
 
     def __post_init__(self):
-        if self.model not in TRANSPOSITION_MODELS:
-            raise ValueError(f"model = {self.model!r}: must be one of "
-                             f"{', '.join(TRANSPOSITION_MODELS)}")
-        if self.sky not in SKY_BASES:
-            raise ValueError(f"sky = {self.sky!r}: must be one of {', '.join(SKY_BASES)}")
-        if self.clearsky_model not in CLEARSKY_MODELS:
-            raise ValueError(f"clearsky_model = {self.clearsky_model!r}: must be one of "
-                             f"{', '.join(CLEARSKY_MODELS)}")
-        if not 1000.0 <= float(self.solar_constant_w_m2) <= 1500.0:
-            raise ValueError(f"solar_constant_w_m2 = {self.solar_constant_w_m2!r}: must be "
-                             "between 1000 and 1500 W/m2")
-        check_step_min(self.step_min)
-        if not 1900 <= int(self.year) <= 2100:
-            raise ValueError(f"year = {self.year!r}: must be between 1900 and 2100")
+        check_sky_choices(self.model, self.sky, self.clearsky_model, self.solar_constant_w_m2,
+                          self.year, self.step_min)
         if self.sky == "file":
             if not isinstance(self.weather, WeatherData):
                 raise ValueError(f"weather = {self.weather!r}: sky = 'file' needs the weather "

@@ -21,24 +21,10 @@ from zoneinfo import ZoneInfo
 import numpy as np
 import pandas as pd
 
-#: The default year: a fixed, non-leap reference year, shown in every output.
-REFERENCE_YEAR = 2023
-
-#: Interval lengths offered for resampling a clear or monthly sky, minutes.
-STEPS_MIN = (60, 30, 15, 10, 5, 1)
-
-#: Every interval length the year's grid accepts, minutes: the whole minutes that
-#: divide an hour (a weather file's own interval is used as it is).
-GRID_STEPS_MIN = tuple(m for m in range(60, 0, -1) if 60 % m == 0)
-
-
-def check_step_min(step_min) -> int:
-    """Return ``step_min`` as an int, or raise ValueError unless it is in :data:`GRID_STEPS_MIN`."""
-    if isinstance(step_min, bool) or not isinstance(step_min, int | np.integer) \
-            or int(step_min) not in GRID_STEPS_MIN:
-        raise ValueError(f"interval = {step_min!r} min: must be a whole number of minutes that "
-                         f"divides an hour ({', '.join(map(str, GRID_STEPS_MIN))})")
-    return int(step_min)
+from .choices import GRID_STEPS_MIN as GRID_STEPS_MIN
+from .choices import REFERENCE_YEAR as REFERENCE_YEAR
+from .choices import STEPS_MIN as STEPS_MIN
+from .choices import check_step_min as check_step_min
 
 #: Words used in outputs to state the time convention.
 MIDPOINT_CONVENTION = (

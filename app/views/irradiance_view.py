@@ -308,7 +308,7 @@ class IrradianceView(View):
         wrapping(self.day_title, lines=2)
         left.addWidget(self.day_title)
         self.day_widget = pg.GraphicsLayoutWidget()
-        self.day_widget.setMinimumHeight(200)     # a short screen scrolls rather than squash it
+        self.day_widget.setMinimumHeight(plots.CHART_MIN_HEIGHT_PX)
         self.day_plot = plots.plot_item()
         self.day_widget.addItem(self.day_plot, row=0, col=0)
         theme.style_plot(self.day_plot, "Irradiance (W/m²)", "Local clock time (h)")
@@ -340,10 +340,10 @@ class IrradianceView(View):
         wrapping(self.bars_title, lines=2)
         right.addWidget(self.bars_title)
         self.bars_widget = pg.GraphicsLayoutWidget()
-        self.bars_widget.setMinimumHeight(200)     # a short screen scrolls rather than squash it
+        self.bars_widget.setMinimumHeight(plots.CHART_MIN_HEIGHT_PX)
         self.bars_plot = plots.plot_item()
         self.bars_widget.addItem(self.bars_plot, row=0, col=0)
-        theme.style_plot(self.bars_plot, "Mean daily irradiation (kWh/m²/day)", "Month")
+        theme.style_plot(self.bars_plot, "Irradiation (kWh/m²/day)", "Month")
         self.bars_plot.getAxis("left").setWidth(62)    # room for "4.5" beside the label
         self.bars_plot.setMouseEnabled(x=False, y=False)
         self.bars_plot.hideButtons()

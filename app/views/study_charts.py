@@ -38,6 +38,14 @@ OBJECTIVE_AXIS = {"annual": "Annual irradiation (kWh/m²)",
 #: Light-to-dark ramp for tilt blocks on the schedule timeline (0° light, 90° dark).
 _TILT_RAMP = pg.ColorMap(pos=[0.0, 1.0], color=[QColor("#e3edf3"), QColor("#163c50")])
 
+
+
+def tilt_fill(tilt_deg: float) -> QColor:
+    """The schedule timeline's fill for a block at ``tilt_deg`` (light flat, dark steep:
+    a lightness ramp, so it reads the same with any colour vision and in grey)."""
+    return _TILT_RAMP.map(float(tilt_deg) / 90.0, mode="qcolor")
+
+
 _OPTIMUM_WORDS = {"annual": "fixed optimum", "worst-month": "worst-month optimum",
                   "months": "chosen-months optimum"}
 
@@ -68,8 +76,7 @@ class StudyCharts(QWidget):
         lay.setContentsMargins(0, 0, 0, 0)
         lay.setSpacing(6)
 
-        self.curve_plot, cp = self._chart("Annual irradiation vs tilt",
-                                          "Annual irradiation (kWh/m²)", "Tilt (°)")
+        self.curve_plot, cp = self._chart("Annual irradiation vs tilt", "kWh/m²", "Tilt (°)")
         self.curve = cp.plot([], [], pen=theme.series_pen(0, dashed=False))
         self.curve_opt = pg.ScatterPlotItem(size=11, symbol="o", brush=pg.mkBrush(theme.ACCENT),
                                             pen=pg.mkPen("w", width=1.5))
@@ -99,6 +106,7 @@ class StudyCharts(QWidget):
     def _chart(title: str, left: str, bottom: str, grid: bool = True):
         """A plot widget styled as every chart here: no menu, no buttons, no mouse."""
         widget = plots.plot_widget()
+        widget.setMinimumHeight(plots.CHART_MIN_HEIGHT_PX)   # a short screen scrolls instead
         plot = widget.getPlotItem()
         theme.style_plot(plot, left, bottom)
         plot.setTitle(title, size="9.5pt")
@@ -126,7 +134,9 @@ class StudyChartDrawing:
         tilt = study.tilt_curve.index.to_numpy(dtype=float)
         kwh = study.tilt_curve["objective_kwh_m2"].to_numpy(dtype=float)
         objective = study.options_used.objective
-        cp.setLabel("left", OBJECTIVE_AXIS[objective])
+        # the title names the quantity, the axis its unit: a chart 200 px tall has no
+        # room for the whole name along its axis
+        cp.setLabel("left", "kWh/m²")
         cp.setTitle(OBJECTIVE_AXIS[objective].split(" (")[0] + " vs tilt", size="9.5pt")
         self.curve.setData(tilt, kwh)
         i = int(np.argmax(kwh))
@@ -134,7 +144,7 @@ class StudyChartDrawing:
         az = study.curve_azimuth_deg
         cp.setLabel("bottom", f"Tilt (°), facing {bearing(az)}")
         lo, hi = float(np.nanmin(kwh)), float(kwh[i])
-        cp.setYRange(lo - 0.05 * (hi - lo), hi + 0.16 * (hi - lo), padding=0)
+        self._curve_span = (lo, hi)
         ax = 0.0 if tilt[i] < 20 else (1.0 if tilt[i] > 70 else 0.5)
         label = pg.TextItem(f"best {tilt[i]:.0f}°: {kwh[i]:.0f} kWh/m²", color=theme.ACCENT,
                             anchor=(ax, 1.1))
@@ -142,6 +152,7 @@ class StudyChartDrawing:
         label.setPos(tilt[i], kwh[i])
         cp.addItem(label)
         self._curve_overlay.append(label)
+        self._curve_best = label
         o = study.options_used
         if o.tilt_min_deg > 0 or o.tilt_max_deg < 90:
             region = pg.LinearRegionItem((o.tilt_min_deg, o.tilt_max_deg), movable=False,
@@ -151,6 +162,7 @@ class StudyChartDrawing:
             cp.addItem(region)
             self._curve_overlay.append(region)
         fixed = study.option("fixed-optimal").schedule[0]
+        self._curve_line = None
         # mark the objective's fixed optimum when it is not just the curve's best rounded
         # to the tilt step (worst-month objective, narrowed tilt range)
         if abs(fixed.tilt_deg - tilt[i]) > o.tilt_step_deg / 2.0 + 0.5:
@@ -158,19 +170,68 @@ class StudyChartDrawing:
                                    pen=pg.mkPen(theme.SERIES[1], width=1.5,
                                                 style=Qt.PenStyle.DashLine),
                                    label=f"{_OPTIMUM_WORDS[o.objective]} {fixed.tilt_deg:g}°",
-                                   labelOpts={"position": 0.12, "color": theme.SERIES[1],
-                                              "anchors": [(0, 0), (0, 0)]
-                                              if fixed.tilt_deg < 60 else [(1, 0), (1, 0)]})
+                                   labelOpts={"position": 0.1, "color": theme.SERIES[1]})
             cp.addItem(line)
             self._curve_overlay.append(line)
+            self._curve_line = line
+            self._curve_line_texts = (f"{_OPTIMUM_WORDS[o.objective]} {fixed.tilt_deg:g}°",
+                                      f"optimum {fixed.tilt_deg:g}°", f"{fixed.tilt_deg:g}°")
+        if not self._curve_watched:
+            cp.getViewBox().sigResized.connect(self._fit_curve_labels)
+            self._curve_watched = True
+        self._fit_curve_labels()
+
+    def _fit_curve_labels(self, *_args) -> None:
+        """Room above the curve's best point for its label, and the fixed optimum's
+        label on the side of its line where it fits (again after every resize: the
+        labels keep their size in pixels while the data scale changes)."""
+        cp = self.curve_plot.getPlotItem()
+        vb = cp.getViewBox()
+        span = getattr(self, "_curve_span", None)
+        if span is None or vb.height() <= 0:
+            return
+        lo, hi = span
+        bottom = lo - 0.05 * (hi - lo)
+        if self._curve_best is not None:
+            need_px = self._curve_best.boundingRect().height() * 1.1 + 6.0
+            f = min(0.6, need_px / vb.height())
+            top = max((hi - f * bottom) / (1.0 - f), hi + 0.05 * (hi - lo))
+            if top <= bottom:
+                top = bottom + 1.0
+            cp.setYRange(bottom, top, padding=0)
+        (xmin, xmax), _ = vb.viewRange()
+        sx = abs(vb.viewPixelSize()[0]) or 1.0
+        width_px = vb.width()
+        best = self._curve_best
+        if best is not None:
+            # centred over its point unless that runs it off either side
+            w = best.boundingRect().width() or 1.0
+            x_px = (best.pos().x() - xmin) / sx
+            ax = min(max(0.5, 1.0 - (width_px - x_px) / w), x_px / w, 1.0)
+            best.setAnchor((max(0.0, ax), 1.1))
+        line = self._curve_line
+        if line is not None and line.label is not None:
+            # on the side of the line with room; shorter words when neither side has it
+            right_px = (xmax - line.value()) / sx
+            left_px = (line.value() - xmin) / sx
+            label = line.label
+            for text in self._curve_line_texts:
+                label.setText(text)
+                need = label.boundingRect().width() + 2
+                if need <= max(right_px, left_px):
+                    break
+            anchor = (0, 1) if right_px >= need or right_px >= left_px else (1, 1)
+            label.anchors = [anchor, anchor]
+            label.updatePosition()
 
     def _draw_map(self, study):
         """The tilt x azimuth map, its contours and markers (a generator: it pauses
         between contour levels so the event loop gets its turns)."""
         mp = self.map_plot.getPlotItem()
-        for item in self._map_overlay:
+        for item in self._map_overlay + self._map_label_items:
             mp.removeItem(item)
-        self._map_overlay = []
+        self._map_overlay, self._map_label_items = [], []
+        self._map_label_args = None
         site = study.site
         eq = site.equator_azimuth_deg
         grid = study.grid_pct
@@ -195,7 +256,7 @@ class StudyChartDrawing:
         yield
 
         # contour levels, in the grid's own pixels (centres at index + 0.5)
-        contour_labels = []
+        contour_lines = []
         for level, width in ((80.0, 1.0), (90.0, 1.0), (95.0, 1.3), (98.0, 1.6)):
             if level <= lo:
                 continue
@@ -212,14 +273,7 @@ class StudyChartDrawing:
                                   pen=pg.mkPen(255, 255, 255, 170, width=width))
             mp.addItem(iso)
             self._map_overlay.append(iso)
-            # label each level once, at its highest point
-            k = int(np.nanargmax(np.asarray(ys)))
-            tx = pg.TextItem(f"{level:.0f} %", color=(255, 255, 255), anchor=(0.5, 1.0))
-            tx.setFont(theme.plot_font(7.5))
-            tx.setPos(xs[k], ys[k])
-            contour_labels.append((f"{level:.0f} %", xs[k], ys[k]))
-            mp.addItem(tx)
-            self._map_overlay.append(tx)
+            contour_lines.append((f"{level:.0f} %", np.asarray(xs), np.asarray(ys)))
             yield
 
         g_tilt, g_az, _ = study.grid_optimum
@@ -244,23 +298,67 @@ class StudyChartDrawing:
             pct_text = f"{pct:.1f}" if 99.5 <= pct < 100.0 else f"{pct:.0f}"
             labels.append((f"{pl.label} ({pct_text} %)", px, pl.tilt_deg))
             self.map_markers.append((pl.label, px, pl.tilt_deg))
-        self._place_labels(mp, labels, [(mx, my) for _n, mx, my in self.map_markers],
-                           contour_labels)
+        self._map_label_args = (labels, contour_lines)
+        if not self._map_watched:
+            mp.getViewBox().sigResized.connect(self._replace_map_labels)
+            self._map_watched = True
+        self._replace_map_labels()
 
-    def _place_labels(self, plot, labels, markers, fixed=()) -> None:
-        """Put each (text, x, y) label beside its marker, clear of the others, of the
-        ``fixed`` (text, x, y) contour labels (centred above their point) and inside."""
+    def _replace_map_labels(self, *_args) -> None:
+        """(Re)place the map's contour and marker labels for the plot's present size
+        (they keep their size in pixels while the data scale changes)."""
+        args = getattr(self, "_map_label_args", None)
+        if args is None:
+            return
+        mp = self.map_plot.getPlotItem()
+        for item in self._map_label_items:
+            mp.removeItem(item)
+        self._map_label_items = []
+        labels, contour_lines = args
+        # the markers' own labels first; each contour level then finds a free place
+        # along its line (or goes unlabelled)
+        taken = self._place_labels(mp, labels, [(mx, my) for _n, mx, my in self.map_markers])
+        self._place_contour_labels(mp, contour_lines, taken)
+
+    def _place_contour_labels(self, plot, contour_lines, taken) -> None:
+        """Label each contour level once, centred above the highest of its points where
+        the label fits inside the plot, clear of the ``taken`` boxes (markers and their
+        labels) and of the levels before it; a level with no such point goes unlabelled.
+        The boxes placed are kept in ``contour_label_boxes`` (data coordinates)."""
         vb = plot.getViewBox()
-        sx, sy = (abs(v) for v in vb.viewPixelSize())
+        sx, sy = (abs(v) or 1.0 for v in vb.viewPixelSize())
+        (xmin, xmax), (ymin, ymax) = vb.viewRange()
+        taken = list(taken)
+        self.contour_label_boxes = []
+        for text, xs, ys in contour_lines:
+            tx = pg.TextItem(text, color=(255, 255, 255), anchor=(0.5, 1.0))
+            tx.setFont(theme.plot_font(7.5))
+            r = tx.boundingRect()               # the drawn box, px
+            w, h = (r.width() + 2) * sx, (r.height() + 2) * sy
+            ok = np.isfinite(xs) & np.isfinite(ys)
+            ok &= (xs - w / 2 >= xmin) & (xs + w / 2 <= xmax) & (ys >= ymin) & (ys + h <= ymax)
+            for k in np.flatnonzero(ok)[np.argsort(-ys[ok], kind="stable")][:400]:
+                box = (xs[k] - w / 2, ys[k], xs[k] + w / 2, ys[k] + h)
+                if all(min(box[2], t[2]) <= max(box[0], t[0])
+                       or min(box[3], t[3]) <= max(box[1], t[1]) for t in taken):
+                    taken.append(box)
+                    self.contour_label_boxes.append(box)
+                    tx.setPos(float(xs[k]), float(ys[k]))
+                    plot.addItem(tx)
+                    self._map_label_items.append(tx)
+                    break
+
+    def _place_labels(self, plot, labels, markers) -> list:
+        """Put each (text, x, y) label beside its marker, clear of the markers and of
+        the labels before it, and inside the plot. Returns the boxes taken (markers
+        and labels, in data coordinates)."""
+        vb = plot.getViewBox()
+        sx, sy = (abs(v) or 1.0 for v in vb.viewPixelSize())
         (xmin, xmax), (ymin, ymax) = vb.viewRange()
         font = theme.plot_font(8)
         fm = QFontMetrics(font)
         taken = [(mx - 7 * sx, my - 7 * sy, mx + 7 * sx, my + 7 * sy) for mx, my in markers]
-        small = QFontMetrics(theme.plot_font(7.5))
-        for text, fx, fy in fixed:
-            fw, fh = (small.horizontalAdvance(text) + 8) * sx, (small.height() + 6) * sy
-            taken.append((fx - fw / 2, fy, fx + fw / 2, fy + fh))
-        self.contour_label_boxes = taken[len(markers):]
+        self.map_labels = []
 
         def clamp(b):
             dx = max(0.0, xmin - b[0]) - max(0.0, b[2] - xmax)
@@ -291,15 +389,16 @@ class StudyChartDrawing:
                                          pen=pg.mkPen(theme.TEXT, width=1))
                 leader.setZValue(25)
                 plot.addItem(leader)
-                self._map_overlay.append(leader)
+                self._map_label_items.append(leader)
             t = pg.TextItem(text, color=theme.TEXT, fill=pg.mkBrush(255, 255, 255, 215),
                             anchor=(0.0, 0.0))
             t.setFont(font)
             t.setZValue(30)
             t.setPos(box[0], box[3])
             plot.addItem(t)
-            self._map_overlay.append(t)
+            self._map_label_items.append(t)
             self.map_labels.append((text, box))
+        return taken
 
     def _draw_timeline(self, study) -> None:
         tp = self.timeline_plot.getPlotItem()
@@ -326,8 +425,7 @@ class StudyChartDrawing:
                     if p.tilt_deg is None:
                         brushes.append(QBrush(QColor(theme.GRID), Qt.BrushStyle.BDiagPattern))
                     else:
-                        brushes.append(pg.mkBrush(_TILT_RAMP.map(p.tilt_deg / 90.0,
-                                                                 mode="qcolor")))
+                        brushes.append(pg.mkBrush(tilt_fill(p.tilt_deg)))
                     texts.append((s, e, p.tilt_deg))
             pen = (pg.mkPen(theme.SERIES[1], width=2.5) if opt is rec
                    else pg.mkPen(theme.SURFACE, width=1))
@@ -344,7 +442,7 @@ class StudyChartDrawing:
                     continue
                 else:
                     txt = f"{t:.0f}°"
-                    colour = "#ffffff" if t > 40 else theme.TEXT
+                    colour = theme.text_on(tilt_fill(t).name())
                 labels.append(Label((s + e) / 2.0, row, txt, color=colour,
                                     font_pt=7.5 if e - s < 40 else 8.5))
         if self._timeline_labels is None:
@@ -376,4 +474,5 @@ class StudyChartDrawing:
 
 
 
-__all__ = ["CHARTS", "COLOUR_BAR", "OBJECTIVE_AXIS", "StudyChartDrawing", "StudyCharts"]
+__all__ = ["CHARTS", "COLOUR_BAR", "OBJECTIVE_AXIS", "StudyChartDrawing", "StudyCharts",
+           "tilt_fill"]

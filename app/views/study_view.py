@@ -50,7 +50,7 @@ from ..study_model import (
     StudySortProxy,
     StudyTableModel,
 )
-from ..widgets import CopyableTable, ValidatedField, View, wrapping
+from ..widgets import CopyableTable, ValidatedField, View, WholeLabel, wrapping
 from .study_charts import CHARTS, StudyChartDrawing
 
 OBJECTIVES = (("annual total", "annual"), ("worst month", "worst-month"),
@@ -109,7 +109,10 @@ class StudyView(StudyChartDrawing, View):
                       "switch_b": None}
         self._year = REFERENCE_YEAR
         self._map_overlay = []
+        self._map_label_items = []       # the map's labels and leaders, placed per size
+        self._map_watched = self._curve_watched = False
         self._curve_overlay = []
+        self._curve_best = self._curve_line = None
         self._timeline_items = []
         self._timeline_labels = None
         self._month_lines = []
@@ -124,15 +127,13 @@ class StudyView(StudyChartDrawing, View):
         self.heading.setProperty("role", "heading")
         top.addWidget(self.heading)
         top.addSpacing(12)
-        self.basis = QLabel()
+        self.basis = WholeLabel()
         self.basis.setProperty("role", "muted")
         self.basis.setToolTip("The sky basis and diffuse model are the ones chosen for "
                               "Irradiance; changing them there re-runs the study.")
-        self.basis.setWordWrap(True)
-        top.addWidget(self.basis, 1)
-        self.status = QLabel()
+        top.addWidget(self.basis, 2)      # the basis is the longer text: it wraps less
+        self.status = WholeLabel()
         self.status.setProperty("role", "muted")
-        wrapping(self.status)
         top.addWidget(self.status, 1)
         outer.addLayout(top)
 
@@ -140,7 +141,8 @@ class StudyView(StudyChartDrawing, View):
         upper.setSpacing(10)
         upper.addWidget(self._build_editor())
         upper.addWidget(self._build_table(), 1)
-        outer.addLayout(upper)
+        # a tall window shares its height: the editor shows whole, the charts grow
+        outer.addLayout(upper, 1)
         outer.addWidget(self._build_charts(), 1)
 
         self._loading = False
@@ -307,20 +309,18 @@ class StudyView(StudyChartDrawing, View):
         self._fit_table(8)
         lay.addWidget(self.table, 1)
 
-        self.recommendation = QLabel("Computing the study…")
-        self.recommendation.setWordWrap(True)
+        self.recommendation = WholeLabel("Computing the study…")
         self.recommendation.setTextFormat(Qt.TextFormat.RichText)
         lay.addWidget(self.recommendation)
-        self.bound = QLabel()
-        self.bound.setWordWrap(True)
+        self.bound = WholeLabel()
         self.bound.setProperty("role", "muted")
         self.bound.hide()
         lay.addWidget(self.bound)
-        self.warnings = QLabel()
-        self.warnings.setWordWrap(True)
+        self.warnings = WholeLabel()
         self.warnings.setStyleSheet(f"color: {theme.WARNING};")
         self.warnings.hide()
         lay.addWidget(self.warnings)
+        lay.addStretch(1)               # room to spare goes under the texts, not between
         return w
 
     def _build_charts(self) -> QWidget:

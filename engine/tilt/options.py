@@ -8,12 +8,12 @@ from __future__ import annotations
 from dataclasses import dataclass, field, fields
 
 import numpy as np
-import pandas as pd
 
+from ..choices import RowSettings, StudySettings, check_positions
+from ..choices import _check_switch_dates as _check_switch_dates
 from ..manyplane import sum_by_month
 from ..site import MOUNTINGS
 from ..skyyear import IrradianceOptions
-from ..words import MIN_TILT_DEFAULT_DEG
 
 OPTION_KINDS = ("horizontal", "plane", "rule-of-thumb", "fixed-optimal", "two-season",
                 "four-season", "monthly", "two-axis")
@@ -27,133 +27,6 @@ OPTION_KINDS = ("horizontal", "plane", "rule-of-thumb", "fixed-optimal", "two-se
 #: Option kinds each mounting allows besides the references (horizontal, the site's
 #: planes as they are, the fixed optimum as the best plane, the two-axis ceiling).
 SEASONAL_KINDS = (("two-season", 2), ("four-season", 4), ("monthly", 12))
-
-@dataclass(frozen=True)
-class StudySettings:
-    """What the tilt study optimises, within which limits (the settings an assessment keeps).
-
-    Attributes
-    ----------
-    objective : {"annual", "worst-month", "months"}
-        Maximise the annual total, the smallest monthly total, or the total over
-        ``months``.
-    months : tuple of int
-        Months (1-12) for the ``months`` objective.
-    tilt_min_deg, tilt_max_deg, tilt_step_deg : float
-        Candidate tilts: ``tilt_min_deg`` to ``tilt_max_deg`` by ``tilt_step_deg``.
-        The lowest defaults to 10° (:data:`tiltyard.engine.words.MIN_TILT_DEFAULT_DEG`):
-        rain rinses panels and water runs off from about there (common practice, no
-        source). It bounds every optimised option; the horizontal reference, the site's
-        planes as they are, the rule of thumb and the two-axis ceiling keep their tilts.
-    azimuth_deg : float or None
-        Fixed azimuth for every optimised option (the roof faces where it
-        faces); None lets the fixed optimum choose its azimuth, and schedules
-        then use the fixed optimum's azimuth.
-    min_days_between : int
-        Minimum length of a schedule period, days.
-    switch_dates : tuple of str or None
-        Fixed switch dates ("MM-DD") for the two-period schedule instead of
-        optimised ones (two dates).
-    """
-
-    objective: str = "annual"
-    months: tuple = ()
-    tilt_min_deg: float = MIN_TILT_DEFAULT_DEG   # run-off: common practice, no source
-    tilt_max_deg: float = 90.0
-    tilt_step_deg: float = 1.0
-    azimuth_deg: float | None = None
-    min_days_between: int = 30
-    switch_dates: tuple | None = None
-
-    def __post_init__(self):
-        if self.objective not in ("annual", "worst-month", "months"):
-            raise ValueError(f"objective = {self.objective!r}: must be annual, worst-month or "
-                             "months=M,M,...")
-        if self.objective == "months":
-            if not self.months or any(not 1 <= int(m) <= 12 for m in self.months):
-                raise ValueError(f"months = {self.months!r}: must be month numbers 1-12")
-        if not 0.0 <= self.tilt_min_deg <= self.tilt_max_deg <= 90.0:
-            raise ValueError(f"tilt range = {self.tilt_min_deg:g}:{self.tilt_max_deg:g}: must "
-                             "satisfy 0 <= min <= max <= 90 deg")
-        if not 0.1 <= self.tilt_step_deg <= 90.0:
-            raise ValueError(f"tilt_step_deg = {self.tilt_step_deg!r}: must be between 0.1 and "
-                             "90 deg")
-        if self.azimuth_deg is not None and not 0.0 <= self.azimuth_deg <= 360.0:
-            raise ValueError(f"azimuth_deg = {self.azimuth_deg!r}: must be between 0 and 360 deg")
-        if not 1 <= int(self.min_days_between) <= 120:
-            raise ValueError(f"min_days_between = {self.min_days_between!r}: must be between 1 "
-                             "and 120 days")
-        if self.switch_dates is not None:
-            _check_switch_dates(self.switch_dates, int(self.min_days_between))
-
-
-def _check_switch_dates(dates, min_days: int) -> None:
-    """Two distinct MM-DD dates at least ``min_days`` apart both ways round the year
-    (a non-leap year of 365 days, as the study's reference year)."""
-    if isinstance(dates, str) or len(dates) != 2:
-        raise ValueError(f"switch_dates = {dates!r}: give two dates MM-DD")
-    days = []
-    for text in dates:
-        try:
-            if not isinstance(text, str) or len(text) != 5 or text[2] != "-":
-                raise ValueError
-            days.append(pd.Timestamp(f"2023-{text}").day_of_year)
-        except ValueError:
-            raise ValueError(f"switch_dates = {dates!r}: {text!r} is not a date MM-DD") from None
-    gap = abs(days[1] - days[0])
-    shorter = min(gap, 365 - gap)
-    if shorter < min_days:
-        raise ValueError(f"switch_dates = {','.join(dates)}: the seasons between them must "
-                         f"each be at least {min_days} days (min_days_between); the shorter "
-                         f"is {shorter}")
-
-
-@dataclass(frozen=True)
-class RowSettings:
-    """Rows on a flat roof or field, and the indicative yield.
-
-    Attributes
-    ----------
-    row_tilt_deg : float or None
-        Tilt of the rows laid out for a flat roof or field (pitch and ground
-        coverage for the default design window); None uses the fixed optimum.
-    collector_length_m : float
-        Slant length of one row's collector, m (row pitch scales with it).
-    row_design_date : str or None
-        Design day ("MM-DD") for the row spacing; None uses the winter solstice
-        rule of :func:`tiltyard.engine.rows.default_design_date`.
-    row_half_width_h : float
-        Half-width of the design window around apparent solar noon, hours.
-    loss_fraction : float
-        System loss fraction for the indicative specific yield (default 0.14,
-        common practice, no source).
-    """
-
-    row_tilt_deg: float | None = None
-    collector_length_m: float = 1.0
-    row_design_date: str | None = None
-    row_half_width_h: float = 3.0
-    loss_fraction: float = 0.14
-
-    def __post_init__(self):
-        if self.row_tilt_deg is not None and not 0.0 <= self.row_tilt_deg <= 90.0:
-            raise ValueError(f"row_tilt_deg = {self.row_tilt_deg!r}: must be between 0 and 90 "
-                             "deg")
-        if not 0.05 <= self.collector_length_m <= 20.0:
-            raise ValueError(f"collector_length_m = {self.collector_length_m!r}: must be between "
-                             "0.05 and 20 m")
-        if self.row_design_date is not None:
-            try:
-                pd.Timestamp(f"2023-{self.row_design_date}")
-            except ValueError:
-                raise ValueError(f"row_design_date = {self.row_design_date!r}: must be a date "
-                                 "MM-DD") from None
-        if not 0.0 < self.row_half_width_h <= 6.0:
-            raise ValueError(f"row_half_width_h = {self.row_half_width_h!r}: must be more than 0 "
-                             "and at most 6 h")
-        if not 0.0 <= self.loss_fraction <= 0.9:
-            raise ValueError(f"loss_fraction = {self.loss_fraction!r}: must be between 0 and 0.9")
-
 
 @dataclass(frozen=True)
 class StudyOptions(StudySettings, RowSettings):
@@ -180,13 +53,7 @@ class StudyOptions(StudySettings, RowSettings):
     def __post_init__(self):
         StudySettings.__post_init__(self)
         RowSettings.__post_init__(self)
-        if self.mounting not in MOUNTINGS:
-            raise ValueError(f"mounting = {self.mounting!r}: must be one of "
-                             f"{', '.join(MOUNTINGS)}")
-        if isinstance(self.max_positions, bool) or not isinstance(self.max_positions, int) \
-                or not 1 <= self.max_positions <= 12:
-            raise ValueError(f"max_positions = {self.max_positions!r}: must be a whole number "
-                             "from 1 to 12")
+        check_positions(self.mounting, self.max_positions, MOUNTINGS)
 
     @property
     def settings(self) -> StudySettings:

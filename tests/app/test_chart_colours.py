@@ -114,3 +114,91 @@ def test_line_colours_have_3_to_1_contrast_on_white(colours):
     for c in colours():
         assert theme.contrast_on_white(c) >= 3.0, c
 
+
+
+def _pen_series(item):
+    """(colour, pattern) of a drawn line, marker set or bar set, from the item itself."""
+    import pyqtgraph as pg
+    if isinstance(item, pg.InfiniteLine):
+        pen = item.pen
+        return pen.color().name(), ("line", pen.style(), round(pen.widthF(), 1))
+    if isinstance(item, pg.ScatterPlotItem):
+        return (item.opts["brush"].color().name(),
+                ("marker", item.opts["symbol"], item.opts["size"]))
+    if isinstance(item, pg.BarGraphItem):
+        brush = item.opts.get("brush") or item.opts["brushes"][0]
+        brush = pg.mkBrush(brush)
+        return brush.color().name(), ("bars", brush.style())
+    if isinstance(item, pg.PlotDataItem):
+        pen = pg.mkPen(item.opts["pen"])
+        filled = item.opts.get("fillLevel") is not None
+        return pen.color().name(), ("line", pen.style(), round(pen.widthF(), 1), filled)
+    raise TypeError(type(item))
+
+
+def test_tilt_study_curve_and_timeline_read_without_colour(qtbot, make_ctx, idle):
+    """The tilt curve: the curve, its best point and the objective's fixed optimum differ
+    in pattern as well as colour. The schedule timeline: one row per option (told apart
+    by place and name), each block's tilt in its label and in a lightness ramp that
+    keeps its order under deuteranopia and protanopia, the labels at 4.5:1 on their
+    block, and the recommended row marked by a wider outline as well as colour."""
+    import pyqtgraph as pg
+
+    from tiltyard.app.views.study_charts import tilt_fill
+    from tiltyard.app.views.study_view import StudyView
+    ctx = make_ctx("coral-lane-clinic")       # its worst-month optimum is marked apart
+    view = StudyView(ctx)
+    qtbot.addWidget(view)
+    view.resize(1280, 720)
+    view.show()
+    view.objective.setCurrentIndex(view.objective.findData("worst-month"))
+    idle(ctx.runner, 120.0)
+    qtbot.waitUntil(lambda: view.study is not None
+                    and view.study.options_used.objective == "worst-month", timeout=120_000)
+    idle(ctx.runner, 120.0)
+    vb = view.curve_plot.getPlotItem().getViewBox()
+    items = [i for i in vb.addedItems
+             if isinstance(i, (pg.PlotDataItem, pg.ScatterPlotItem, pg.InfiniteLine))]
+    series = [_pen_series(i) for i in items]
+    assert len(series) >= 3, series        # the curve, its best point, the fixed optimum
+    assert check_series(series) == []
+    # the timeline's ramp: lightness (CAM02-UCS J') falls with tilt for every viewer
+    for kind in (*CVD, None):
+        lightness = []
+        for t in range(0, 91, 10):
+            rgb = (_rgb(tilt_fill(t).name()) if kind is None
+                   else simulated(tilt_fill(t).name(), kind))
+            lightness.append(float(cspace_convert(rgb, "sRGB1", "CAM02-UCS")[0]))
+        assert all(b < a - 3.0 for a, b in zip(lightness, lightness[1:], strict=False)), (
+            kind, lightness)
+    # block labels: WCAG 2.1 (W3C 2018), 1.4.3 contrast of small text, 4.5:1
+    for t in range(91):
+        fill = tilt_fill(t).name()
+        assert theme.contrast(theme.text_on(fill), fill) >= 4.5, t
+    pens = {kind: bars.opts["pen"] for kind, bars in view.timeline_bars}
+    rec = view.study.recommended.kind
+    widths = {kind: pg.mkPen(p).widthF() for kind, p in pens.items()}
+    assert all(widths[rec] >= w + 1.0 for kind, w in widths.items() if kind != rec), widths
+
+
+def test_horizon_chart_series_read_without_colour(qtbot, make_ctx, idle):
+    """The Horizon chart's series (the effective horizon, the measured points, the
+    obstacles and the 0° line) differ in pattern (fill, marker, hatching, dash) as well
+    as colour."""
+    import pyqtgraph as pg
+
+    from tiltyard.app.views.horizon_view import HorizonView
+    ctx = make_ctx("larkmoor-dairy")
+    view = HorizonView(ctx)
+    qtbot.addWidget(view)
+    view.resize(1280, 720)
+    view.show()
+    idle(ctx.runner, 120.0)
+    assert ctx.site.obstacles and ctx.site.horizon.azimuth_deg
+    vb = view.plot.getViewBox()
+    kinds = (pg.PlotDataItem, pg.ScatterPlotItem, pg.InfiniteLine, pg.BarGraphItem)
+    items = [i for i in vb.addedItems if isinstance(i, kinds) and i.isVisible()]
+    items.append(view._obstacle_proxy)          # the obstacles as the legend shows them
+    series = {_pen_series(i) for i in items}
+    assert len(series) >= 4, series
+    assert check_series(sorted(series, key=str)) == []

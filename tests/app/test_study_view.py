@@ -116,7 +116,8 @@ def test_the_worst_month_objective_reaches_the_curve_and_the_map(qtbot, make_ctx
     np.testing.assert_allclose(y, st.tilt_curve["objective_kwh_m2"].to_numpy())
     # the curve is in worst-month units: well below the annual totals at every tilt
     assert np.all(y < st.tilt_curve["annual_kwh_m2"].to_numpy() / 6.0)
-    assert "Weakest month" in view.curve_plot.getPlotItem().getAxis("left").labelText
+    assert "Weakest month" in view.curve_plot.getPlotItem().titleLabel.text
+    assert "kWh/m²" in view.curve_plot.getPlotItem().getAxis("left").labelText
     # the map's best plane is the objective's: the curve's best to 0.5 % (the map steps the
     # azimuth by 5°, the curve sits at the fixed optimum's azimuth, found to 1°)
     assert st.grid_optimum[2] == pytest.approx(float(np.max(y)), rel=5e-3)

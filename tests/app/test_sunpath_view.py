@@ -230,3 +230,53 @@ def test_chart_labels_never_meet_and_stay_on_their_points(qtbot, make_ctx, idle,
         at = vb.mapViewToScene(QPointF(label.x, label.y))
         want = vb.mapViewToScene(QPointF(x, mid))
         assert abs(at.x() - want.x()) < 1.0 and abs(at.y() - want.y()) < 1.0
+
+
+@pytest.mark.parametrize("basis", ["solar", "clock"])
+@pytest.mark.parametrize("demo", ["coral-lane-clinic", "kelpie-creek-shed", "larkmoor-dairy"])
+def test_drawn_paths_are_whole_and_hour_labels_clear_the_terrain(qtbot, make_ctx, idle,
+                                                                 demo, basis):
+    """What the flat chart draws, in the tropics and the south too: no drawn line jumps
+    across the chart (a U-shaped path cut at an edge, or a flat line across the top in
+    solar time), a path crosses an edge only low in the sky, and every hour label (6 and
+    18 h included) sits above the terrain under it."""
+    import pyqtgraph as pg
+    ctx = make_ctx(demo)
+    view = _open(qtbot, ctx, idle, date=(2023, 6, 21), size=(1280, 720))
+    view.basis.setCurrentIndex(view.basis.findData(basis))
+    view.every_month.setChecked(True)
+    idle(ctx.runner)
+    qtbot.wait(30)
+    vb = view.cart.getPlotItem().getViewBox()
+    centre = view.chart.centre_azimuth_deg
+    checked = 0
+    for item in vb.addedItems:
+        if not isinstance(item, (pg.PlotDataItem, pg.PlotCurveItem)) or item is view.band_item:
+            continue
+        x, y = _curve(item)
+        if x.size < 2:
+            continue
+        both = np.isfinite(x[1:]) & np.isfinite(x[:-1])
+        assert np.all(np.abs(np.diff(x))[both] <= 90.0), item.name()
+        checked += 1
+    # where a date arc breaks at the chart's back edge, the sun is low (hour lines near
+    # the zenith cross every azimuth in the tropics; the from-above chart leads there)
+    arcs = list(view.path_items.values())
+    assert arcs
+    for item in arcs:
+        x, y = _curve(item)
+        for k in np.flatnonzero(~np.isfinite(x[1:]) & np.isfinite(x[:-1])):
+            if abs(x[k] - centre) > 170.0:
+                assert y[k] <= 30.0, (item.name(), x[k], y[k])
+    assert checked >= 8
+    hx, hy = _curve(view.horizon_item)
+    ox, oy = _curve(view.obstacle_item)
+    ground_x = np.concatenate([hx, ox])
+    ground_y = np.concatenate([hy, oy])
+    assert {6, 18} & set(view.hour_labels) or demo != "coral-lane-clinic"
+    for rect, label in zip(view._cart_labels.scene_rects(), view._cart_labels.labels,
+                           strict=False):
+        r = vb.mapSceneToView(rect).boundingRect()
+        under = np.isfinite(ground_x) & (ground_x >= r.left()) & (ground_x <= r.right())
+        assert under.any(), label.text
+        assert min(r.top(), r.bottom()) > np.nanmax(ground_y[under]), label.text
