@@ -109,7 +109,7 @@ class StudyTableModel(QStandardItemModel):
             rows.append({
                 "order": i, "kind": opt.kind, "recommended": opt is rec,
                 "ceiling": opt.kind == "two-axis",
-                "note": degree_text(opt.label) + (f": {opt.note}" if opt.note else ""),
+                "note": degree_text(opt.label + (f": {opt.note}" if opt.note else "")),
                 "text": [label, schedule_words(opt, year), f"{opt.annual_kwh_m2:.0f}",
                          f"{study.score(opt):.1f}", _pct(g_h), _pct(g_f),
                          "–" if share is None else f"{share:.1f}", adjust],

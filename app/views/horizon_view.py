@@ -311,8 +311,10 @@ class HorizonView(View):
         self.delete_points_button = QPushButton("Delete selected")
         self.delete_points_button.clicked.connect(self.delete_selected_points)
         self.import_button = QPushButton("Import CSV…")
-        self.import_button.setToolTip("Two columns, azimuth_deg and elevation_deg (header "
-                                      "optional; comma or semicolon; decimal point)")
+        self.import_button.setToolTip("Two columns: azimuth (°, clockwise from north) and "
+                                      "elevation (°); a header line is optional; commas or "
+                                      "semicolons between them (with semicolons, a decimal "
+                                      "comma too)")
         self.import_button.clicked.connect(self._import_clicked)
         self.export_button = QPushButton("Export CSV…")
         self.export_button.clicked.connect(self._export_clicked)

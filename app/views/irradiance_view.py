@@ -310,6 +310,7 @@ class IrradianceView(View):
         self.day_widget = pg.GraphicsLayoutWidget()
         self.day_widget.setMinimumHeight(200)     # a short screen scrolls rather than squash it
         self.day_plot = plots.plot_item()
+        self.day_plot.setMenuEnabled(False)     # pyqtgraph's menu is not in our words
         self.day_widget.addItem(self.day_plot, row=0, col=0)
         theme.style_plot(self.day_plot, "Irradiance (W/m²)", "Local clock time (h)")
         self.day_plot.getAxis("left").setWidth(62)     # room for "1400" beside the label
@@ -342,6 +343,7 @@ class IrradianceView(View):
         self.bars_widget = pg.GraphicsLayoutWidget()
         self.bars_widget.setMinimumHeight(200)     # a short screen scrolls rather than squash it
         self.bars_plot = plots.plot_item()
+        self.bars_plot.setMenuEnabled(False)
         self.bars_widget.addItem(self.bars_plot, row=0, col=0)
         theme.style_plot(self.bars_plot, "Mean daily irradiation (kWh/m²/day)", "Month")
         self.bars_plot.getAxis("left").setWidth(62)    # room for "4.5" beside the label

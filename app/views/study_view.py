@@ -220,11 +220,11 @@ class StudyView(StudyChartDrawing, View):
                                      "faces a given direction (clockwise from north, "
                                      "south = 180°).")
         self.azimuth_mode.currentIndexChanged.connect(self._azimuth_mode_changed)
-        self.azimuth = self._field("azimuth_deg", "0-360", "°")
+        self.azimuth = self._field("azimuth_deg", "0–360", "°")
         al.addWidget(self.azimuth_mode, 0, Qt.AlignmentFlag.AlignTop)
         al.addWidget(self.azimuth, 1)
         form.addRow("Azimuth", az_row)
-        self.min_days = self._field("min_days_between", "1-120", "days")
+        self.min_days = self._field("min_days_between", "1–120", "days")
         self.min_days.setToolTip("Shortest time a schedule keeps one tilt (days between two "
                                  "adjustments)")
         self.tilt_step.setToolTip("Tilts the rack can be set to: from the lowest tilt in "
