@@ -175,6 +175,31 @@ def client_text(text: str) -> str:
     return text
 
 
+def field_message(value, reason: str, name: str = "") -> str:
+    """What a form says of a text it refused, in the user's words.
+
+    ``reason`` is a :class:`~tiltyard.engine.site.SiteError` reason and ``name``
+    its field. A reason that names its field itself (starts with a capital:
+    ``"Distance must be at least 0.1 m"``) is kept. Otherwise the field's name
+    leads when it is words (``"Latitude must be between -90° and 90°"``; a
+    program name such as ``tilt_deg`` is left out), and a reason that judges
+    the value follows the typed text in quotes (``"“high” is not a number"``,
+    ``"Elevation: “x” is not a number"``). No program names, no repr.
+    """
+    reason = degree_text(str(reason).strip())
+    if reason[:1].isupper():
+        return reason
+    label = name.strip() if name and re.fullmatch(r"[A-Za-z][A-Za-z .()]*", name) else ""
+    label = label[:1].upper() + label[1:]
+    shown = str(value).strip() if value is not None else ""
+    if reason.startswith("is ") and shown:
+        return f"{label}: “{shown}” {reason}" if label else f"“{shown}” {reason}"
+    if label:
+        return f"{label} {reason}"
+    reason = reason.removeprefix("is ")
+    return reason[:1].upper() + reason[1:]
+
+
 def compass(azimuth_deg: float, points: int = 16) -> str:
     """The compass point nearest an azimuth.
 
@@ -514,7 +539,7 @@ __all__ = ["COMPASS_16", "COMPASS_8", "MIN_TILT_DEFAULT_DEG", "MODEL_NAMES", "MO
            "month_names", "plural", "prepared_for_words", "weakest_month_sentence",
            "MOUNTING_SENTENCES", "MOUNTING_WORDS", "OBJECTIVE_WORDS", "OPTION_NAMES", "SKY_CHOICE_WORDS",
            "TIME_BASIS_WORDS", "basis_label", "basis_words", "bearing", "compass",
-           "compass_tick", "day_month", "day_words", "degree_text", "degrees", "model_name", "month_list",
+           "compass_tick", "day_month", "field_message", "day_words", "degree_text", "degrees", "model_name", "month_list",
            "mounting_sentence", "mounting_words", "objective_words", "option_name", "plane_words", "schedule_code",
            "schedule_sentence", "schedule_summary", "schedule_words", "sky_choice_words",
            "time_basis_words", "whole_month"]

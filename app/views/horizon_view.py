@@ -44,7 +44,7 @@ from tiltyard.engine.horizon import merged_profile
 from tiltyard.engine.horizon_io import read_horizon_csv, write_horizon_csv
 from tiltyard.engine.site import HorizonProfile, Obstacle, SiteError
 from tiltyard.engine.sunchart_design import chart_centre_deg, chart_x
-from tiltyard.engine.words import bearing, compass, model_name
+from tiltyard.engine.words import bearing, compass, field_message, model_name
 
 from .. import plots, theme
 from ..engine_process import EngineCall
@@ -71,12 +71,13 @@ def _fmt(v: float, digits: int = 1) -> str:
 
 def _to_float(text: str, field: str, unit: str) -> float:
     t = text.strip().replace(",", ".")
+    in_unit = "degrees" if unit == "°" else unit
     if not t:
-        raise SiteError(field, text, f"is required: type a number in {unit}")
+        raise SiteError(field, text, f"is required: type a number in {in_unit}")
     try:
         value = float(t)
     except ValueError:
-        raise SiteError(field, text, f"is not a number (in {unit})") from None
+        raise SiteError(field, text, f"is not a number (type one in {in_unit})") from None
     if not math.isfinite(value):
         raise SiteError(field, text, "must be a finite number")
     return value
@@ -706,18 +707,21 @@ class HorizonView(View):
         for r in range(t.rowCount()):
             texts = [(t.item(r, c).text() if t.item(r, c) is not None else "") for c in (0, 1)]
             try:
-                az = _to_float(texts[0], "azimuth_deg", "deg")
-                el = _to_float(texts[1], "elevation_deg", "deg")
+                az = _to_float(texts[0], "Azimuth", "°")
+                el = _to_float(texts[1], "Elevation", "°")
                 if not 0.0 <= az <= 360.0:
-                    raise SiteError("azimuth_deg", texts[0], "must be between 0 and 360 deg")
-                HorizonProfile((az,), (el,))
+                    raise SiteError("Azimuth", texts[0], "must be between 0° and 360°")
+                try:
+                    HorizonProfile((az,), (el,))
+                except SiteError as exc:       # the profile's own limits, in the column's name
+                    raise SiteError("Elevation", texts[1], exc.reason) from None
             except SiteError as exc:
-                field = exc.field.split(".")[-1].split("[")[0]
-                self._table_error(r, f"row {r + 1}: {field} = {exc.value!r}: {exc.reason}")
+                self._table_error(r, f"Row {r + 1}: "
+                                     f"{field_message(exc.value, exc.reason, exc.field)}")
                 return None
             key = az % 360.0
             if key in rows_of:
-                self._table_error(r, f"row {r + 1}: azimuth {_fmt(az, 2)}° repeats row "
+                self._table_error(r, f"Row {r + 1}: azimuth {_fmt(az, 2)}° repeats row "
                                      f"{rows_of[key] + 1} (each direction once; 0 and 360 "
                                      "are the same)")
                 return None
@@ -847,7 +851,7 @@ class HorizonView(View):
                         for c, (name, *_rest) in enumerate(OBSTACLE_FIELDS, start=1)}
                 out.append(Obstacle(texts[0].strip() or f"obstacle {r + 1}", **vals))
             except SiteError as exc:
-                self.obstacle_error.setText(f"row {r + 1}: {exc.value!r}: {exc.reason}")
+                self.obstacle_error.setText(f"Row {r + 1}: {field_message(exc.value, exc.reason)}")
                 self.obstacle_error.show()
                 self._updating = True
                 try:

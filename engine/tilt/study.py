@@ -99,7 +99,7 @@ def tilt_study(site: Site, opts: StudyOptions | None = None,
         rot_tilt = min(abs(site.latitude_deg), 90.0)
         options.append(st.fixed(f"Rule of thumb: tilt = latitude ({rot_tilt:.0f} deg)",
                                 "rule-of-thumb", rot_tilt, site.equator_azimuth_deg,
-                                "rule of thumb, not an optimum: tilt equal to |latitude|, "
+                                "rule of thumb, not an optimum: tilt equal to the latitude, north or south, "
                                 "facing the equator"))
     report(0.35, "tilt and azimuth grid")
     grid_pct, grid_opt = st.grid()

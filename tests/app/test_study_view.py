@@ -181,7 +181,8 @@ def test_bad_tilt_range_shows_the_range_and_keeps_the_result(qtbot, make_ctx, id
 
     view.tilt_max.edit.clear()
     qtbot.keyClicks(view.tilt_max.edit, "95")
-    assert "0 <= min <= max <= 90" in view.tilt_max.message
+    assert view.tilt_max.message == ("Tilt to: the highest tilt (95°) must be between 0° (flat) "
+                                     "and 90° (vertical).")
     qtbot.wait(2 * view.tilt_max.COMMIT_MS)
     assert not ctx.runner.is_busy()                      # nothing was submitted
     assert view.table_rows() == before_rows
@@ -251,7 +252,7 @@ def test_chosen_months_and_fixed_switch_dates(qtbot, make_ctx, idle):
     ctx, view = _open(qtbot, make_ctx, idle, demo="kelpie-creek-shed")
     first = view.study
     view.objective.setCurrentIndex(view.objective.findData("months"))
-    assert "tick the months" in view.months_error.text() and view.months_error.isVisible()
+    assert "Tick the months" in view.months_error.text() and view.months_error.isVisible()
     qtbot.wait(300)
     assert not ctx.runner.is_busy() and view.study is first      # nothing to optimise yet
     for m in (6, 7):                                              # June, July (winter, 33° S)

@@ -10,6 +10,7 @@ app's words and look"; DEVELOPERS.md "Client text"): program identifiers, code l
 
 from __future__ import annotations
 
+import os
 import re
 
 import pytest
@@ -46,6 +47,7 @@ RULES = (
     ("'deg' for °", re.compile(r"\d\s*deg\b|\bdeg\b")),
     ("'...' for the ellipsis '…'", re.compile(r"\.\.\.")),
     ("'<=' or '>=' for words", re.compile(r"<=|>=")),
+    ("'|x|' for words", re.compile(r"\|\w+\|")),
     ("'-' for the range dash '–'", re.compile(r"(?<![\d-])(?!(?:0\d|1[0-2])-[0-3]\d\b|\d{4}-\d\d-\d\d)\d+(?:\.\d+)?°?-\d")),
 )
 
@@ -61,7 +63,8 @@ def plain(text: str) -> str:
 
 def style_problems(text: str) -> list[str]:
     """The style rules ``text`` breaks (an empty list when none)."""
-    t = _FILE_NAME.sub("FILE", plain(text))
+    # a file name the user chose and text they typed (quoted “…”) are theirs
+    t = re.sub(r"“[^”]*”", "“TYPED”", _FILE_NAME.sub("FILE", plain(text)))
     return [name for name, pattern in RULES if pattern.search(t)]
 
 
@@ -180,7 +183,7 @@ def test_the_rules_catch_what_they_are_for():
     for bad in ("tilt range = 95:90: must satisfy 0 <= min <= max <= 90 deg",
                 "timezone = None", "planes[0].tilt_deg must be a number",
                 "'': height_m is required", "Loading...", "'95': must be between",
-                "azimuth 12 deg", "between 0-360", "tilts 10-90"):
+                "azimuth 12 deg", "between 0-360", "tilts 10-90", "equal to |latitude|"):
         assert style_problems(bad), bad
     for good in ("Tilt range: the lowest tilt (95°) must be between 0° and the highest "
                  "tilt (90°).", "Weather file…", "tmy_site_2.csv could not be read",
@@ -219,5 +222,96 @@ def test_every_view_speaks_the_users_words(window, idle, demo):
         texts += [(f"{title}: {where}", t) for where, t in texts_of(view)]
     texts += [(f"window: {where}", t) for where, t in texts_of(w)]
     assert len(texts) > 200, len(texts)          # the walk did reach the views' texts
+    found = problems_in(texts)
+    assert not found, "\n".join(found)
+
+
+# -- bad input in every form --------------------------------------------------------------
+
+def _type(qtbot, field, text: str) -> None:
+    """Type into a ValidatedField as a user does: select all, type, leave the field."""
+    field.edit.selectAll()
+    field.edit.del_()
+    if text:
+        qtbot.keyClicks(field.edit, text)
+    field.edit.editingFinished.emit()
+
+
+def _cell(table, row: int, col: int, text: str) -> None:
+    item = table.item(row, col)
+    item.setText(text)                        # emits itemChanged, as an edit does
+
+
+def _shown(w) -> list[tuple[str, str]]:
+    return texts_of(w)
+
+
+def _check_form(qtbot, idle, w, title: str, steps) -> list[str]:
+    """Run each bad-input step on a fresh copy of the view's site, collect what shows."""
+    view = w.show_view(title)
+    idle(w.runner)
+    texts = []
+    for label, step in steps:
+        step(view)
+        qtbot.wait(2 * 300)                   # ValidatedField.COMMIT_MS: pending commits
+        idle(w.runner)
+        texts += [(f"{title} after {label}: {where}", t) for where, t in _shown(w)]
+    return texts
+
+
+def _site_steps(qtbot):
+    steps = []
+    for name, bad in (("name", ""), ("latitude", "95"), ("latitude", "north"),
+                      ("longitude", "200"), ("elevation", "-900"), ("elevation", "high"),
+                      ("albedo", "2"), ("albedo", "x")):
+        steps.append((f"{name} {bad!r}", lambda v, n=name, b=bad: _type(qtbot, getattr(v, n), b)))
+    steps += [("plane tilt 95", lambda v: _cell(v.planes, 0, 1, "95")),
+              ("plane azimuth x", lambda v: _cell(v.planes, 0, 2, "x"))]
+    return steps
+
+
+def _horizon_steps(qtbot):
+    steps = [("profile azimuth 400", lambda v: _cell(v.profile_table, 0, 0, "400")),
+             ("profile elevation x", lambda v: _cell(v.profile_table, 0, 1, "x")),
+             ("obstacle bearing 400", lambda v: _cell(v.obstacle_table, 0, 1, "400")),
+             ("obstacle height empty", lambda v: _cell(v.obstacle_table, 0, 4, ""))]
+    for name, bad in (("bearing_deg", "400"), ("width_deg", "0"), ("distance_m", "x"),
+                      ("height_m", "")):
+        steps.append((f"obstacle form {bad!r}",
+                      lambda v, n=name, b=bad: _type(qtbot, v.obstacle_fields[n], b)))
+    steps.append(("add obstacle", lambda v: v.add_obstacle()))
+    return steps
+
+
+def _study_steps(qtbot):
+    def fixed(combo, v):
+        combo(v).setCurrentIndex(combo(v).findData("fixed"))
+    steps = [("adjustable rack", lambda v: v.mounting.setCurrentIndex(
+        v.mounting.findData("adjustable")))]
+    steps.append(("fixed azimuth", lambda v: fixed(lambda x: x.azimuth_mode, v)))
+    steps.append(("fixed switch dates", lambda v: fixed(lambda x: x.switch_mode, v)))
+    good = {"tilt_min_deg": "10", "tilt_max_deg": "90", "tilt_step_deg": "1",
+            "min_days_between": "30", "azimuth_deg": "180", "switch_a": "04-01",
+            "switch_b": "10-01"}
+    for name, bad in (("tilt_min_deg", "95"), ("tilt_max_deg", "5"), ("tilt_max_deg", "100"),
+                      ("tilt_min_deg", "x"), ("tilt_min_deg", ""), ("tilt_step_deg", "0"),
+                      ("min_days_between", "0"), ("min_days_between", "x"),
+                      ("azimuth_deg", "400"), ("switch_a", "13-40"), ("switch_a", "4 April"),
+                      ("switch_b", "04-20"), ("switch_b", "04-01")):
+        steps.append((f"{name} {bad!r}", lambda v, n=name, b=bad: _type(qtbot, v.fields[n], b)))
+        steps.append((f"{name} back", lambda v, n=name: _type(qtbot, v.fields[n], good[n])))
+    return steps
+
+
+@pytest.mark.parametrize("title", ["Site", "Horizon", "Tilt study"])
+def test_bad_input_is_told_in_the_forms_words(window, qtbot, idle, title):
+    steps = {"Site": _site_steps, "Horizon": _horizon_steps,
+             "Tilt study": _study_steps}[title](qtbot)
+    w = window("larkmoor-dairy")
+    texts = _check_form(qtbot, idle, w, title, steps)
+    errors = [t for where, t in texts if "must" in t.lower() or "not a" in t or "type" in t]
+    assert len(errors) >= len(steps) // 2, errors     # the bad values were refused
+    if os.environ.get("TILTYARD_SHOW_WORDS"):
+        print("\n".join(sorted(set(errors))))
     found = problems_in(texts)
     assert not found, "\n".join(found)
