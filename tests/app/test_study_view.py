@@ -190,7 +190,7 @@ def test_bad_tilt_range_shows_the_range_and_keeps_the_result(qtbot, make_ctx, id
 
     view.tilt_max.edit.clear()
     qtbot.keyClicks(view.tilt_max.edit, "-5")            # below the lowest tilt (10)
-    assert "tilt range = 10:-5" in view.tilt_max.message
+    assert "the highest tilt (-5°)" in view.tilt_max.message
     view.tilt_step.edit.clear()
     qtbot.keyClicks(view.tilt_step.edit, "five")
     assert "is not a number" in view.tilt_step.message
@@ -269,7 +269,7 @@ def test_chosen_months_and_fixed_switch_dates(qtbot, make_ctx, idle):
     idle(ctx.runner)
     view.switch_a.edit.clear()
     qtbot.keyClicks(view.switch_a.edit, "13-40")
-    assert "switch date '13-40'" in view.switch_a.message
+    assert "Switch on: “13-40” is no day of 2023" in view.switch_a.message
     view.switch_a.edit.clear()
     qtbot.keyClicks(view.switch_a.edit, "03-15")
     view.switch_b.edit.clear()
