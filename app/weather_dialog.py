@@ -44,6 +44,7 @@ from tiltyard.engine.weather import (
     summary_text,
 )
 from tiltyard.engine.weather_check import read_weather_for_site
+from tiltyard.engine.words import user_text
 
 from . import theme
 from .engine_process import EngineCall
@@ -247,7 +248,7 @@ class WeatherDialog(QDialog):
         if label == "Weather file" and self._busy:
             self._busy = False
             self.read_button.setEnabled(True)
-            self._set_status(f"Could not read the file: {message}", error=True)
+            self._set_status(f"Could not read the file: {user_text(message)}", error=True)
 
     def _show_result(self, result) -> None:
         self._busy = False
@@ -256,7 +257,8 @@ class WeatherDialog(QDialog):
             self._show_mapping(result)
             return
         if isinstance(result, LoadFailure):
-            self._set_status(f"Could not use the file: {result.message}", error=True)
+            self._set_status(f"Could not use the file: {user_text(result.message)}",
+                             error=True)
             return
         self._loaded = result
         weather = result.weather

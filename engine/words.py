@@ -151,25 +151,38 @@ def plural(n: int, word: str, many: str | None = None) -> str:
     return f"{n} {word if n == 1 else (many or word + 's')}"
 
 
-#: Program words that engine messages may carry, and how a client reads them.
-_CLIENT_REWRITES = (
+#: Program words that engine messages may carry, and how a user reads them.
+_USER_REWRITES = (
     (re.compile(r"\s*\(pass reference_year= to choose another\)"), ""),
     (re.compile(r"timestamp_label='(start|end|middle)'"), r"timestamps marking the interval \1"),
     (re.compile(r"\s*\(coefficients '[^']*'\)"), ""),
+    # a value quoted as code ('Europe/London', 'x') in typographic quotes
+    (re.compile(r"(?<![\w'])'([^'\n]+?)'(?![\w'])"), "“\\1”"),
+)
+
+#: Trade abbreviations and program names a client reads written out.
+_CLIENT_REWRITES = (
     (re.compile(r"\bfrom the ineichen clear sky\b"), "from the Ineichen-Perez clear-sky model"),
     (re.compile(r"\bpvlib monthly climatology\b"), "monthly climatology"),
-    (re.compile(r"\bGHI\b"), "global horizontal irradiation"),
+    (re.compile(r"(?<!“)\bGHI\b"), "global horizontal irradiation"),
 )
 
 
-def client_text(text: str) -> str:
-    """An engine statement as a client reads it on the sheet.
-
-    Degree signs for ``deg`` (:func:`degree_text`), no program parameter names
-    or code literals (``timestamp_label='end'`` becomes "timestamps marking the
-    interval end"), trade abbreviations written out.
-    """
+def user_text(text: str) -> str:
+    """An engine message as the app shows it: degree signs for ``deg``
+    (:func:`degree_text`), no program parameter names (``timestamp_label='end'``
+    becomes "timestamps marking the interval end"), values quoted as code
+    (``'x'``) in typographic quotes (“x”)."""
     text = degree_text(text)
+    for pattern, repl in _USER_REWRITES:
+        text = pattern.sub(repl, text)
+    return text
+
+
+def client_text(text: str) -> str:
+    """An engine statement as a client reads it on the sheet: :func:`user_text`, and
+    trade abbreviations written out."""
+    text = user_text(text)
     for pattern, repl in _CLIENT_REWRITES:
         text = pattern.sub(repl, text)
     return text
@@ -539,7 +552,7 @@ __all__ = ["COMPASS_16", "COMPASS_8", "MIN_TILT_DEFAULT_DEG", "MODEL_NAMES", "MO
            "month_names", "plural", "prepared_for_words", "weakest_month_sentence",
            "MOUNTING_SENTENCES", "MOUNTING_WORDS", "OBJECTIVE_WORDS", "OPTION_NAMES", "SKY_CHOICE_WORDS",
            "TIME_BASIS_WORDS", "basis_label", "basis_words", "bearing", "compass",
-           "compass_tick", "day_month", "field_message", "day_words", "degree_text", "degrees", "model_name", "month_list",
+           "compass_tick", "day_month", "field_message", "user_text", "day_words", "degree_text", "degrees", "model_name", "month_list",
            "mounting_sentence", "mounting_words", "objective_words", "option_name", "plane_words", "schedule_code",
            "schedule_sentence", "schedule_summary", "schedule_words", "sky_choice_words",
            "time_basis_words", "whole_month"]

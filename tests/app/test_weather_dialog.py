@@ -86,9 +86,9 @@ def test_a_mapped_read_passes_the_form_to_the_engine_call(qtbot, make_ctx, idle,
     dlg.read()
     idle(ctx.runner)
     assert calls[-1].args[2:] == ({"timestamp": "Time (UTC)", "ghi": "GHI W/m2"}, "end", "UTC")
-    assert dlg.message == ("Could not use the file: log.csv, line 3: column 'GHI W/m2': "
-                           "value 'x' is not a number (expected a decimal number, or "
-                           "empty/NaN for missing)")
+    assert dlg.message == ("Could not use the file: log.csv, line 3: column “GHI W/m2”: "
+                           "value “x” is not a number (expected a decimal number, or "
+                           "empty or “NaN” for a missing value)")
     assert not dlg.use_button.isEnabled()
     dlg.reject()
 

@@ -315,3 +315,55 @@ def test_bad_input_is_told_in_the_forms_words(window, qtbot, idle, title):
         print("\n".join(sorted(set(errors))))
     found = problems_in(texts)
     assert not found, "\n".join(found)
+
+
+# a year of hourly rows from 1 January 2023, invented values (only the format matters here)
+def _csv(path, stamp, ghi="0", header="time,ghi,temp"):
+    rows = [header] + [f"{stamp(h)},{ghi if h == 5 else 0},{4}" for h in range(8760)]
+    path.write_text("\n".join(rows) + "\n", encoding="utf-8")
+    return path
+
+
+def _naive(h):
+    import datetime as dt
+    return (dt.datetime(2023, 1, 1) + dt.timedelta(hours=h)).strftime("%Y-%m-%d %H:%M")
+
+
+@pytest.mark.parametrize("case", ["no zone for naive stamps", "unknown zone", "bad number",
+                                  "bad timestamp", "empty file", "no such file",
+                                  "no label"])
+def test_the_weather_dialog_tells_bad_files_in_the_users_words(qtbot, make_ctx, idle,
+                                                              tmp_path, case):
+    from tiltyard.app.weather_dialog import WeatherDialog
+    ctx = make_ctx()
+    dlg = WeatherDialog(ctx)
+    qtbot.addWidget(dlg)
+    dlg.show()
+    path = tmp_path / "weather_log_2023.csv"
+    if case == "bad number":
+        _csv(path, _naive, ghi="lots")
+    elif case == "bad timestamp":
+        _csv(path, lambda h: "yesterday" if h == 7 else _naive(h))
+    elif case == "empty file":
+        path.write_text("", encoding="utf-8")
+    elif case != "no such file":
+        _csv(path, _naive)
+    dlg.path_edit.setText(str(path))
+    dlg.read()
+    idle(ctx.runner)
+    if dlg.mapping.isVisible():                      # a generic CSV: name its columns
+        if case != "no label":
+            dlg.label_combo.setCurrentIndex(1)
+        if case == "unknown zone":
+            dlg.timezone_combo.setEditText("Mars/Olympus")
+        elif case == "no zone for naive stamps":
+            dlg.timezone_combo.setCurrentIndex(0)     # "each timestamp carries its offset"
+        else:
+            dlg.timezone_combo.setCurrentIndex(1)
+        dlg.read()
+        idle(ctx.runner)
+    assert dlg.message, "the dialog said nothing"
+    if os.environ.get("TILTYARD_SHOW_WORDS"):
+        print(f"\n{case}: {dlg.message}")
+    found = problems_in(texts_of(dlg))
+    assert not found, "\n".join(found)
