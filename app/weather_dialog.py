@@ -113,7 +113,7 @@ class WeatherDialog(QDialog):
             self.column_combos[key] = box
             form.addRow(text, box)
         self.label_combo = QComboBox()
-        self.label_combo.addItem("— choose —", None)
+        self.label_combo.addItem("(choose)", None)
         for key, text in LABELS:
             self.label_combo.addItem(text, key)
         form.addRow("Each timestamp marks", self.label_combo)

@@ -44,7 +44,15 @@ from tiltyard.engine.horizon import merged_profile
 from tiltyard.engine.horizon_io import read_horizon_csv, write_horizon_csv
 from tiltyard.engine.site import HorizonProfile, Obstacle, SiteError
 from tiltyard.engine.sunchart_design import chart_centre_deg, chart_x
-from tiltyard.engine.words import bearing, compass, field_message, model_name
+from tiltyard.engine.words import (
+    bearing,
+    compass,
+    compass_tick,
+    degrees,
+    field_message,
+    model_name,
+    number,
+)
 
 from .. import plots, theme
 from ..engine_process import EngineCall
@@ -467,8 +475,7 @@ class HorizonView(View):
         major = []
         for i in range(9):
             v = lo + 45.0 * i
-            az = int(round(v % 360.0))
-            major.append((v, f"{compass(az, 8)}\n{az}°"))
+            major.append((v, compass_tick(v, "\n")))
         minor = [(lo + 15.0 * i, "") for i in range(25) if i % 3]
         axis = self.plot.getAxis("bottom")
         axis.setTicks([major, minor])
@@ -550,12 +557,12 @@ class HorizonView(View):
         for p in result.planes:
             name = "Horizontal" if p is result.horizontal else p.label
             first = QStandardItem(name)
-            first.setToolTip(f"tilt {_fmt(p.surface_tilt)}°, azimuth "
-                             f"{_fmt(p.surface_azimuth)}° ({compass(p.surface_azimuth)})")
+            first.setToolTip(f"tilt {degrees(p.surface_tilt)}, azimuth "
+                             f"{bearing(p.surface_azimuth)}")
             cells = [first]
             for text, tip in (
-                    (f"{p.open_kwh_m2:.0f}", ""),
-                    (f"{p.site_kwh_m2:.0f}", ""),
+                    (number(p.open_kwh_m2), ""),
+                    (number(p.site_kwh_m2), ""),
                     (f"{p.loss_pct:.1f}", f"{p.loss_kwh_m2:.1f} kWh/m² a year"),
                     (f"{p.beam_loss_pct:.1f}", f"{p.beam_loss_kwh_m2:.1f} kWh/m² of beam; "
                                                f"sky diffuse {p.sky_diffuse_loss_pct:.1f} % "
@@ -571,7 +578,7 @@ class HorizonView(View):
         verb = "lost" if h.loss_kwh_m2 >= 0 else "gained"
         self.loss_figure.setText(
             f"Horizontal plane: {abs(h.loss_pct):.1f} % {verb} "
-            f"({abs(h.loss_kwh_m2):.0f} of {h.open_kwh_m2:.0f} kWh/m² a year)")
+            f"({number(abs(h.loss_kwh_m2))} of {number(h.open_kwh_m2)} kWh/m² a year)")
         try:
             sky = choose_basis(self.ctx.assessment).words
         except AssessmentError as exc:
@@ -679,7 +686,7 @@ class HorizonView(View):
     # -- profile edits ----------------------------------------------------------------
     def _point_moved(self, index: int, az: float, el: float) -> None:
         self.readout.setText(f"Point {index + 1}: azimuth {bearing(az % 360.0, decimals=1)}, "
-                             f"elevation {el:.1f}° — let go to keep it")
+                             f"elevation {el:.1f}°; let go to keep it")
         xs, ys = self.points.values()
         site = self.ctx.site
         try:

@@ -29,7 +29,7 @@ from PySide6.QtWidgets import (
 )
 
 from tiltyard.engine.site import ALBEDO_PRESETS, Plane, SiteError, parse_coordinate
-from tiltyard.engine.words import MONTH_ABBR, MOUNTING_WORDS, field_message
+from tiltyard.engine.words import MONTH_ABBR, MOUNTING_WORDS, azimuth, field_message, figure
 
 from .. import places
 from ..widgets import ValidatedField, View
@@ -42,7 +42,7 @@ def _number(text: str, field: str, lo: float, hi: float, unit: str) -> float:
         raise SiteError(field, text, "is not a number") from None
     if not math.isfinite(value) or not lo <= value <= hi:
         u = "°" if unit == "°" else (f" {unit}" if unit else "")
-        raise SiteError(field, text, f"must be between {lo:g}{u} and {hi:g}{u}")
+        raise SiteError(field, text, f"must be between {figure(lo)}{u} and {figure(hi)}{u}")
     return value
 
 
@@ -502,7 +502,7 @@ class SiteView(View):
             self.longitude.set_text(_fmt(site.longitude_deg))
             self.coords_note.setText(f"{_dms(site.latitude_deg, 'latitude')}, "
                                      f"{_dms(site.longitude_deg, 'longitude')} · equator-facing "
-                                     f"azimuth {site.equator_azimuth_deg:.0f}°")
+                                     f"azimuth {azimuth(site.equator_azimuth_deg)}")
             self.elevation.set_text(_fmt(site.elevation_m, 1))
             if not self.timezone.lineEdit().hasFocus():
                 self.timezone.setCurrentText(site.timezone)

@@ -41,6 +41,7 @@ from tiltyard.engine.words import (
     degrees,
     model_name,
     mounting_words,
+    number,
     schedule_words,
 )
 
@@ -577,7 +578,7 @@ class StudyView(StudyChartDrawing, View):
     def refresh(self) -> None:
         super().refresh()
         a = self.ctx.assessment
-        self.heading.setText(f"Tilt study — {a.site.name}")
+        self.heading.setText(f"Tilt study · {a.site.name}")
         self._sync_enabled()
         if self._options is None:
             self._options = self._collect()
@@ -611,7 +612,7 @@ class StudyView(StudyChartDrawing, View):
             self.bound.hide()
             return
         self.bound.setText(f"Under a clear sky every day the same plane would get "
-                           f"{bound[rec.label]:,.0f} kWh/m² a year: the upper bound, not an "
+                           f"{number(bound[rec.label])} kWh/m² a year: the upper bound, not an "
                            "expected value.")
         self.bound.show()
 
@@ -651,7 +652,7 @@ class StudyView(StudyChartDrawing, View):
                     f"{objective} objective.")
         self.recommendation.setText(
             f"<span style='color:{accent}; font-weight:600'>{head}: "
-            f"{degree_text(rec.label)}</span> — {schedule_words(rec, year)}.{gain}<br>"
+            f"{degree_text(rec.label)}</span>: {schedule_words(rec, year)}.{gain}<br>"
             f"<span style='color:{theme.MUTED}'>Rule: {degree_text(study.recommendation_rule)}"
             ". The two-axis row is a ceiling to judge the others by, not a recommendation."
             "</span>")

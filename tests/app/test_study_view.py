@@ -169,7 +169,8 @@ def test_recommended_row_is_highlighted_and_two_axis_is_a_ceiling(qtbot, make_ct
     col = _column(view, "Annual (kWh/m²)")
     pos = QPoint(hh.sectionViewportPosition(col) + hh.sectionSize(col) // 2, 5)
     qtbot.mouseClick(hh.viewport(), Qt.MouseButton.LeftButton, pos=pos)
-    vals = [float(view.proxy.index(i, col).data()) for i in range(view.proxy.rowCount())]
+    vals = [float(view.proxy.index(i, col).data().replace(",", ""))    # 1,767: thousands
+            for i in range(view.proxy.rowCount())]
     assert vals == sorted(vals) or vals == sorted(vals, reverse=True)
     assert len(set(vals)) > 2
 
@@ -228,7 +229,8 @@ def test_copy_table_gives_tab_separated_text_with_units(qtbot, make_ctx, idle):
     assert "Gain vs horizontal (%)" in head and "Share of two-axis ceiling (%)" in head
     assert len(lines) == 1 + len(view.study.options)
     assert all(len(line.split("\t")) == len(head) for line in lines)
-    annual = [float(line.split("\t")[head.index("Annual (kWh/m²)")]) for line in lines[1:]]
+    annual = [float(line.split("\t")[head.index("Annual (kWh/m²)")].replace(",", ""))
+              for line in lines[1:]]
     np.testing.assert_allclose(annual, [round(o.annual_kwh_m2) for o in view.study.options])
     assert sum(line.startswith("★ ") for line in lines[1:]) == 1
 

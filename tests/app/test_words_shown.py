@@ -48,6 +48,13 @@ RULES = (
     ("'...' for the ellipsis '…'", re.compile(r"\.\.\.")),
     ("'<=' or '>=' for words", re.compile(r"<=|>=")),
     ("'|x|' for words", re.compile(r"\|\w+\|")),
+    # one dash, one meaning (engine/words.py): "—" is a cell with no value, alone;
+    # "–" joins the two ends of a range, with no spaces
+    ("'—' that is not a lone no-value", re.compile(r"^(?!—$).*—", re.DOTALL)),
+    ("'–' that is not a range", re.compile(r"\s–|–\s|^–|–$")),
+    # one thousands rule (words.number): a figure with a unit has its thousands separated
+    ("thousands not separated",
+     re.compile(r"(?<![\d.,:/-])\d{4,}(?:\.\d+)?\s?(?:kWh|Wh|W/m|m\b|km\b|MJ)")),
     ("'-' for the range dash '–'", re.compile(r"(?<![\d-])(?!(?:0\d|1[0-2])-[0-3]\d\b|\d{4}-\d\d-\d\d)\d+(?:\.\d+)?°?-\d")),
 )
 
@@ -183,12 +190,15 @@ def test_the_rules_catch_what_they_are_for():
     for bad in ("tilt range = 95:90: must satisfy 0 <= min <= max <= 90 deg",
                 "timezone = None", "planes[0].tilt_deg must be a number",
                 "'': height_m is required", "Loading...", "'95': must be between",
-                "azimuth 12 deg", "between 0-360", "tilts 10-90", "equal to |latitude|"):
+                "azimuth 12 deg", "between 0-360", "tilts 10-90", "equal to |latitude|",
+                "Tilt study — Larkmoor", "Print – preview", "–", "1767 kWh/m²",
+                "elevation 2350 m"):
         assert style_problems(bad), bad
     for good in ("Tilt range: the lowest tilt (95°) must be between 0° and the highest "
                  "tilt (90°).", "Weather file…", "tmy_site_2.csv could not be read",
                  "Sunrise 06:12 · sunset 18:40", "e.g. 10-01 for 1 October", "2023-06-21",
-                 "0–360°", "-2.48°", "<b>Polar day</b>: the sun does not set."):
+                 "0–360°", "-2.48°", "—", "12° 1 Apr–30 Sep",
+                 "1,767 kWh/m² a year", "2,350 m", "in 2023", "999 m", "<b>Polar day</b>: the sun does not set."):
         assert not style_problems(good), (good, style_problems(good))
 
 
