@@ -127,6 +127,7 @@ class WeatherDialog(QDialog):
 
         # -- what happened -----------------------------------------------------------
         self.status = QLabel("")
+        self.status.hide()
         self.status.setWordWrap(True)
         self.status.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
         lay.addWidget(self.status)
@@ -135,6 +136,11 @@ class WeatherDialog(QDialog):
         self.findings.setMinimumHeight(140)
         self.findings.hide()
         lay.addWidget(self.findings, 1)
+        # the room left over goes under what is shown (not between the rows), until the
+        # findings list shows and takes it
+        lay.addStretch(1)
+        self._filler = lay.count() - 1
+        self._layout = lay
 
         self.buttons = QDialogButtonBox(QDialogButtonBox.StandardButton.Cancel)
         self.use_button = self.buttons.addButton("Use this weather",
@@ -156,7 +162,12 @@ class WeatherDialog(QDialog):
 
     def _set_status(self, text: str, error: bool = False) -> None:
         self.status.setText(text)
+        self.status.setVisible(bool(text))
         self.status.setStyleSheet(f"color: {theme.ERROR};" if error else "")
+
+    def _show_findings(self, shown: bool) -> None:
+        self.findings.setVisible(shown)
+        self._layout.setStretch(self._filler, 0 if shown else 1)
 
     def _path_edited(self, _text: str) -> None:
         self._loaded = None
@@ -164,7 +175,7 @@ class WeatherDialog(QDialog):
         self._header = None
         self.use_button.setEnabled(False)
         self.mapping.hide()
-        self.findings.hide()
+        self._show_findings(False)
         self._set_status("")
 
     def _browse(self) -> None:
@@ -234,7 +245,7 @@ class WeatherDialog(QDialog):
             timezone = self._timezone()
         self._loaded = None
         self.use_button.setEnabled(False)
-        self.findings.hide()
+        self._show_findings(False)
         self._busy = True
         self.read_button.setEnabled(False)
         self._set_status(f"Reading {path.name}…")
@@ -265,14 +276,14 @@ class WeatherDialog(QDialog):
         self._set_status(summary_text(weather) + ". Check the findings, then use it.")
         self.findings.clear()
         for f in weather.findings:
-            item = QListWidgetItem(finding_text(f))
+            item = QListWidgetItem(user_text(finding_text(f)))
             if f.severity != "info":
                 item.setForeground(theme.series_color(1) if f.severity == "warning"
                                    else theme.series_color(6))
             self.findings.addItem(item)
         if not weather.findings:
             self.findings.addItem("The importer noticed nothing to report.")
-        self.findings.show()
+        self._show_findings(True)
         self.use_button.setEnabled(True)
 
     def use(self) -> None:

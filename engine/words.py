@@ -209,6 +209,7 @@ def plural(n: int, word: str, many: str | None = None) -> str:
 _USER_REWRITES = (
     (re.compile(r"\s*\(pass reference_year= to choose another\)"), ""),
     (re.compile(r"timestamp_label='(start|end|middle)'"), r"timestamps marking the interval \1"),
+    (re.compile(r"\btimezone='([^'\n]+)'"), r"time zone “\1”"),
     (re.compile(r"\s*\(coefficients '[^']*'\)"), ""),
     # a value quoted as code ('Europe/London', 'x') in typographic quotes
     (re.compile(r"(?<![\w'])'([^'\n]+?)'(?![\w'])"), "“\\1”"),

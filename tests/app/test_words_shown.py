@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import os
 import re
+from pathlib import Path
 
 import pytest
 from PySide6.QtCore import Qt
@@ -339,7 +340,8 @@ def _naive(h):
     return (dt.datetime(2023, 1, 1) + dt.timedelta(hours=h)).strftime("%Y-%m-%d %H:%M")
 
 
-@pytest.mark.parametrize("case", ["no zone for naive stamps", "unknown zone", "bad number",
+@pytest.mark.parametrize("case", ["a typical-year file", "no zone for naive stamps",
+                                  "unknown zone", "bad number",
                                   "bad timestamp", "empty file", "no such file",
                                   "no label"])
 def test_the_weather_dialog_tells_bad_files_in_the_users_words(qtbot, make_ctx, idle,
@@ -356,6 +358,9 @@ def test_the_weather_dialog_tells_bad_files_in_the_users_words(qtbot, make_ctx, 
         _csv(path, lambda h: "yesterday" if h == 7 else _naive(h))
     elif case == "empty file":
         path.write_text("", encoding="utf-8")
+    elif case == "a typical-year file":                 # read as it is, with its findings
+        import pvlib
+        path = Path(pvlib.__file__).parent / "data" / "723170TYA.CSV"
     elif case != "no such file":
         _csv(path, _naive)
     dlg.path_edit.setText(str(path))
@@ -373,6 +378,8 @@ def test_the_weather_dialog_tells_bad_files_in_the_users_words(qtbot, make_ctx, 
         dlg.read()
         idle(ctx.runner)
     assert dlg.message, "the dialog said nothing"
+    if case == "a typical-year file":
+        assert dlg.findings.count() >= 3 and dlg.use_button.isEnabled()
     if os.environ.get("TILTYARD_SHOW_WORDS"):
         print(f"\n{case}: {dlg.message}")
     found = problems_in(texts_of(dlg))
