@@ -17,6 +17,7 @@ lines are in chart coordinates (``chart_x``) and go back to azimuths on commit.
 from __future__ import annotations
 
 import math
+from pathlib import Path
 
 import numpy as np
 import pyqtgraph as pg
@@ -52,6 +53,7 @@ from tiltyard.engine.words import (
     field_message,
     model_name,
     number,
+    user_text,
 )
 
 from .. import plots, theme
@@ -903,10 +905,22 @@ class HorizonView(View):
         self.ctx.runner.submit(self.channel("import"), job, self._imported,
                                label="Horizon import")
 
+    @staticmethod
+    def _file_words(exc: SiteError) -> str:
+        """A horizon file's fault in the user's words: the file, the line and column by
+        name, what is wrong (no field names, no repr)."""
+        name = Path(exc.file).name if exc.file else "the file"
+        if exc.field == "(file)":
+            return user_text(f"{name} {exc.reason}")
+        where = exc.field.replace("azimuth_deg", "azimuth").replace("elevation_deg",
+                                                                     "elevation")
+        return user_text(f"{name}, {where}: {field_message(exc.value, exc.reason)}")
+
     def _imported(self, result) -> None:
         if isinstance(result, SiteError):
-            self._io_show("error", f"Import failed, the horizon is unchanged: {result}")
-            self.ctx.notify("error", f"horizon import failed: {result}")
+            said = self._file_words(result)
+            self._io_show("error", f"Import failed, the horizon is unchanged: {said}")
+            self.ctx.notify("error", f"Horizon import failed: {said}")
             return
         if self._propose(horizon=result):
             self._io_show("info", f"Imported {len(result.azimuth_deg)} points.")

@@ -291,7 +291,21 @@ def _horizon_steps(qtbot):
         steps.append((f"obstacle form {bad!r}",
                       lambda v, n=name, b=bad: _type(qtbot, v.obstacle_fields[n], b)))
     steps.append(("add obstacle", lambda v: v.add_obstacle()))
+    # horizon files with faults (invented lines; only the fault matters)
+    for name, text in (("bad-number.csv", "azimuth,elevation\n0,2\n90,x\n"),
+                       ("out-of-range.csv", "0;2\n400;3\n"), ("empty.csv", ""),
+                       ("one-column.csv", "0\n90\n"), ("missing.csv", None)):
+        steps.append((f"import {name}", lambda v, n=name, t=text: _import(v, n, t)))
     return steps
+
+
+def _import(view, name: str, text) -> None:
+    import tempfile
+    folder = Path(tempfile.mkdtemp())
+    path = folder / name
+    if text is not None:
+        path.write_text(text, encoding="utf-8")
+    view.import_csv(str(path))
 
 
 def _study_steps(qtbot):
