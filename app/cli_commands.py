@@ -8,7 +8,14 @@ import os
 import sys
 from pathlib import Path
 
-from tiltyard.engine.words import MONTH_ABBR, model_name, mounting_words, schedule_words
+from tiltyard.engine.words import (
+    MONTH_ABBR,
+    day_length,
+    model_name,
+    mounting_words,
+    number,
+    schedule_words,
+)
 
 from .cli_args import (
     EXIT_OK,
@@ -72,10 +79,10 @@ def cmd_study(args) -> int:
     def pct(v, sign="+"):
         return "-" if v is None else f"{v:{sign}.1f}"
     for row in d["options"]:
-        print(f"  {row['label'][:52]:52} {row['objective_value_kwh_m2']:9.1f} "
+        print(f"  {row['label'][:52]:52} {number(row['objective_value_kwh_m2'], 1):>9} "
               f"{pct(row['gain_vs_horizontal_pct']):>7} "
               f"{pct(row['gain_vs_fixed_optimal_pct']):>8} "
-              f"{pct(row['share_of_tracking_pct'], ''):>8} {row['annual_kwh_m2']:8.1f} "
+              f"{pct(row['share_of_tracking_pct'], ''):>8} {number(row['annual_kwh_m2'], 1):>8} "
               f"{row['adjustments_per_year']:6d}")
     print(f"  (objective, gains and shares on the {opts.objective_label} objective; 'vs best': "
           "over the best fixed plane for the site)")
@@ -101,7 +108,7 @@ def _print_recommendation(result, st, d) -> None:
     if st.mounting == "flush":
         loss = result.option_horizon_loss(rec)
         print(f"  This roof as it is: {rec.label} - {_rec_words(st)}: "
-              f"{rec.annual_kwh_m2:.0f} kWh/m2 a year, {st.share_pct(rec, 'fixed-optimal'):.0f} "
+              f"{number(rec.annual_kwh_m2)} kWh/m2 a year, {st.share_pct(rec, 'fixed-optimal'):.0f} "
               f"% of the best plane for the site on the {st.options_used.objective_label} "
               f"objective, {loss.loss_pct:.1f} % lost to the horizon")
     else:
@@ -109,11 +116,11 @@ def _print_recommendation(result, st, d) -> None:
     print(f"  (rule: {st.recommendation_rule})")
     bound = result.clear_sky_bound()
     if bound is not None:
-        print(f"  Clear-sky upper bound for it: {bound[rec.label]:.0f} kWh/m2 a year (not an "
+        print(f"  Clear-sky upper bound for it: {number(bound[rec.label])} kWh/m2 a year (not an "
               "expected value)")
     go = d["grid_optimum"]
     print(f"  Best plane on the tilt x azimuth grid: {go['tilt_deg']:g} deg, azimuth "
-          f"{go['azimuth_deg']:g} deg, {go['objective_kwh_m2']:.1f} kWh/m2 "
+          f"{go['azimuth_deg']:g} deg, {number(go['objective_kwh_m2'], 1)} kWh/m2 "
           f"({d['objective_units']})")
 
 
@@ -124,7 +131,7 @@ def _print_rows_and_yield(st, d) -> None:
     if st.mounting == "flush":      # panels follow the roof: no rows to lay out
         print("  Indicative specific yield:")
         for y in yld["options"]:
-            print(f"    {y['label'][:40]:40} {y['annual_kwh_kwp']:8.0f} kWh/kWp")
+            print(f"    {y['label'][:40]:40} {number(y['annual_kwh_kwp']):>8} kWh/kWp")
         _print_yield_and_method(yld, mm)
         return
     print("  Rows on flat ground (beam shading-free in the design window):")
@@ -144,8 +151,8 @@ def _print_rows_and_yield(st, d) -> None:
         y = by_kind.get((r["label"], r["kind"]))
         pitch = "-" if lay is None else f"{lay['pitch_m']:.2f}"
         gcr = "-" if lay is None else f"{lay['gcr']:.3f}"
-        ground = "-" if r["per_ground_kwh_m2"] is None else f"{r['per_ground_kwh_m2']:.0f}"
-        yv = "-" if y is None else f"{y['annual_kwh_kwp']:.0f}"
+        ground = "-" if r["per_ground_kwh_m2"] is None else number(r['per_ground_kwh_m2'])
+        yv = "-" if y is None else number(y['annual_kwh_kwp'])
         print(f"    {r['label'][:40]:40} {pitch:>8} {gcr:>6} {ground:>14} {yv:>14}")
     print(f"    GCR: {rows['definitions']}")
     print(f"    {rows['limitation']}")
@@ -160,7 +167,7 @@ def _print_yield_and_method(yld, mm) -> None:
         print(f"  Same monthly GHI values by the monthly-mean method: {mm['method']}")
         for c in mm["options"]:
             diff = c["difference_vs_hourly_pct"]
-            print(f"    {c['label'][:40]:40} {c['annual_kwh_m2']:8.1f} kWh/m2 "
+            print(f"    {c['label'][:40]:40} {number(c['annual_kwh_m2'], 1):>8} kWh/m2 "
                   f"(hourly year {'-' if diff is None else f'{diff:+.1f}'} %)")
 
 
@@ -203,7 +210,7 @@ def cmd_sun(args) -> int:
         print(json.dumps({"sun": day.to_json_dict()}, indent=2, ensure_ascii=False))
         return EXIT_OK
     print(f"Sun at {site.name}  ({site.latitude_deg:.4f}, {site.longitude_deg:.4f}, "
-          f"{site.elevation_m:.0f} m)")
+          f"{number(site.elevation_m)} m)")
     print(f"Date {args.date.isoformat()}, local clock time, zone {site.timezone}")
     if day.polar == "day":
         print("Polar day: the sun stays above the horizon all day.")
@@ -212,7 +219,7 @@ def cmd_sun(args) -> int:
     print(f"  sunrise           {_fmt_time(day.sunrise)}")
     print(f"  solar noon        {_fmt_time(day.solar_noon)}")
     print(f"  sunset            {_fmt_time(day.sunset)}")
-    print(f"  day length        {day.day_length_h:.2f} h")
+    print(f"  day length        {day_length(day.day_length_h)}")
     print(f"  max elevation     {day.max_elevation_deg:.2f} deg")
     print("  (sunrise/sunset: sun centre at -0.8333 deg, NREL SPA)")
     if len(day.path):
@@ -271,8 +278,8 @@ def cmd_irradiance(args) -> int:
     print("  month  " + " ".join(f"{c:>9}" for c, _ in cols) + "   (kWh/m2)")
     for m in range(1, 13):
         row = res.monthly.loc[m]
-        print(f"  {MONTH_ABBR[m - 1]:5}  " + " ".join(f"{row[k]:9.1f}" for _, k in cols))
-    print("  year   " + " ".join(f"{res.annual[k]:9.1f}" for _, k in cols))
+        print(f"  {MONTH_ABBR[m - 1]:5}  " + " ".join(f"{number(row[k], 1):>9}" for _, k in cols))
+    print("  year   " + " ".join(f"{number(res.annual[k], 1):>9}" for _, k in cols))
     print()
     print(f"  Horizon loss {res.horizon_loss_pct:.1f} % of the open-horizon plane irradiation: "
           f"beam {res.annual['horizon_loss_beam_kwh_m2']:.1f}, circumsolar "

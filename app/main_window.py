@@ -458,7 +458,7 @@ class MainWindow(QMainWindow):
 
     def _update_title(self) -> None:
         mark = "*" if self.document.dirty else ""
-        self.setWindowTitle(f"{mark}{self.document.title} — Tiltyard")
+        self.setWindowTitle(f"{mark}{self.document.title} · Tiltyard")
 
     def closeEvent(self, event) -> None:  # noqa: N802 - Qt override
         if not self.confirm_discard():

@@ -102,7 +102,7 @@ class PortfolioWindow(QWidget):
         super().__init__(parent, Qt.WindowType.Window)
         self.summary = summary
         self._open_row = open_row
-        self.setWindowTitle(f"Portfolio results — {Path(summary.path).name}")
+        self.setWindowTitle(f"Portfolio results · {Path(summary.path).name}")
         self.resize(1100, 720)
         layout = QVBoxLayout(self)
         self.header = QLabel(self._header_text())

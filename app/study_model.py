@@ -13,7 +13,7 @@ from datetime import date
 from PySide6.QtCore import QSortFilterProxyModel, Qt
 from PySide6.QtGui import QColor, QFont, QStandardItem, QStandardItemModel
 
-from tiltyard.engine.words import degree_text, option_name, schedule_words
+from tiltyard.engine.words import NO_VALUE, degree_text, number, option_name, schedule_words
 
 from . import theme
 
@@ -109,10 +109,10 @@ class StudyTableModel(QStandardItemModel):
             rows.append({
                 "order": i, "kind": opt.kind, "recommended": opt is rec,
                 "ceiling": opt.kind == "two-axis",
-                "note": degree_text(opt.label) + (f": {opt.note}" if opt.note else ""),
-                "text": [label, schedule_words(opt, year), f"{opt.annual_kwh_m2:.0f}",
+                "note": degree_text(opt.label + (f": {opt.note}" if opt.note else "")),
+                "text": [label, schedule_words(opt, year), number(opt.annual_kwh_m2),
                          f"{study.score(opt):.1f}", _pct(g_h), _pct(g_f),
-                         "–" if share is None else f"{share:.1f}", adjust],
+                         NO_VALUE if share is None else f"{share:.1f}", adjust],
                 "sort": [i, i, opt.annual_kwh_m2, study.score(opt),
                          -1e9 if g_h is None else g_h, -1e9 if g_f is None else g_f,
                          -1.0 if share is None else share,
@@ -134,7 +134,7 @@ def _font(bold: bool, italic: bool) -> QFont:
 
 def _pct(v) -> str:
     if v is None:
-        return "–"
+        return NO_VALUE
     return "0.0" if abs(v) < 0.05 else f"{v:+.1f}"
 
 

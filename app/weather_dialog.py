@@ -44,6 +44,7 @@ from tiltyard.engine.weather import (
     summary_text,
 )
 from tiltyard.engine.weather_check import read_weather_for_site
+from tiltyard.engine.words import user_text
 
 from . import theme
 from .engine_process import EngineCall
@@ -112,7 +113,7 @@ class WeatherDialog(QDialog):
             self.column_combos[key] = box
             form.addRow(text, box)
         self.label_combo = QComboBox()
-        self.label_combo.addItem("— choose —", None)
+        self.label_combo.addItem("(choose)", None)
         for key, text in LABELS:
             self.label_combo.addItem(text, key)
         form.addRow("Each timestamp marks", self.label_combo)
@@ -126,6 +127,7 @@ class WeatherDialog(QDialog):
 
         # -- what happened -----------------------------------------------------------
         self.status = QLabel("")
+        self.status.hide()
         self.status.setWordWrap(True)
         self.status.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
         lay.addWidget(self.status)
@@ -134,6 +136,11 @@ class WeatherDialog(QDialog):
         self.findings.setMinimumHeight(140)
         self.findings.hide()
         lay.addWidget(self.findings, 1)
+        # the room left over goes under what is shown (not between the rows), until the
+        # findings list shows and takes it
+        lay.addStretch(1)
+        self._filler = lay.count() - 1
+        self._layout = lay
 
         self.buttons = QDialogButtonBox(QDialogButtonBox.StandardButton.Cancel)
         self.use_button = self.buttons.addButton("Use this weather",
@@ -155,7 +162,12 @@ class WeatherDialog(QDialog):
 
     def _set_status(self, text: str, error: bool = False) -> None:
         self.status.setText(text)
+        self.status.setVisible(bool(text))
         self.status.setStyleSheet(f"color: {theme.ERROR};" if error else "")
+
+    def _show_findings(self, shown: bool) -> None:
+        self.findings.setVisible(shown)
+        self._layout.setStretch(self._filler, 0 if shown else 1)
 
     def _path_edited(self, _text: str) -> None:
         self._loaded = None
@@ -163,7 +175,7 @@ class WeatherDialog(QDialog):
         self._header = None
         self.use_button.setEnabled(False)
         self.mapping.hide()
-        self.findings.hide()
+        self._show_findings(False)
         self._set_status("")
 
     def _browse(self) -> None:
@@ -233,7 +245,7 @@ class WeatherDialog(QDialog):
             timezone = self._timezone()
         self._loaded = None
         self.use_button.setEnabled(False)
-        self.findings.hide()
+        self._show_findings(False)
         self._busy = True
         self.read_button.setEnabled(False)
         self._set_status(f"Reading {path.name}…")
@@ -247,7 +259,7 @@ class WeatherDialog(QDialog):
         if label == "Weather file" and self._busy:
             self._busy = False
             self.read_button.setEnabled(True)
-            self._set_status(f"Could not read the file: {message}", error=True)
+            self._set_status(f"Could not read the file: {user_text(message)}", error=True)
 
     def _show_result(self, result) -> None:
         self._busy = False
@@ -256,21 +268,22 @@ class WeatherDialog(QDialog):
             self._show_mapping(result)
             return
         if isinstance(result, LoadFailure):
-            self._set_status(f"Could not use the file: {result.message}", error=True)
+            self._set_status(f"Could not use the file: {user_text(result.message)}",
+                             error=True)
             return
         self._loaded = result
         weather = result.weather
         self._set_status(summary_text(weather) + ". Check the findings, then use it.")
         self.findings.clear()
         for f in weather.findings:
-            item = QListWidgetItem(finding_text(f))
+            item = QListWidgetItem(user_text(finding_text(f)))
             if f.severity != "info":
                 item.setForeground(theme.series_color(1) if f.severity == "warning"
                                    else theme.series_color(6))
             self.findings.addItem(item)
         if not weather.findings:
             self.findings.addItem("The importer noticed nothing to report.")
-        self.findings.show()
+        self._show_findings(True)
         self.use_button.setEnabled(True)
 
     def use(self) -> None:

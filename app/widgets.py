@@ -20,6 +20,7 @@ from PySide6.QtWidgets import (
 
 from tiltyard.engine.cautions import CAUTION
 from tiltyard.engine.site import SiteError
+from tiltyard.engine.words import field_message
 
 #: Delay between showing a view and drawing the result it was kept for, ms: long
 #: enough that the view's first paint has an event-loop turn to itself.
@@ -280,7 +281,7 @@ class ValidatedField(QWidget):
 
 def _reason(exc: Exception) -> str:
     if isinstance(exc, SiteError):
-        return f"{exc.value!r}: {exc.reason}" if hasattr(exc, "reason") else str(exc)
+        return field_message(exc.value, exc.reason, exc.field)
     return str(exc)
 
 

@@ -422,10 +422,12 @@ def monthly_sky(site: Site, ghi_clear, zenith, dni_extra, month, kwh_weight,
     has_sun = np.bincount(month, weights=ghi * w, minlength=13)[1:] > 0
     held = has_sun & ((kt < lo) | (kt > hi))
     if held.any():
-        notes.append(f"monthly clearness index outside the {lo}-{hi} range of the Erbs monthly "
-                     f"correlation in {_month_list(held)}: diffuse fraction taken at the range end")
+        notes.append(f"monthly clearness index outside the range of the Erbs monthly "
+                     f"correlation ({lo} to {hi}) in {_month_list(held)}: diffuse fraction "
+                     "taken at the range end")
     if not reached.all():
-        notes.append(f"monthly diffuse fraction not reached within 0 <= DHI <= GHI in "
+        notes.append(f"monthly diffuse fraction not reached with the diffuse part between "
+                     f"none and all of the global irradiance in "
                      f"{_month_list(~reached)}")
     return AllSky(ghi, dni, dhi, "; ".join(notes))
 

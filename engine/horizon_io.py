@@ -160,8 +160,8 @@ def _parse(text: str) -> HorizonProfile:
     lines = text.splitlines()
     first = next((ln for ln in lines if ln.strip() and not ln.lstrip().startswith("#")), None)
     if first is None:
-        raise HorizonFileError("(file)", "", "holds no horizon points; expected lines of "
-                               "'azimuth_deg,elevation_deg'")
+        raise HorizonFileError("(file)", "", "holds no horizon points; expected lines of an "
+                               "azimuth and an elevation in degrees, such as '180,12'")
     delimiter = ";" if ";" in first else ","
     order = (0, 1)
     azimuths: list[float] = []

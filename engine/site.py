@@ -21,6 +21,7 @@ from typing import Any
 from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 
 from . import site_limits as _limits
+from .words import figure
 
 #: Who a sheet is prepared for: the site's optional ``prepared_for`` object (format 2; a
 #: reader that does not know it ignores it, and it decides no figure).
@@ -97,11 +98,12 @@ def _number(field_name: str, value: Any, lo: float | None = None, hi: float | No
 def _range_text(lo, hi, unit):
     # degrees follow the number ("360°"); other units after a space ("100 m")
     u = "" if not unit else ("°" if unit in ("°", "deg") else f" {unit}")
+    # thousands separated as every figure is (words.figure: "100,000 m")
     if lo is not None and hi is not None:
-        return f"between {lo:g} and {hi:g}{u}"
+        return f"between {figure(lo)} and {figure(hi)}{u}"
     if lo is not None:
-        return f"at least {lo:g}{u}"
-    return f"at most {hi:g}{u}"
+        return f"at least {figure(lo)}{u}"
+    return f"at most {figure(hi)}{u}"
 
 
 def _first_dark_daylight_month(latitude_deg: float, ghi_kwh_m2_day) -> int | None:

@@ -25,7 +25,7 @@ import pandas as pd
 import pvlib
 
 #: Text to show with every figure from :func:`specific_yield`.
-LABEL = "indicative specific yield — not a system design"
+LABEL = "indicative specific yield, not a system design"
 
 #: Irradiance of standard test conditions, W/m² (1 kWp delivers 1 kW there).
 STC_IRRADIANCE_W_M2 = 1000.0

@@ -36,6 +36,10 @@ from .weather import (
 )
 from .weather_site import WeatherOptionError, load_weather_for_site
 
+#: The weather dialog's label of each reading option (a message names the option by it).
+OPTION_WORDS = {"timezone": "Time zone of the timestamps",
+                "timestamp_label": "Each timestamp marks", "columns": "Columns"}
+
 #: Text of :func:`~tiltyard.engine.weather_site.load_weather_for_site`'s message for a file in
 #: no typical-year format read without a column mapping.
 _NEEDS_MAPPING = "not a TMY3, TMY2 or EPW file"
@@ -105,7 +109,11 @@ def read_weather_for_site(path, site: Site, columns: dict | None = None,
             return _csv_header(p)
         return LoadFailure(str(exc), exc.line)
     except WeatherOptionError as exc:
-        return LoadFailure(f"{p.name}: {exc}")
+        # the dialog's own words: the option by its label, the reason without the file twice
+        reason = exc.reason.removeprefix(f"{p.name}: ")
+        reason = reason.removeprefix(f"{p.name} ")
+        label = OPTION_WORDS.get(exc.option, exc.option)
+        return LoadFailure(f"{p.name}: {label}: {reason}")
     except (OSError, ValueError) as exc:
         return LoadFailure(f"{p.name}: {exc}")
     problem = grid_step_problem(weather)

@@ -86,6 +86,60 @@ OPTION_NAMES = {"horizontal": "Horizontal", "rule-of-thumb": "Rule of thumb",
                 "two-axis": "Two-axis (ceiling)"}
 
 
+#: Between the ends of a range, and only there: ``"1 Apr–30 Sep"``, ``"0–360°"`` (en dash).
+RANGE_DASH = "–"
+
+#: A cell or figure with no value, and only that (em dash). The command line writes ``"-"``.
+NO_VALUE = "—"
+
+#: Between the thousands of every figure of 1,000 or more, in the app, on the sheet and at
+#: the command line alike: a comma (``"1,767 kWh/m²"``), plain ASCII, so the command line's
+#: text keeps the same rule; decimals take a point.
+THOUSANDS_SEP = ","
+
+
+# -- figures ----------------------------------------------------------------------------
+
+def number(value, decimals: int = 0, plain: bool = False) -> str:
+    """A figure with its thousands separated (:data:`THOUSANDS_SEP`): ``1767.4`` ->
+    ``"1,767"``, ``number(1767.44, 1)`` -> ``"1,767.4"``; :data:`NO_VALUE` for None or
+    NaN (``"-"`` with ``plain``, the command line's ASCII)."""
+    if value is None or not math.isfinite(float(value)):
+        return "-" if plain else NO_VALUE
+    text = f"{float(value):,.{decimals}f}"
+    return text if THOUSANDS_SEP == "," else text.replace(",", THOUSANDS_SEP)
+
+
+def figure(value) -> str:
+    """A limit or a setting in its shortest form with thousands separated: ``9000`` ->
+    ``"9,000"``, ``0.1`` -> ``"0.1"``, ``-500`` -> ``"-500"``."""
+    return f"{float(value):,g}" if THOUSANDS_SEP == "," else \
+        f"{float(value):,g}".replace(",", THOUSANDS_SEP)
+
+
+def value_range(lo, hi, unit: str = "", plain: bool = False) -> str:
+    """A range of values: ``"0–360°"``, ``"1–120 days"``; ``"0-360 deg"`` with ``plain``."""
+    dash = "-" if plain else RANGE_DASH
+    if unit in ("°", "deg"):
+        unit = " deg" if plain else "°"
+    elif unit:
+        unit = f" {unit}"
+    return f"{figure(lo)}{dash}{figure(hi)}{unit}"
+
+
+def day_length(hours) -> str:
+    """A length of time within a day in hours and minutes, to the minute: ``14.53`` ->
+    ``"14 h 32 min"``, ``24`` -> ``"24 h 00 min"``; :data:`NO_VALUE` for None or NaN.
+
+    Day length, direct sun and any other duration of the app, the sheet and the command
+    line (plain ASCII already) are written this way.
+    """
+    if hours is None or not math.isfinite(float(hours)):
+        return NO_VALUE
+    m = int(math.floor(float(hours) * 60.0 + 0.5))
+    return f"{m // 60} h {m % 60:02d} min"
+
+
 # -- months, degrees, directions ------------------------------------------------------
 
 def day_words(mmdd: str, year: int | None = None) -> str:
@@ -151,28 +205,67 @@ def plural(n: int, word: str, many: str | None = None) -> str:
     return f"{n} {word if n == 1 else (many or word + 's')}"
 
 
-#: Program words that engine messages may carry, and how a client reads them.
-_CLIENT_REWRITES = (
+#: Program words that engine messages may carry, and how a user reads them.
+_USER_REWRITES = (
     (re.compile(r"\s*\(pass reference_year= to choose another\)"), ""),
     (re.compile(r"timestamp_label='(start|end|middle)'"), r"timestamps marking the interval \1"),
+    (re.compile(r"\btimezone='([^'\n]+)'"), r"time zone “\1”"),
     (re.compile(r"\s*\(coefficients '[^']*'\)"), ""),
+    # a value quoted as code ('Europe/London', 'x') in typographic quotes
+    (re.compile(r"(?<![\w'])'([^'\n]+?)'(?![\w'])"), "“\\1”"),
+)
+
+#: Trade abbreviations and program names a client reads written out.
+_CLIENT_REWRITES = (
     (re.compile(r"\bfrom the ineichen clear sky\b"), "from the Ineichen-Perez clear-sky model"),
     (re.compile(r"\bpvlib monthly climatology\b"), "monthly climatology"),
-    (re.compile(r"\bGHI\b"), "global horizontal irradiation"),
+    (re.compile(r"(?<!“)\bGHI\b"), "global horizontal irradiation"),
 )
 
 
-def client_text(text: str) -> str:
-    """An engine statement as a client reads it on the sheet.
-
-    Degree signs for ``deg`` (:func:`degree_text`), no program parameter names
-    or code literals (``timestamp_label='end'`` becomes "timestamps marking the
-    interval end"), trade abbreviations written out.
-    """
+def user_text(text: str) -> str:
+    """An engine message as the app shows it: degree signs for ``deg``
+    (:func:`degree_text`), no program parameter names (``timestamp_label='end'``
+    becomes "timestamps marking the interval end"), values quoted as code
+    (``'x'``) in typographic quotes (“x”)."""
     text = degree_text(text)
+    for pattern, repl in _USER_REWRITES:
+        text = pattern.sub(repl, text)
+    return text
+
+
+def client_text(text: str) -> str:
+    """An engine statement as a client reads it on the sheet: :func:`user_text`, and
+    trade abbreviations written out."""
+    text = user_text(text)
     for pattern, repl in _CLIENT_REWRITES:
         text = pattern.sub(repl, text)
     return text
+
+
+def field_message(value, reason: str, name: str = "") -> str:
+    """What a form says of a text it refused, in the user's words.
+
+    ``reason`` is a :class:`~tiltyard.engine.site.SiteError` reason and ``name``
+    its field. A reason that names its field itself (starts with a capital:
+    ``"Distance must be at least 0.1 m"``) is kept. Otherwise the field's name
+    leads when it is words (``"Latitude must be between -90° and 90°"``; a
+    program name such as ``tilt_deg`` is left out), and a reason that judges
+    the value follows the typed text in quotes (``"“high” is not a number"``,
+    ``"Elevation: “x” is not a number"``). No program names, no repr.
+    """
+    reason = degree_text(str(reason).strip())
+    if reason[:1].isupper():
+        return reason
+    label = name.strip() if name and re.fullmatch(r"[A-Za-z][A-Za-z .()]*", name) else ""
+    label = label[:1].upper() + label[1:]
+    shown = str(value).strip() if value is not None else ""
+    if reason.startswith("is ") and shown:
+        return f"{label}: “{shown}” {reason}" if label else f"“{shown}” {reason}"
+    if label:
+        return f"{label} {reason}"
+    reason = reason.removeprefix("is ")
+    return reason[:1].upper() + reason[1:]
 
 
 def compass(azimuth_deg: float, points: int = 16) -> str:
@@ -207,16 +300,35 @@ def compass(azimuth_deg: float, points: int = 16) -> str:
     return names[int(math.floor((az % 360.0) / (360.0 / points) + 0.5)) % points]
 
 
+def _azimuth_shown(azimuth_deg: float, decimals: int) -> float:
+    """The azimuth as written: rounded half up to ``decimals`` (179.5 -> 180, never the
+    half-to-even 178.5 -> 178 of Python's round), then taken within 0-360."""
+    az = float(azimuth_deg)
+    if not math.isfinite(az):
+        raise ValueError(f"azimuth_deg = {azimuth_deg!r}: must be a finite number")
+    scale = 10.0 ** decimals
+    return (math.floor(az * scale + 0.5) / scale) % 360.0
+
+
+def azimuth(azimuth_deg: float, decimals: int = 0, plain: bool = False) -> str:
+    """An azimuth as every table, chart and readout writes it: ``"180°"``, ``"93.5°"``.
+
+    The one rounding of an azimuth (half up, then within 0-360: 359.7° reads ``"0°"``
+    to the degree), so a table and a chart show the same direction the same way.
+    ``plain`` writes ``"180 deg"`` (the command line).
+    """
+    return f"{_azimuth_shown(azimuth_deg, decimals):.{decimals}f}" + (" deg" if plain else "°")
+
+
 def bearing(azimuth_deg: float, plain: bool = False, decimals: int = 0) -> str:
     """An azimuth with its 16-point compass name: ``"180° (S)"``, ``"93.5° (E)"``.
 
-    The number is rounded to ``decimals`` and then taken within 0-360 (359.7°
-    reads ``"0° (N)"`` to the degree); the compass name is that of the azimuth
-    itself (:func:`compass`). ``plain`` writes ``"180 deg (S)"``.
+    The number is :func:`azimuth`'s; the compass name is that of the number shown
+    (:func:`compass`), so the same figure always carries the same name. ``plain``
+    writes ``"180 deg (S)"``.
     """
-    unit = " deg" if plain else "°"
-    shown = round(float(azimuth_deg), decimals) % 360.0
-    return f"{shown:.{decimals}f}{unit} ({compass(azimuth_deg)})"
+    return (f"{azimuth(azimuth_deg, decimals, plain)} "
+            f"({compass(_azimuth_shown(azimuth_deg, decimals))})")
 
 
 def plane_words(tilt_deg: float, azimuth_deg: float) -> str:
@@ -225,8 +337,9 @@ def plane_words(tilt_deg: float, azimuth_deg: float) -> str:
 
 
 def compass_tick(azimuth_deg: float, sep: str = " ") -> str:
-    """A chart tick at a multiple of 45°: ``"SE 135°"`` (8 points, azimuth within 0-360)."""
-    return f"{compass(azimuth_deg, 8)}{sep}{azimuth_deg % 360.0:.0f}°"
+    """A chart tick at a multiple of 45°: ``"SE 135°"`` (8 points, the number as
+    :func:`azimuth` writes it)."""
+    return f"{compass(_azimuth_shown(azimuth_deg, 0), 8)}{sep}{azimuth(azimuth_deg)}"
 
 
 # -- models, bases, mountings, options ----------------------------------------------------
@@ -509,12 +622,14 @@ def schedule_code(schedule) -> str:
                      f"{_get(p, 'azimuth_deg'):g}" for p in periods)
 
 
-__all__ = ["COMPASS_16", "COMPASS_8", "MIN_TILT_DEFAULT_DEG", "MODEL_NAMES", "MONTH_ABBR",
+__all__ = ["NO_VALUE", "RANGE_DASH", "THOUSANDS_SEP", "azimuth", "day_length", "figure",
+           "number",
+           "value_range", "COMPASS_16", "COMPASS_8", "MIN_TILT_DEFAULT_DEG", "MODEL_NAMES", "MONTH_ABBR",
            "MONTH_NAMES", "clear_sky_advice", "client_text", "key_heading", "min_tilt_sentence",
            "month_names", "plural", "prepared_for_words", "weakest_month_sentence",
            "MOUNTING_SENTENCES", "MOUNTING_WORDS", "OBJECTIVE_WORDS", "OPTION_NAMES", "SKY_CHOICE_WORDS",
            "TIME_BASIS_WORDS", "basis_label", "basis_words", "bearing", "compass",
-           "compass_tick", "day_month", "day_words", "degree_text", "degrees", "model_name", "month_list",
+           "compass_tick", "day_month", "field_message", "user_text", "day_words", "degree_text", "degrees", "model_name", "month_list",
            "mounting_sentence", "mounting_words", "objective_words", "option_name", "plane_words", "schedule_code",
            "schedule_sentence", "schedule_summary", "schedule_words", "sky_choice_words",
            "time_basis_words", "whole_month"]

@@ -11,7 +11,7 @@ from __future__ import annotations
 import datetime as _dt
 from dataclasses import dataclass, field
 
-from tiltyard.engine.words import TIME_BASIS_WORDS, day_month
+from tiltyard.engine.words import NO_VALUE, TIME_BASIS_WORDS, day_month, number
 
 #: Paper sizes in points (ISO 216 A4 is 210 x 297 mm; US Letter 8.5 x 11 in).
 PAPERS = {"a4": ("A4", 595.0, 842.0), "letter": ("US Letter", 612.0, 792.0)}
@@ -38,13 +38,13 @@ class SheetMeta:
 
 def kwh(v) -> str:
     """kWh/m² to the unit (annual and monthly irradiation)."""
-    return "–" if v is None else f"{float(v):.0f}"
+    return number(v)
 
 
 def pct(v, signed: bool = True) -> str:
     """A percentage to a tenth, signed; an en dash for None."""
     if v is None:
-        return "–"
+        return NO_VALUE
     v = float(v)
     if abs(v) < 0.05:
         return "0.0"
@@ -58,7 +58,7 @@ def coordinates(site) -> str:
 
 
 def location_line(site) -> str:
-    return (f"{coordinates(site)} · elevation {site.elevation_m:.0f} m · time zone "
+    return (f"{coordinates(site)} · elevation {number(site.elevation_m)} m · time zone "
             f"{site.timezone}")
 
 

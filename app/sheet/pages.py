@@ -146,7 +146,7 @@ def build_sheet(figures, sun, meta: SheetMeta | None = None, paper: str = "a4") 
     for i, page in enumerate(pages):
         _footer(m, ctx, page, i + 1, len(pages))
     return SheetDocument(paper, ctx.w, ctx.h, pages,
-                         f"Feasibility sheet — {ctx.site.name}", figures, meta, tuple(scales))
+                         f"Feasibility sheet: {ctx.site.name}", figures, meta, tuple(scales))
 
 
 def _pt(size: float, s: float) -> float:

@@ -17,6 +17,7 @@ lines are in chart coordinates (``chart_x``) and go back to azimuths on commit.
 from __future__ import annotations
 
 import math
+from pathlib import Path
 
 import numpy as np
 import pyqtgraph as pg
@@ -44,7 +45,16 @@ from tiltyard.engine.horizon import merged_profile
 from tiltyard.engine.horizon_io import read_horizon_csv, write_horizon_csv
 from tiltyard.engine.site import HorizonProfile, Obstacle, SiteError
 from tiltyard.engine.sunchart_design import chart_centre_deg, chart_x
-from tiltyard.engine.words import bearing, compass, model_name
+from tiltyard.engine.words import (
+    bearing,
+    compass,
+    compass_tick,
+    degrees,
+    field_message,
+    model_name,
+    number,
+    user_text,
+)
 
 from .. import plots, theme
 from ..engine_process import EngineCall
@@ -71,12 +81,13 @@ def _fmt(v: float, digits: int = 1) -> str:
 
 def _to_float(text: str, field: str, unit: str) -> float:
     t = text.strip().replace(",", ".")
+    in_unit = "degrees" if unit == "°" else unit
     if not t:
-        raise SiteError(field, text, f"is required: type a number in {unit}")
+        raise SiteError(field, text, f"is required: type a number in {in_unit}")
     try:
         value = float(t)
     except ValueError:
-        raise SiteError(field, text, f"is not a number (in {unit})") from None
+        raise SiteError(field, text, f"is not a number (type one in {in_unit})") from None
     if not math.isfinite(value):
         raise SiteError(field, text, "must be a finite number")
     return value
@@ -311,8 +322,10 @@ class HorizonView(View):
         self.delete_points_button = QPushButton("Delete selected")
         self.delete_points_button.clicked.connect(self.delete_selected_points)
         self.import_button = QPushButton("Import CSV…")
-        self.import_button.setToolTip("Two columns, azimuth_deg and elevation_deg (header "
-                                      "optional; comma or semicolon; decimal point)")
+        self.import_button.setToolTip("Two columns: azimuth (°, clockwise from north) and "
+                                      "elevation (°); a header line is optional; commas or "
+                                      "semicolons between them (with semicolons, a decimal "
+                                      "comma too)")
         self.import_button.clicked.connect(self._import_clicked)
         self.export_button = QPushButton("Export CSV…")
         self.export_button.clicked.connect(self._export_clicked)
@@ -464,8 +477,7 @@ class HorizonView(View):
         major = []
         for i in range(9):
             v = lo + 45.0 * i
-            az = int(round(v % 360.0))
-            major.append((v, f"{compass(az, 8)}\n{az}°"))
+            major.append((v, compass_tick(v, "\n")))
         minor = [(lo + 15.0 * i, "") for i in range(25) if i % 3]
         axis = self.plot.getAxis("bottom")
         axis.setTicks([major, minor])
@@ -543,12 +555,12 @@ class HorizonView(View):
         for p in result.planes:
             name = "Horizontal" if p is result.horizontal else p.label
             first = QStandardItem(name)
-            first.setToolTip(f"tilt {_fmt(p.surface_tilt)}°, azimuth "
-                             f"{_fmt(p.surface_azimuth)}° ({compass(p.surface_azimuth)})")
+            first.setToolTip(f"tilt {degrees(p.surface_tilt)}, azimuth "
+                             f"{bearing(p.surface_azimuth)}")
             cells = [first]
             for text, tip in (
-                    (f"{p.open_kwh_m2:.0f}", ""),
-                    (f"{p.site_kwh_m2:.0f}", ""),
+                    (number(p.open_kwh_m2), ""),
+                    (number(p.site_kwh_m2), ""),
                     (f"{p.loss_pct:.1f}", f"{p.loss_kwh_m2:.1f} kWh/m² a year"),
                     (f"{p.beam_loss_pct:.1f}", f"{p.beam_loss_kwh_m2:.1f} kWh/m² of beam; "
                                                f"sky diffuse {p.sky_diffuse_loss_pct:.1f} % "
@@ -564,7 +576,7 @@ class HorizonView(View):
         verb = "lost" if h.loss_kwh_m2 >= 0 else "gained"
         self.loss_figure.setText(
             f"Horizontal plane: {abs(h.loss_pct):.1f} % {verb} "
-            f"({abs(h.loss_kwh_m2):.0f} of {h.open_kwh_m2:.0f} kWh/m² a year)")
+            f"({number(abs(h.loss_kwh_m2))} of {number(h.open_kwh_m2)} kWh/m² a year)")
         try:
             sky = choose_basis(self.ctx.assessment).words
         except AssessmentError as exc:
@@ -672,7 +684,7 @@ class HorizonView(View):
     # -- profile edits ----------------------------------------------------------------
     def _point_moved(self, index: int, az: float, el: float) -> None:
         self.readout.setText(f"Point {index + 1}: azimuth {bearing(az % 360.0, decimals=1)}, "
-                             f"elevation {el:.1f}° — let go to keep it")
+                             f"elevation {el:.1f}°; let go to keep it")
         xs, ys = self.points.values()
         site = self.ctx.site
         try:
@@ -700,18 +712,21 @@ class HorizonView(View):
         for r in range(t.rowCount()):
             texts = [(t.item(r, c).text() if t.item(r, c) is not None else "") for c in (0, 1)]
             try:
-                az = _to_float(texts[0], "azimuth_deg", "deg")
-                el = _to_float(texts[1], "elevation_deg", "deg")
+                az = _to_float(texts[0], "Azimuth", "°")
+                el = _to_float(texts[1], "Elevation", "°")
                 if not 0.0 <= az <= 360.0:
-                    raise SiteError("azimuth_deg", texts[0], "must be between 0 and 360 deg")
-                HorizonProfile((az,), (el,))
+                    raise SiteError("Azimuth", texts[0], "must be between 0° and 360°")
+                try:
+                    HorizonProfile((az,), (el,))
+                except SiteError as exc:       # the profile's own limits, in the column's name
+                    raise SiteError("Elevation", texts[1], exc.reason) from None
             except SiteError as exc:
-                field = exc.field.split(".")[-1].split("[")[0]
-                self._table_error(r, f"row {r + 1}: {field} = {exc.value!r}: {exc.reason}")
+                self._table_error(r, f"Row {r + 1}: "
+                                     f"{field_message(exc.value, exc.reason, exc.field)}")
                 return None
             key = az % 360.0
             if key in rows_of:
-                self._table_error(r, f"row {r + 1}: azimuth {_fmt(az, 2)}° repeats row "
+                self._table_error(r, f"Row {r + 1}: azimuth {_fmt(az, 2)}° repeats row "
                                      f"{rows_of[key] + 1} (each direction once; 0 and 360 "
                                      "are the same)")
                 return None
@@ -841,7 +856,7 @@ class HorizonView(View):
                         for c, (name, *_rest) in enumerate(OBSTACLE_FIELDS, start=1)}
                 out.append(Obstacle(texts[0].strip() or f"obstacle {r + 1}", **vals))
             except SiteError as exc:
-                self.obstacle_error.setText(f"row {r + 1}: {exc.value!r}: {exc.reason}")
+                self.obstacle_error.setText(f"Row {r + 1}: {field_message(exc.value, exc.reason)}")
                 self.obstacle_error.show()
                 self._updating = True
                 try:
@@ -886,10 +901,22 @@ class HorizonView(View):
         self.ctx.runner.submit(self.channel("import"), job, self._imported,
                                label="Horizon import")
 
+    @staticmethod
+    def _file_words(exc: SiteError) -> str:
+        """A horizon file's fault in the user's words: the file, the line and column by
+        name, what is wrong (no field names, no repr)."""
+        name = Path(exc.file).name if exc.file else "the file"
+        if exc.field == "(file)":
+            return user_text(f"{name} {exc.reason}")
+        where = exc.field.replace("azimuth_deg", "azimuth").replace("elevation_deg",
+                                                                     "elevation")
+        return user_text(f"{name}, {where}: {field_message(exc.value, exc.reason)}")
+
     def _imported(self, result) -> None:
         if isinstance(result, SiteError):
-            self._io_show("error", f"Import failed, the horizon is unchanged: {result}")
-            self.ctx.notify("error", f"horizon import failed: {result}", "horizon import")
+            said = self._file_words(result)
+            self._io_show("error", f"Import failed, the horizon is unchanged: {said}")
+            self.ctx.notify("error", f"Horizon import failed: {said}", "horizon import")
             return
         if self._propose(horizon=result):
             self.ctx.resolve("horizon import")

@@ -42,10 +42,12 @@ from tiltyard.engine.assess import AssessmentError, assessment_part, choose_basi
 from tiltyard.engine.timegrid import REFERENCE_YEAR
 from tiltyard.engine.words import (
     MONTH_ABBR,
+    NO_VALUE,
     day_month,
     day_words,
     degree_text,
     model_name,
+    number,
     plane_words,
     sky_choice_words,
 )
@@ -310,6 +312,7 @@ class IrradianceView(View):
         self.day_widget = pg.GraphicsLayoutWidget()
         self.day_widget.setMinimumHeight(plots.CHART_MIN_HEIGHT_PX)
         self.day_plot = plots.plot_item()
+        self.day_plot.setMenuEnabled(False)     # pyqtgraph's menu is not in our words
         self.day_widget.addItem(self.day_plot, row=0, col=0)
         theme.style_plot(self.day_plot, "Irradiance (W/m²)", "Local clock time (h)")
         self.day_plot.getAxis("left").setWidth(62)     # room for "1400" beside the label
@@ -342,6 +345,7 @@ class IrradianceView(View):
         self.bars_widget = pg.GraphicsLayoutWidget()
         self.bars_widget.setMinimumHeight(plots.CHART_MIN_HEIGHT_PX)
         self.bars_plot = plots.plot_item()
+        self.bars_plot.setMenuEnabled(False)
         self.bars_widget.addItem(self.bars_plot, row=0, col=0)
         theme.style_plot(self.bars_plot, "Irradiation (kWh/m²/day)", "Month")
         self.bars_plot.getAxis("left").setWidth(62)    # room for "4.5" beside the label
@@ -446,7 +450,7 @@ class IrradianceView(View):
             self.sky_note.setText(str(exc))
             self.sky_note.setToolTip("")
             return
-        text = f"Sky basis — {basis.words} ({basis.reason})."
+        text = f"Sky basis: {basis.words} ({basis.reason})."
         tip = ""
         if basis.kind == "monthly":
             text += (" A synthetic hourly year scaled to the site's monthly mean daily GHI: "
@@ -683,9 +687,9 @@ class IrradianceView(View):
             name = _Item(degree_text(r.label))
             if r in shown:
                 name.setIcon(_swatch_icon(shown.index(r)))
-            loss = ("—" if r.horizon_loss_pct is None else f"{r.horizon_loss_pct:.1f}")
+            loss = (NO_VALUE if r.horizon_loss_pct is None else f"{r.horizon_loss_pct:.1f}")
             cells = [name, _Item(r.plane_text),
-                     _Item(f"{r.annual_kwh_m2:,.0f}", r.annual_kwh_m2),
+                     _Item(number(r.annual_kwh_m2), r.annual_kwh_m2),
                      _Item(loss, -1.0 if r.horizon_loss_pct is None else r.horizon_loss_pct),
                      _Item(r.sky_label)]
             for c in (2, 3):

@@ -502,7 +502,7 @@ class SheetView(View):
         # the dialog does not own its printer: keep it alive as long as the dialog
         self._preview_printer = self._printer()
         dlg = QPrintPreviewDialog(self._preview_printer, self)
-        dlg.setWindowTitle("Print preview — feasibility sheet")
+        dlg.setWindowTitle("Print preview: feasibility sheet")
         dlg.paintRequested.connect(self.paint_on)
         self.exec_dialog(dlg)
         return dlg

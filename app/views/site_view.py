@@ -29,7 +29,7 @@ from PySide6.QtWidgets import (
 )
 
 from tiltyard.engine.site import ALBEDO_PRESETS, Plane, SiteError, parse_coordinate
-from tiltyard.engine.words import MONTH_ABBR, MOUNTING_WORDS
+from tiltyard.engine.words import MONTH_ABBR, MOUNTING_WORDS, azimuth, field_message, figure
 
 from .. import places
 from ..widgets import ValidatedField, View
@@ -41,7 +41,8 @@ def _number(text: str, field: str, lo: float, hi: float, unit: str) -> float:
     except ValueError:
         raise SiteError(field, text, "is not a number") from None
     if not math.isfinite(value) or not lo <= value <= hi:
-        raise SiteError(field, text, f"must be between {lo:g} and {hi:g} {unit}".strip())
+        u = "°" if unit == "°" else (f" {unit}" if unit else "")
+        raise SiteError(field, text, f"must be between {figure(lo)}{u} and {figure(hi)}{u}")
     return value
 
 
@@ -112,7 +113,7 @@ class SiteView(View):
         form.addRow("Longitude (east +)", self.longitude)
         form.addRow("", self.coords_note)
         self.elevation = ValidatedField(
-            lambda t: _number(t, "elevation_m", -500, 9000, "m"), "above sea level", "m")
+            lambda t: _number(t, "Elevation", -500, 9000, "m"), "above sea level", "m")
         self.elevation.accepted.connect(lambda v: self._propose(elevation_m=v))
         form.addRow("Elevation", self.elevation)
 
@@ -153,7 +154,7 @@ class SiteView(View):
         for k, v in ALBEDO_PRESETS.items():
             self.albedo_preset.addItem(f"{k} ({v:.2f})", v)
         self.albedo_preset.activated.connect(self._preset_picked)
-        self.albedo = ValidatedField(lambda t: _number(t, "albedo", 0, 1, ""), "0 to 1")
+        self.albedo = ValidatedField(lambda t: _number(t, "Albedo", 0, 1, ""), "0 to 1")
         self.albedo.accepted.connect(lambda v: self._propose(albedo=v))
         row.addWidget(self.albedo_preset)
         row.addWidget(self.albedo, 1)
@@ -468,13 +469,15 @@ class SiteView(View):
             cells = [self.planes.item(r, c) for c in range(3)]
             texts = [c.text() if c is not None else "" for c in cells]
             try:
-                tilt = _number(texts[1], f"planes[{r}].tilt_deg", 0, 90, "°")
-                az = _number(texts[2], f"planes[{r}].azimuth_deg", 0, 360, "°")
+                tilt = _number(texts[1], "Tilt", 0, 90, "°")
+                az = _number(texts[2], "Azimuth", 0, 360, "°")
                 box = self.planes.cellWidget(r, 3)
                 mounting = box.currentData() if box is not None else "flush"
                 planes.append(Plane(texts[0].strip() or f"plane {r + 1}", tilt, az, mounting))
             except (SiteError, ValueError) as exc:
-                self.planes_error.setText(f"row {r + 1}: {exc}")
+                said = (field_message(exc.value, exc.reason, exc.field)
+                        if isinstance(exc, SiteError) else str(exc))
+                self.planes_error.setText(f"Row {r + 1}: {said}")
                 self.planes_error.show()
                 for c in cells:
                     if c is not None:
@@ -495,7 +498,7 @@ class SiteView(View):
             self.longitude.set_text(_fmt(site.longitude_deg))
             self.coords_note.setText(f"{_dms(site.latitude_deg, 'latitude')}, "
                                      f"{_dms(site.longitude_deg, 'longitude')} · equator-facing "
-                                     f"azimuth {site.equator_azimuth_deg:.0f}°")
+                                     f"azimuth {azimuth(site.equator_azimuth_deg)}")
             self.elevation.set_text(_fmt(site.elevation_m, 1))
             if not self.timezone.lineEdit().hasFocus():
                 self.timezone.setCurrentText(site.timezone)

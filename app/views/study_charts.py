@@ -19,9 +19,10 @@ from PySide6.QtWidgets import QHBoxLayout, QWidget
 from tiltyard.engine.words import (
     MONTH_ABBR,
     bearing,
-    compass,
     compass_tick,
     degree_text,
+    degrees,
+    number,
     option_name,
     schedule_words,
 )
@@ -146,7 +147,7 @@ class StudyChartDrawing:
         lo, hi = float(np.nanmin(kwh)), float(kwh[i])
         self._curve_span = (lo, hi)
         ax = 0.0 if tilt[i] < 20 else (1.0 if tilt[i] > 70 else 0.5)
-        label = pg.TextItem(f"best {tilt[i]:.0f}°: {kwh[i]:.0f} kWh/m²", color=theme.ACCENT,
+        label = pg.TextItem(f"best {degrees(tilt[i])}: {number(kwh[i])} kWh/m²", color=theme.ACCENT,
                             anchor=(ax, 1.1))
         label.setFont(theme.plot_font(8.5))
         label.setPos(tilt[i], kwh[i])
@@ -285,7 +286,7 @@ class StudyChartDrawing:
         self._map_overlay.append(star)
         self.map_markers = [("optimum", opt_x, g_tilt)]
         self.map_labels = []
-        labels = [(f"best {g_tilt:.0f}° / {g_az:.0f}° {compass(g_az)}", opt_x, g_tilt)]
+        labels = [(f"best {degrees(g_tilt)} / {bearing(g_az)}", opt_x, g_tilt)]
         plane_options = [o for o in study.options if o.kind == "plane"]
         for pl, opt in zip(site.planes, plane_options, strict=False):
             px = float(_azimuth_x(pl.azimuth_deg, eq))

@@ -38,8 +38,10 @@ from tiltyard.engine.words import (
     MONTH_ABBR,
     MOUNTING_WORDS,
     degree_text,
+    degrees,
     model_name,
     mounting_words,
+    number,
     schedule_words,
 )
 
@@ -67,33 +69,64 @@ _MESSAGE_FIELDS = (("tilt range", ("tilt_min_deg", "tilt_max_deg")),
                    ("switch", ("switch_a", "switch_b")),
                    ("months", ("months",)))
 
+#: The editor's label of each engine option a message may name.
+_LABELS = {"tilt_step_deg": "Tilt step", "azimuth_deg": "Azimuth",
+           "min_days_between": "Min. period", "switch_dates": "Switch on", "months": "Months"}
+
+
+def _form_words(message: str, kw: dict) -> str:
+    """An engine message about the study options, in the editor's own words: what is
+    wrong and what to do, by the fields' labels."""
+    if message.startswith("tilt range"):
+        lo, hi = kw["tilt_min_deg"], kw["tilt_max_deg"]
+        for label, which, v in (("Tilt from", "lowest", lo), ("Tilt to", "highest", hi)):
+            if not 0.0 <= v <= 90.0:
+                return (f"{label}: the {which} tilt ({degrees(v)}) must be between 0° (flat) "
+                        "and 90° (vertical).")
+        return (f"Tilt range: the lowest tilt ({degrees(lo)}) must be between 0° and the "
+                f"highest tilt ({degrees(hi)}).")
+    m = re.match(r"(\w+) = .*?: (.*)$", message)
+    if m is None or m.group(1) not in _LABELS:
+        return message
+    reason = degree_text(m.group(2)).replace("(min_days_between)", "(Min. period)")
+    label = _LABELS[m.group(1)]
+    return f"{label} {reason}." if reason.startswith("must") else f"{label}: {reason}."
+
+
 def _float(text: str, what: str) -> float:
+    if not text.strip():
+        raise ValueError(f"{what}: type a number of degrees")
     try:
         value = float(text.strip().replace(",", ".").rstrip("°").strip())
     except ValueError:
-        raise ValueError(f"{what} {text!r} is not a number") from None
+        raise ValueError(f"{what}: “{text.strip()}” is not a number") from None
     if not math.isfinite(value):
-        raise ValueError(f"{what} {text!r} is not a finite number")
+        raise ValueError(f"{what}: “{text.strip()}” is not a finite number")
     return value
 
 
 def _int(text: str, what: str) -> int:
+    if not text.strip():
+        raise ValueError(f"{what}: type a whole number of days")
     try:
         return int(text.strip())
     except ValueError:
-        raise ValueError(f"{what} {text!r} is not a whole number of days") from None
+        raise ValueError(f"{what}: “{text.strip()}” is not a whole number of days") from None
 
 
 def _mmdd(text: str, year: int) -> str:
     t = text.strip()
+    if not t:
+        raise ValueError("Switch on: type a date as MM-DD, e.g. 10-01 for 1 October")
     m = re.fullmatch(r"(\d{1,2})-(\d{1,2})", t)
     if m is None:
-        raise ValueError(f"switch date {text!r}: expected MM-DD, e.g. 10-01 for 1 October")
+        raise ValueError(f"Switch on: “{t}” is not a date; type it as MM-DD, e.g. 10-01 for "
+                         "1 October")
     try:
         date(year, int(m.group(1)), int(m.group(2)))
     except ValueError:
-        raise ValueError(f"switch date {text!r}: no such day in {year} (MM-DD, month "
-                         "01-12)") from None
+        raise ValueError(f"Switch on: “{t}” is no day of {year}; type it as MM-DD, month "
+                         "01 to 12") from None
     return f"{int(m.group(1)):02d}-{int(m.group(2)):02d}"
 
 
@@ -222,11 +255,11 @@ class StudyView(StudyChartDrawing, View):
                                      "faces a given direction (clockwise from north, "
                                      "south = 180°).")
         self.azimuth_mode.currentIndexChanged.connect(self._azimuth_mode_changed)
-        self.azimuth = self._field("azimuth_deg", "0-360", "°")
+        self.azimuth = self._field("azimuth_deg", "0–360", "°")
         al.addWidget(self.azimuth_mode, 0, Qt.AlignmentFlag.AlignTop)
         al.addWidget(self.azimuth, 1)
         form.addRow("Azimuth", az_row)
-        self.min_days = self._field("min_days_between", "1-120", "days")
+        self.min_days = self._field("min_days_between", "1–120", "days")
         self.min_days.setToolTip("Shortest time a schedule keeps one tilt (days between two "
                                  "adjustments)")
         self.tilt_step.setToolTip("Tilts the rack can be set to: from the lowest tilt in "
@@ -351,11 +384,11 @@ class StudyView(StudyChartDrawing, View):
     def _basic(self, name: str, text: str):
         """The value typed in one field (format only; the engine judges ranges)."""
         if name in ("tilt_min_deg", "tilt_max_deg", "tilt_step_deg", "azimuth_deg"):
-            what = {"tilt_min_deg": "lowest tilt", "tilt_max_deg": "steepest tilt",
-                    "tilt_step_deg": "tilt step", "azimuth_deg": "azimuth"}[name]
+            what = {"tilt_min_deg": "Tilt from", "tilt_max_deg": "Tilt to",
+                    "tilt_step_deg": "Tilt step", "azimuth_deg": "Azimuth"}[name]
             return _float(text, what)
         if name == "min_days_between":
-            return _int(text, "shortest period")
+            return _int(text, "Min. period")
         return _mmdd(text, self._year)
 
     def _value(self, name: str, override: dict):
@@ -395,19 +428,26 @@ class StudyView(StudyChartDrawing, View):
             if None in sw:
                 raise ValueError("switch dates: give both dates as MM-DD")
             if sw[0] == sw[1]:
-                raise ValueError(f"switch dates {sw[0]} and {sw[1]}: the two dates must "
+                raise ValueError(f"switch dates: the two dates ({sw[0]} and {sw[1]}) must "
                                  "differ")
         return StudyOptions(**kw)
 
     def _check_field(self, name: str, text: str):
         """Parse one field and let the engine judge it with the other fields as they are."""
         value = self._basic(name, text)
+        kw = self._kwargs({name: value})
         try:
-            self._validate(self._kwargs({name: value}))
+            self._validate(kw)
         except ValueError as exc:
             if name in self._fields_of(str(exc)):
-                raise
+                raise ValueError(self._words(str(exc), kw)) from None
         return value
+
+    @staticmethod
+    def _words(message: str, kw: dict) -> str:
+        if message.startswith("switch dates: "):      # the editor's own check
+            return "Switch on: " + message.removeprefix("switch dates: ") + "."
+        return _form_words(message, kw)
 
     def _collect(self) -> StudyOptions | None:
         """Options from the editor, or None (with the messages shown) if refused."""
@@ -426,11 +466,12 @@ class StudyView(StudyChartDrawing, View):
             opts = self._validate(kw)
         except ValueError as exc:
             names = self._fields_of(str(exc))
+            said = self._words(str(exc), kw)
             for name, f in self.fields.items():
-                f.set_error(str(exc) if name in names else "")
+                f.set_error(said if name in names else "")
             if "months" in names:
-                self.months_error.setText("tick the months to optimise for" if not kw["months"]
-                                          else str(exc))
+                self.months_error.setText("Tick the months to optimise for." if not kw["months"]
+                                          else said)
                 self.months_error.show()
             return None
         for f in self.fields.values():
@@ -537,7 +578,7 @@ class StudyView(StudyChartDrawing, View):
     def refresh(self) -> None:
         super().refresh()
         a = self.ctx.assessment
-        self.heading.setText(f"Tilt study — {a.site.name}")
+        self.heading.setText(f"Tilt study · {a.site.name}")
         self._sync_enabled()
         if self._options is None:
             self._options = self._collect()
@@ -571,7 +612,7 @@ class StudyView(StudyChartDrawing, View):
             self.bound.hide()
             return
         self.bound.setText(f"Under a clear sky every day the same plane would get "
-                           f"{bound[rec.label]:,.0f} kWh/m² a year: the upper bound, not an "
+                           f"{number(bound[rec.label])} kWh/m² a year: the upper bound, not an "
                            "expected value.")
         self.bound.show()
 
@@ -611,7 +652,7 @@ class StudyView(StudyChartDrawing, View):
                     f"{objective} objective.")
         self.recommendation.setText(
             f"<span style='color:{accent}; font-weight:600'>{head}: "
-            f"{degree_text(rec.label)}</span> — {schedule_words(rec, year)}.{gain}<br>"
+            f"{degree_text(rec.label)}</span>: {schedule_words(rec, year)}.{gain}<br>"
             f"<span style='color:{theme.MUTED}'>Rule: {degree_text(study.recommendation_rule)}"
             ". The two-axis row is a ceiling to judge the others by, not a recommendation."
             "</span>")

@@ -45,7 +45,15 @@ from PySide6.QtWidgets import (
 
 from tiltyard.engine.sunchart import sun_chart
 from tiltyard.engine.sunchart_design import chart_x, polar_xy, skyline_peaks
-from tiltyard.engine.words import MONTH_ABBR, TIME_BASIS_WORDS, bearing, compass, compass_tick
+from tiltyard.engine.words import (
+    MONTH_ABBR,
+    NO_VALUE,
+    TIME_BASIS_WORDS,
+    bearing,
+    compass,
+    compass_tick,
+    day_length,
+)
 
 from .. import plots, theme
 from ..engine_process import EngineCall
@@ -78,17 +86,13 @@ PER_TURN = 6
 # -- small formatting helpers (no physics) -------------------------------------------
 
 def hhmm(hours: float) -> str:
-    """Hours of the day as ``HH:MM`` (rounded to the minute); an em dash for NaN."""
+    """Hours of the day as ``HH:MM`` (rounded to the minute); no value for NaN."""
     if hours is None or not math.isfinite(hours):
-        return "—"
+        return NO_VALUE
     m = int(round(hours * 60.0)) % (24 * 60)
     return f"{m // 60:02d}:{m % 60:02d}"
 
 
-def duration(hours: float) -> str:
-    """A duration as ``15 h 38 min``."""
-    m = int(round(hours * 60.0))
-    return f"{m // 60} h {m % 60:02d} min"
 
 
 def split_at_edges(azimuth_deg, elevation_deg, centre_deg: float):
@@ -767,7 +771,7 @@ class SunPathView(View):
         else:
             lines.append(f"Sunrise {hhmm(s.sunrise_h)} · sunset {hhmm(s.sunset_h)}")
             lines.append(f"Solar noon {hhmm(s.solar_noon_h)}")
-            lines.append(f"Day length {duration(s.day_length_h)}")
+            lines.append(f"Day length {day_length(s.day_length_h)}")
             lines.append(f"Highest elevation {s.max_elevation_deg:.1f}°")
         if s.polar != "night":
             if s.direct_sun_h <= 0.0:
@@ -780,13 +784,13 @@ class SunPathView(View):
                 if first or last:
                     said = ", ".join(x for x in (first, last) if x)
                     lines.append(f"The sun {said}.")
-                lines.append(f"Direct sun on the site: {duration(s.direct_sun_h)}")
+                lines.append(f"Direct sun on the site: {day_length(s.direct_sun_h)}")
         self.day_text.setText("<br>".join(lines))
 
     def _show_events(self, chart) -> None:
         heads = ["Date", "Sunrise\n(hh:mm)", "Solar noon\n(hh:mm)", "Sunset\n(hh:mm)",
-                 "Day length\n(h)", "Elevation\nat noon (°)", "Sun clears\nhorizon\n(hh:mm)",
-                 "Sun behind\nhorizon\n(hh:mm)", "Direct sun\n(h)"]
+                 "Day length", "Elevation\nat noon (°)", "Sun clears\nhorizon\n(hh:mm)",
+                 "Sun behind\nhorizon\n(hh:mm)", "Direct sun"]
         m = self.events_model
         hdr = self.table.horizontalHeader()
         # fixed sections while filling: fitting a column to its contents after every
@@ -800,17 +804,17 @@ class SunPathView(View):
             else:
                 rise, sset = hhmm(r.sunrise_h), hhmm(r.sunset_h)
             if polar == "night":
-                clears = behind = "—"
+                clears = behind = NO_VALUE
             elif r.direct_sun_h <= 0.0:
                 clears = behind = "no sun"
             else:
                 clears = hhmm(r.clears_horizon_h) if math.isfinite(r.clears_horizon_h) else (
-                    "at sunrise" if polar is None else "—")
+                    "at sunrise" if polar is None else NO_VALUE)
                 behind = hhmm(r.behind_horizon_h) if math.isfinite(r.behind_horizon_h) else (
-                    "at sunset" if polar is None else "—")
+                    "at sunset" if polar is None else NO_VALUE)
             cells = [f"{r.date.day} {MONTH_ABBR[r.date.month - 1]}", rise,
-                     hhmm(r.solar_noon_h), sset, f"{r.day_length_h:.2f}",
-                     f"{r.noon_elevation_deg:.1f}", clears, behind, f"{r.direct_sun_h:.2f}"]
+                     hhmm(r.solar_noon_h), sset, day_length(r.day_length_h),
+                     f"{r.noon_elevation_deg:.1f}", clears, behind, day_length(r.direct_sun_h)]
             items = []
             for i, text in enumerate(cells):
                 it = QStandardItem(text)
@@ -883,5 +887,5 @@ class SunPathView(View):
                 f"azimuth {bearing(az, decimals=1)} · elevation {el:.1f}°{hidden}")
 
 
-__all__ = ["SunPathView", "chart_x", "duration", "hhmm", "polar_xy",
+__all__ = ["SunPathView", "chart_x", "hhmm", "polar_xy",
            "split_at_edges"]

@@ -99,7 +99,7 @@ def tilt_study(site: Site, opts: StudyOptions | None = None,
         rot_tilt = min(abs(site.latitude_deg), 90.0)
         options.append(st.fixed(f"Rule of thumb: tilt = latitude ({rot_tilt:.0f} deg)",
                                 "rule-of-thumb", rot_tilt, site.equator_azimuth_deg,
-                                "rule of thumb, not an optimum: tilt equal to |latitude|, "
+                                "rule of thumb, not an optimum: tilt equal to the latitude, north or south, "
                                 "facing the equator"))
     report(0.35, "tilt and azimuth grid")
     grid_pct, grid_opt = st.grid()
@@ -198,9 +198,10 @@ class _Scorer:
                                                      len(azimuths))[:, :, ai]
         self.sched_tilts, self.sched_az = tilts, opt_az
         label = ("Best plane for the site" if opts.mounting == "flush" else "Optimal fixed")
-        note = (f"optimum over tilts {tilts[0]:g}-{tilts[-1]:g} by {opts.tilt_step_deg:g} deg"
+        note = (f"optimum over tilts from {tilts[0]:g} deg to {tilts[-1]:g} deg in steps of "
+                f"{opts.tilt_step_deg:g} deg"
                 + (", azimuth fixed" if opts.azimuth_deg is not None
-                   else ", azimuth free (1 deg)"))
+                   else ", azimuth free (in steps of 1 deg)"))
         if opts.mounting == "flush":
             note += "; a reference for the roof planes, which the panels follow"
         return self.fixed(f"{label} ({opt_tilt:g} deg, azimuth {opt_az:g} deg)",

@@ -455,7 +455,7 @@ def _to_numeric(raw: pd.Series, lines: np.ndarray, file: str, column: str,
         raise WeatherImportError(
             file, int(lines[i]),
             f"column {column!r}: value {raw.iloc[i]!r} is not a number "
-            "(expected a decimal number, or empty/NaN for missing)",
+            "(expected a decimal number, or empty or 'NaN' for a missing value)",
         )
     return values
 

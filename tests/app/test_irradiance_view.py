@@ -261,7 +261,7 @@ def test_a_broken_csv_shows_the_line_and_keeps_the_sky(qtbot, make_ctx, idle, tm
     _map_columns(dlg, {"timestamp": "Time (UTC)", "ghi": "GHI W/m2"}, "start", "UTC")
     qtbot.mouseClick(dlg.read_button, Qt.MouseButton.LeftButton)
     idle(ctx.runner)
-    assert "line 4" in dlg.message and "'abc'" in dlg.message
+    assert "line 4" in dlg.message and "“abc”" in dlg.message
     assert not dlg.use_button.isEnabled()
     assert ctx.assessment is before and ctx.site is site_before
     dlg.reject()

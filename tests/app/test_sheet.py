@@ -96,7 +96,7 @@ def test_pdf_has_every_section_and_the_engines_numbers(lark_sheet, artefacts_dir
     rec = next(r for r in d["options"] if r["label"] == d["recommended"])
     # the key figures as printed are the JSON document's, rounded for reading
     ops = {o.role: o.text for p in result.document.pages for o in p.texts()}
-    annual = float(re.match(r"(\d+) kWh/m²", ops["key.annual"]).group(1))
+    annual = float(re.match(r"([\d,]+) kWh/m²", ops["key.annual"]).group(1).replace(",", ""))
     assert annual == pytest.approx(rec["annual_kwh_m2"], abs=0.5)
     for role, key in (("key.gain_horizontal", "gain_vs_horizontal_pct"),
                       ("key.gain_fixed", "gain_vs_fixed_optimal_pct")):

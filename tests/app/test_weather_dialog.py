@@ -86,9 +86,9 @@ def test_a_mapped_read_passes_the_form_to_the_engine_call(qtbot, make_ctx, idle,
     dlg.read()
     idle(ctx.runner)
     assert calls[-1].args[2:] == ({"timestamp": "Time (UTC)", "ghi": "GHI W/m2"}, "end", "UTC")
-    assert dlg.message == ("Could not use the file: log.csv, line 3: column 'GHI W/m2': "
-                           "value 'x' is not a number (expected a decimal number, or "
-                           "empty/NaN for missing)")
+    assert dlg.message == ("Could not use the file: log.csv, line 3: column “GHI W/m2”: "
+                           "value “x” is not a number (expected a decimal number, or "
+                           "empty or “NaN” for a missing value)")
     assert not dlg.use_button.isEnabled()
     dlg.reject()
 
@@ -109,3 +109,59 @@ def test_a_typical_year_file_comes_back_loaded_with_its_findings(qtbot, make_ctx
                for i in range(dlg.findings.count()))
     assert not dlg.mapping.isVisible()
     dlg.reject()
+
+
+def _row_gaps(dlg) -> list[tuple[str, int]]:
+    """Empty height between the texts of the dialog's rows, top to bottom, up to the
+    buttons (which sit at the foot): the gap between two rows' boxes plus the height a
+    row's box has beyond what its content needs (a label given more height than its
+    lines draws them centred in blank space). The findings list may take any height."""
+    lay = dlg.layout()
+    rows = []
+    for i in range(lay.count()):
+        item = lay.itemAt(i)
+        w = item.widget()
+        if item.spacerItem() is not None or (w is not None and not w.isVisible()):
+            continue
+        if w is dlg.buttons:
+            break
+        g = item.geometry()
+        if g.height() <= 0:
+            continue
+        if w is dlg.findings:
+            need = g.height()
+        elif item.hasHeightForWidth():
+            need = item.heightForWidth(g.width())
+        else:
+            need = item.sizeHint().height()
+        rows.append((type(w).__name__ if w is not None else "row", g, max(0, g.height() - need)))
+    return [(f"{a[0]} -> {b[0]}", b[1].top() - a[1].bottom() + (a[2] + b[2]) // 2)
+            for a, b in zip(rows, rows[1:], strict=False)]
+
+
+def test_no_large_gaps_with_or_without_the_column_mapping(qtbot, make_ctx, idle, tmp_path):
+    ctx = make_ctx("larkmoor-dairy")
+    path = tmp_path / "log.csv"
+    path.write_text("Time (UTC),GHI W/m2\n" + "".join(
+        f"2023-01-01 {h:02d}:00,0\n" for h in range(24)), encoding="utf-8")
+    tmy3 = TMY3_GREENSBORO
+    for size in ((1024, 600), (1280, 720)):
+        for case in ("empty", "mapping", "findings"):
+            dlg = _dialog(qtbot, ctx)
+            dlg.resize(*size)
+            if case != "empty":
+                dlg.path_edit.setText(str(path if case == "mapping" else tmy3))
+                dlg.read()
+                idle(ctx.runner)
+            qtbot.wait(20)
+            assert dlg.mapping.isVisible() == (case == "mapping")
+            assert dlg.findings.isVisible() == (case == "findings")
+            gaps = _row_gaps(dlg)
+            assert gaps, "no rows laid out"
+            spacing = dlg.layout().spacing()
+            # rows follow one another at the layout's spacing (a wrapped label's rounding
+            # aside): nothing is spread over the dialog's height
+            assert all(g <= spacing + 4 for _w, g in gaps), (size, case, gaps)
+            if case == "findings":                      # the list takes the room left
+                assert dlg.findings.geometry().bottom() >= dlg.buttons.geometry().top() - 30
+            dlg.reject()

@@ -20,6 +20,7 @@ import pypdf
 import pytest
 
 from tiltyard.app.cli import main
+from tiltyard.engine.words import number
 
 FLAGS = ["--tilt-step", "5", "--mounting", "fixed-rack"]   # a coarse rack keeps the tests fast
 PEOPLE = ["--preparer", "Jane Doe", "--organisation", "Example Solar Ltd",
@@ -78,7 +79,7 @@ def test_pdf_figures_are_the_study_json_numbers(run):
     text = _text(run["files"]["pdf"])
     d = run["study"]
     rec = next(r for r in d["options"] if r["label"] == d["recommended"])
-    assert f"{rec['annual_kwh_m2']:.0f} kWh/m² a year on the plane" in text
+    assert f"{number(rec['annual_kwh_m2'])} kWh/m² a year on the plane" in text
     assert f"{rec['gain_vs_horizontal_pct']:+.1f} % over a horizontal plane" in text
     g = rec["gain_vs_fixed_optimal_pct"]
     assert (f"{g:+.1f} % over the" if abs(g) >= 0.05 else "0.0 % over the fixed") in text
@@ -86,7 +87,7 @@ def test_pdf_figures_are_the_study_json_numbers(run):
     gp = 100.0 * (rec["annual_kwh_m2"] / plane["annual_kwh_m2"] - 1.0)
     assert f"{gp:+.1f} % over the existing plane “{plane['label']}”" in text
     for r in d["options"]:                   # the options table: every annual figure
-        assert f" {r['annual_kwh_m2']:.0f} " in text, r["label"]
+        assert f" {number(r['annual_kwh_m2'])} " in text, r["label"]
     for words in ("Larkmoor dairy, milking-shed roof", "Jane Doe, Example Solar Ltd",
                   "12 May 2025", "Key figures", "Sun path", "Options compared", "Assumptions",
                   "Cautions", "Reproducibility", "Tiltyard ", "roof access"):
@@ -106,11 +107,11 @@ def test_flush_roof_sheet_leads_with_the_roof_on_the_monthly_basis(tmp_path):
                                                  "two-axis"}
     rec = next(r for r in d["options"] if r["label"] == d["recommended"])
     text = _text(pdf)
-    assert (f"{rec['annual_kwh_m2']:.0f} kWh/m² a year on the plane of this roof as it is, "
+    assert (f"{number(rec['annual_kwh_m2'])} kWh/m² a year on the plane of this roof as it is, "
             "on the site's monthly irradiation values") in text
     assert f"{rec['share_of_best_plane_pct']:.1f} % of the best plane for the site" in text
     bound = doc["clear_sky_bound_kwh_m2"][rec["label"]]
-    assert f"{bound:.0f} kWh/m² under a clear sky every day: the upper bound" in text
+    assert f"{number(bound)} kWh/m² under a clear sky every day: the upper bound" in text
     assert "seasonal" not in text.lower() or "Two-season" not in text
 
 

@@ -179,7 +179,7 @@ def test_monthly_note_names_months_outside_the_erbs_range(larkmoor_year):
     # the Erbs et al. (1982) monthly correlation was fitted for 0.3-0.8 (Duffie &
     # Beckman, sec. 2.12)
     assert larkmoor_year.note.startswith(MONTHLY_NOTE)
-    assert "outside the 0.3-0.8 range" in larkmoor_year.note
+    assert "outside the range of the Erbs monthly correlation (0.3 to 0.8)" in larkmoor_year.note
     assert "Jan, Nov, Dec" in larkmoor_year.note
     assert "not reached" not in larkmoor_year.note
 

@@ -97,10 +97,10 @@ def test_elevation_range_covers_earth_and_refuses_beyond():
     assert Site("shore", 31.5, 35.5, elevation_m=-430).elevation_m == -430.0
     with pytest.raises(SiteError) as exc:
         Site("x", 0, 0, elevation_m=9500)
-    _assert_names(exc.value, "elevation_m", "9500", "between -500 and 9000 m")
+    _assert_names(exc.value, "elevation_m", "9500", "between -500 and 9,000 m")
     with pytest.raises(SiteError) as exc:
         Site("x", 0, 0, elevation_m=-600)
-    _assert_names(exc.value, "elevation_m", "-600", "between -500 and 9000 m")
+    _assert_names(exc.value, "elevation_m", "-600", "between -500 and 9,000 m")
 
 
 @pytest.mark.parametrize("bad", [float("nan"), float("inf"), "50", True, None])
@@ -187,7 +187,7 @@ def test_horizon_arrays_that_are_not_lists_are_refused_in_a_file(tmp_path):
 def test_obstacle_distance_zero_is_refused():
     with pytest.raises(SiteError) as exc:
         Obstacle("shed", bearing_deg=180, width_deg=10, distance_m=0, height_m=3)
-    _assert_names(exc.value, "distance_m", "0", "between 0.1 and 100000 m")
+    _assert_names(exc.value, "distance_m", "0", "between 0.1 and 100,000 m")
 
 
 def test_obstacle_distance_zero_in_a_file_names_the_obstacle(tmp_path):
@@ -198,7 +198,7 @@ def test_obstacle_distance_zero_in_a_file_names_the_obstacle(tmp_path):
         load_site(path)
     assert exc.value.field == "obstacles[1].distance_m"
     assert str(path) in str(exc.value)
-    assert "between 0.1 and 100000 m" in str(exc.value)
+    assert "between 0.1 and 100,000 m" in str(exc.value)
 
 
 def test_obstacle_missing_field_in_a_file(tmp_path):

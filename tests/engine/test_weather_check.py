@@ -96,10 +96,11 @@ def test_a_missing_option_is_named_with_the_file(tmp_path, site):
                   [0.0, 0.0, 1.0, 2.0])
     no_label = read_weather_for_site(path, site, MAPPING, None, "UTC")
     assert isinstance(no_label, LoadFailure)
-    assert no_label.message.startswith("log.csv: timestamp_label = None:")
+    assert no_label.message.startswith("log.csv: Each timestamp marks: ")
     no_zone = read_weather_for_site(path, site, MAPPING, "start", None)
     assert isinstance(no_zone, LoadFailure)
-    assert no_zone.message.startswith("log.csv: timezone = None:")
+    assert no_zone.message.startswith("log.csv: Time zone of the timestamps: the timestamps "
+                                      "have no UTC offset")
 
 
 def test_a_few_days_are_read_but_cannot_serve_as_the_year(tmp_path, site):

@@ -227,3 +227,50 @@ def test_schedule_code_csv_form():
     assert schedule_code(doc) == "10-01..03-31 34.5/0"
     with pytest.raises(ValueError, match="at least one period"):
         schedule_code(())
+
+
+# -- one formatter per figure kind: thousands, azimuth, day length, dashes --------------
+
+def test_thousands_are_separated_by_one_rule():
+    from tiltyard.engine.words import NO_VALUE, THOUSANDS_SEP, number
+    assert THOUSANDS_SEP == ","
+    assert number(1767.4) == "1,767" and number(999.4) == "999" and number(999.6) == "1,000"
+    assert number(1234567.891, 1) == "1,234,567.9" and number(-2350) == "-2,350"
+    assert number(None) == NO_VALUE and number(float("nan")) == NO_VALUE
+    assert number(None, plain=True) == "-"
+
+
+def test_an_azimuth_rounds_the_same_in_a_table_a_chart_and_a_tick():
+    from tiltyard.engine.words import azimuth, bearing, compass_tick
+    # half up everywhere (Python's round and format go half to even: 178.5 -> "178")
+    assert azimuth(178.5) == "179°" and azimuth(179.5) == "180°"
+    assert bearing(179.5) == "180° (S)" and bearing(178.5) == "179° (S)"
+    assert azimuth(359.7) == "0°" and bearing(359.7) == "0° (N)"
+    assert azimuth(93.45, 1) == "93.5°" and azimuth(12, plain=True) == "12 deg"
+    # the compass name is that of the figure shown: 11.24 shows as 11°, which is N
+    # (N owns 348.75-11.25 with 16 points; common practice, no source)
+    assert bearing(11.24) == "11° (N)" and bearing(11.5) == "12° (NNE)"
+    assert compass_tick(135) == "SE 135°" and compass_tick(-45) == "NW 315°"
+    for az in np.arange(0.0, 360.0, 0.25):
+        shown = azimuth(az)
+        assert bearing(az).startswith(shown + " ") and compass_tick(az).endswith(" " + shown)
+
+
+def test_day_length_is_hours_and_minutes_everywhere():
+    from tiltyard.engine.words import NO_VALUE, day_length
+    assert day_length(14.53) == "14 h 32 min"       # 0.53 h = 31.8 min -> 32
+    assert day_length(9.0 + 5 / 60) == "9 h 05 min"
+    assert day_length(24.0) == "24 h 00 min" and day_length(0.0) == "0 h 00 min"
+    assert day_length(23.9999) == "24 h 00 min"
+    assert day_length(float("nan")) == NO_VALUE and day_length(None) == NO_VALUE
+
+
+def test_a_dash_means_one_thing():
+    from tiltyard.engine.words import NO_VALUE, RANGE_DASH, schedule_words, value_range
+    assert NO_VALUE == "—" and RANGE_DASH == "–"
+    assert value_range(0, 360, "°") == "0–360°" and value_range(1, 120, "days") == "1–120 days"
+    assert value_range(0, 360, "°", plain=True) == "0-360 deg"
+    periods = [{"start": "04-01", "end": "09-30", "tilt_deg": 12, "azimuth_deg": 180},
+               {"start": "10-01", "end": "03-31", "tilt_deg": 34, "azimuth_deg": 180}]
+    assert "1 Apr–30 Sep" in schedule_words(periods, 2023) and "—" not in schedule_words(
+        periods, 2023)
