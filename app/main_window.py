@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import platform
+import re
 import sys
 from collections.abc import Mapping
 from pathlib import Path
@@ -30,6 +31,7 @@ from tiltyard.engine.assessment import Assessment
 from tiltyard.engine.cautions import CAUTION
 from tiltyard.engine.demo_sites import demo_site_names
 from tiltyard.engine.site import Site, SiteError
+from tiltyard.engine.words import MODEL_NAMES, RANGE_DASH, user_text
 
 from . import settings
 from .context import AppContext
@@ -41,6 +43,18 @@ from .widgets import CautionLabel, MessageBanner
 AUTOSAVE_MS = 20_000
 SITE_FILTER = "Tiltyard site (*.json);;All files (*)"
 
+
+def reference_topic(key: str) -> str:
+    """A model reference's topic in the trade's words: ``"clear sky: simplified_solis"`` ->
+    ``"clear sky: simplified Solis"``."""
+    kind, _, name = key.partition(": ")
+    return f"{kind}: {MODEL_NAMES.get(name, name)}" if name else key
+
+
+def reference_text(text: str) -> str:
+    """A citation as the About box shows it: page ranges with the range dash
+    (", 151–157"), no program names (:func:`~tiltyard.engine.words.user_text`)."""
+    return re.sub(r"(?<=, )(\d+)-(\d+)\b", rf"\1{RANGE_DASH}\2", user_text(text))
 
 class MainWindow(QMainWindow):
     def __init__(self, site: Site | Assessment | None = None, site_path: str | None = None,
@@ -411,7 +425,8 @@ class MainWindow(QMainWindow):
         import PySide6
 
         from tiltyard.engine.jobs import model_references
-        refs = "".join(f"<li><b>{k}</b>: {v}</li>" for k, v in model_references().items())
+        refs = "".join(f"<li><b>{reference_topic(k)}</b>: {reference_text(v)}</li>"
+                       for k, v in model_references().items())
         return (
             f"<h3>Tiltyard {__version__}</h3>"
             "<p>Solar site assessment for feasibility: the sun's path and what blocks it, "

@@ -303,13 +303,18 @@ class WeatherDialog(QDialog):
         if self.ctx.set_settings(sky="file", weather=source):
             self.accept()
 
+    @staticmethod
+    def fit_warning_text(warnings) -> str:
+        """The question asked before using a file that may not belong to the site."""
+        return ("\n\n".join(user_text(w) for w in warnings) + "\n\nUse it for this site "
+                "anyway? The warning stays on the study and on the feasibility sheet.")
+
     def confirm_fit_warnings(self, warnings) -> bool:
         """Ask before using a file that may not belong to the site (tests replace this)."""
         from PySide6.QtWidgets import QMessageBox
 
         box = QMessageBox(QMessageBox.Icon.Warning, "Weather file may not fit the site",
-                          "\n\n".join(warnings) + "\n\nUse it for this site anyway? The "
-                          "warning stays on the study and on the feasibility sheet.",
+                          self.fit_warning_text(warnings),
                           QMessageBox.StandardButton.Yes | QMessageBox.StandardButton.No, self)
         box.setDefaultButton(QMessageBox.StandardButton.No)
         return box.exec() == QMessageBox.StandardButton.Yes

@@ -20,7 +20,7 @@ from PySide6.QtWidgets import (
 
 from tiltyard.engine.cautions import CAUTION
 from tiltyard.engine.site import SiteError
-from tiltyard.engine.words import field_message
+from tiltyard.engine.words import field_message, user_text
 
 #: Delay between showing a view and drawing the result it was kept for, ms: long
 #: enough that the view's first paint has an event-loop turn to itself.
@@ -58,7 +58,7 @@ class MessageBanner(QFrame):
         self.style().unpolish(self)
         self.style().polish(self)
         prefix = {"error": "Problem: ", "warning": "Note: ", "info": ""}.get(level, "")
-        self.label.setText(prefix + text)
+        self.label.setText(prefix + user_text(text))
         self.details = details
         self.setToolTip(details[-2000:] if details else "")
         self.owner = owner

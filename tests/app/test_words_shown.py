@@ -232,6 +232,7 @@ def test_every_view_speaks_the_users_words(window, idle, demo):
         idle(w.runner, 120.0)
         texts += [(f"{title}: {where}", t) for where, t in texts_of(view)]
     texts += [(f"window: {where}", t) for where, t in texts_of(w)]
+    texts.append(("About box", w.about_text()))
     assert len(texts) > 200, len(texts)          # the walk did reach the views' texts
     found = problems_in(texts)
     assert not found, "\n".join(found)
@@ -394,6 +395,10 @@ def test_the_weather_dialog_tells_bad_files_in_the_users_words(qtbot, make_ctx, 
     assert dlg.message, "the dialog said nothing"
     if case == "a typical-year file":
         assert dlg.findings.count() >= 3 and dlg.use_button.isEnabled()
+        # the file is of another place: the question before using it
+        assert dlg.loaded.fit_warnings
+        asked = dlg.fit_warning_text(dlg.loaded.fit_warnings)
+        assert not style_problems(asked), (asked, style_problems(asked))
     if os.environ.get("TILTYARD_SHOW_WORDS"):
         print(f"\n{case}: {dlg.message}")
     found = problems_in(texts_of(dlg))
