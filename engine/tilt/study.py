@@ -12,7 +12,7 @@ import numpy as np
 import pandas as pd
 
 from ..horizon import plane_shading
-from ..manyplane import many_plane_daily, many_plane_terms
+from ..manyplane import many_plane_daily, many_plane_monthly, many_plane_terms
 from ..plane import poa_components
 from ..rows import irradiation_per_ground_m2, row_layout
 from ..site import Site
@@ -169,7 +169,8 @@ class _Scorer:
         """The tilt x azimuth map in objective units (% of its best) and its best plane."""
         g_t, g_a = np.meshgrid(np.arange(0.0, 91.0, 1.0), np.arange(0.0, 360.0, 5.0),
                                indexing="ij")
-        g_month, _ = self.monthly(g_t, g_a)
+        # monthly totals straight from the year (the map needs no daily table)
+        g_month = many_plane_monthly(self.terms, g_t, g_a, self.mod, site=self.site)
         g_score = self.score_cols(g_month).reshape(g_t.shape)
         gi = np.unravel_index(int(np.argmax(g_score)), g_score.shape)
         self.grid_tilts, self.grid_azimuths = g_t, g_a

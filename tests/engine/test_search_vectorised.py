@@ -28,12 +28,24 @@ def _daily(seed, n_t=46):
     return 6 - 0.002 * (tilts[None, :] - opt[:, None]) ** 2 + rng.normal(0, 0.01, (N_DAYS, n_t))
 
 
+@pytest.mark.parametrize("order", ["C", "F"])
 @pytest.mark.parametrize("shape", [(N_DAYS,), (N_DAYS, 1), (N_DAYS, 3), (N_DAYS, 200)])
-def test_sum_by_month_is_add_at_bit_for_bit(shape):
-    d = np.random.default_rng(1).random(shape) * 7
+def test_sum_by_month_is_add_at_bit_for_bit(shape, order):
+    # "F": a grid's daily table, stored plane by plane
+    d = np.asarray(np.random.default_rng(1).random(shape) * 7, order=order)
     ref = np.zeros((12,) + shape[1:])
     np.add.at(ref, MONTH - 1, d)
     np.testing.assert_array_equal(sum_by_month(d, MONTH), ref)
+    assert sum_by_month(d, MONTH).tobytes() == ref.tobytes()
+
+
+def test_sum_by_month_days_out_of_month_order():
+    # days not in month order: the sums are add.at's all the same
+    month = np.roll(MONTH, 40)
+    d = np.asfortranarray(np.random.default_rng(2).random((N_DAYS, 50)))
+    ref = np.zeros((12, 50))
+    np.add.at(ref, month - 1, d)
+    assert sum_by_month(d, month).tobytes() == ref.tobytes()
 
 
 @pytest.mark.parametrize("seed", [0, 1, 2])
