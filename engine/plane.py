@@ -87,6 +87,22 @@ def poa_components(surface_tilt, surface_azimuth, solar_zenith, solar_azimuth, g
     See :data:`TRANSPOSITION_REFERENCES`; pvlib.irradiance.get_total_irradiance
     for the open-horizon sum (this function equals it when the horizon is open).
     """
+    index = solar_zenith.index if isinstance(solar_zenith, pd.Series) else None
+    return pd.DataFrame(poa_arrays(surface_tilt, surface_azimuth, solar_zenith, solar_azimuth,
+                                   ghi, dni, dhi, dni_extra, albedo, model, airmass,
+                                   sun_visible, shading), index=index)
+
+
+def poa_arrays(surface_tilt, surface_azimuth, solar_zenith, solar_azimuth, ghi, dni, dhi,
+               dni_extra, albedo, model: str = "perez", airmass=None,
+               sun_visible=None, shading: HorizonShading | None = None) -> dict:
+    """The columns of :func:`poa_components` as a dict of arrays (no DataFrame), for
+    callers that take a few of them over many calls; same parameters, same numbers.
+
+    References
+    ----------
+    As :func:`poa_components`.
+    """
     if model not in TRANSPOSITION_MODELS:
         raise ValueError(f"model = {model!r}: must be one of {', '.join(TRANSPOSITION_MODELS)}")
     ghi = np.asarray(ghi, dtype=float)
@@ -94,7 +110,6 @@ def poa_components(surface_tilt, surface_azimuth, solar_zenith, solar_azimuth, g
     dhi = np.asarray(dhi, dtype=float)
     zen = np.asarray(solar_zenith, dtype=float)
     saz = np.asarray(solar_azimuth, dtype=float)
-    index = solar_zenith.index if isinstance(solar_zenith, pd.Series) else None
     aoi = np.asarray(angle_of_incidence(surface_tilt, surface_azimuth, zen, saz), dtype=float)
     beam = np.maximum(dni * np.cos(np.radians(aoi)), 0.0)
     if model == "isotropic":
@@ -138,4 +153,4 @@ def poa_components(surface_tilt, surface_azimuth, solar_zenith, solar_azimuth, g
     # summed in the same order as poa_global, so an open horizon loses exactly 0
     out["poa_global_open"] = beam + out["poa_sky_diffuse_open"] + ground
     out["aoi"] = aoi
-    return pd.DataFrame(out, index=index)
+    return out

@@ -14,6 +14,7 @@ standard time and apparent solar time are for display.
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass
 from datetime import timedelta
 from zoneinfo import ZoneInfo
@@ -86,9 +87,9 @@ class TimeGrid:
         return self.start_utc.append(
             pd.DatetimeIndex([self.start_utc[-1] + pd.Timedelta(minutes=self.step_min)]))
 
-    @property
+    @functools.cached_property
     def start_local(self) -> pd.DatetimeIndex:
-        """Interval starts in local clock time (with daylight saving)."""
+        """Interval starts in local clock time (with daylight saving); computed once."""
         return self.start_utc.tz_convert(self.timezone)
 
     def __len__(self) -> int:

@@ -13,7 +13,7 @@ import pandas as pd
 
 from ..horizon import plane_shading
 from ..manyplane import many_plane_daily, many_plane_monthly, many_plane_terms
-from ..plane import poa_components
+from ..plane import poa_arrays
 from ..rows import irradiation_per_ground_m2, row_layout
 from ..site import Site
 from ..skyyear import SkyYear, sky_year
@@ -425,14 +425,14 @@ def periods_poa(sky: SkyYear, site: Site, schedule, columns=PERIOD_COLUMNS) -> p
             t = float(period.tilt_deg)
             a = float(period.azimuth_deg)
             shading = plane_shading(site, t, a)
-        poa = poa_components(t, a, zen[m], saz[m], sky.ghi[m], sky.dni[m], sky.dhi[m],
-                             sky.dni_extra[m], albedo[m], sky.options.model,
-                             sun_visible=sky.sun_visible[m], shading=shading)
+        poa = poa_arrays(t, a, zen[m], saz[m], sky.ghi[m], sky.dni[m], sky.dhi[m],
+                         sky.dni_extra[m], albedo[m], sky.options.model,
+                         sun_visible=sky.sun_visible[m], shading=shading)
         for c in cols:
-            out[c][m] = poa[c].to_numpy() * (1.0 if c == "aoi" else frac[m])
+            out[c][m] = poa[c] * (1.0 if c == "aoi" else frac[m])
         tilt[m] = t
         azim[m] = a
-    index = sky.grid.start_utc.tz_convert(site.timezone)
+    index = sky.grid.start_local       # the site's zone (a sky year is of its site)
     df = pd.DataFrame({"surface_tilt": tilt, "surface_azimuth": azim, **out}, index=index)
     df.index.name = "interval_start"
     return df
@@ -476,7 +476,8 @@ def _option_rows(opt: StudyOption, layouts: _RowLayouts) -> OptionRows:
 
 
 def _option_yield(sky: SkyYear, site: Site, opt: StudyOption, opts: StudyOptions) -> OptionYield:
-    poa = schedule_poa(sky, site, opt)["poa_global"]
+    schedule = None if opt.kind == "two-axis" else opt.schedule
+    poa = periods_poa(sky, site, schedule, columns=("poa_global",))["poa_global"]
     temp = wind = None
     if sky.temp_air is not None:
         temp = np.asarray(sky.temp_air, dtype=float)
