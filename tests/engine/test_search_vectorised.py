@@ -116,3 +116,32 @@ def test_local_search_matches_one_by_one(objective, months):
         assert (list(got[0]), list(got[1])) == (list(want[0]), list(want[1]))
         if objective == "worst-month":      # the search has moved the schedule
             assert (list(got[0]), list(got[1])) != (list(sw), list(tl))
+
+
+def _two_period_by_gathering(cum, n_days, min_days):
+    """The two-period search as a plain loop with gathered segment sums."""
+    total_all = cum[n_days]
+    cum2 = np.vstack([cum, total_all[None, :] + cum[1:]])
+    s1 = np.arange(n_days)
+    best_total, best_sw = -np.inf, None
+    for length in range(min_days, n_days // 2 + 1):
+        seg_a = cum2[s1 + length] - cum2[s1]
+        seg_b = total_all[None, :] - seg_a
+        tot = seg_a.max(axis=1) + seg_b.max(axis=1)
+        i = int(np.argmax(tot))
+        if tot[i] > best_total:
+            best_total = float(tot[i])
+            best_sw = sorted([int(s1[i]), int((s1[i] + length) % n_days)])
+    return best_sw, best_total
+
+
+@pytest.mark.parametrize("seed", [0, 1, 2])
+@pytest.mark.parametrize("min_days", [1, 30, 90])
+def test_two_period_search_matches_the_loop(seed, min_days):
+    daily = _daily(seed)
+    cum = np.vstack([np.zeros(daily.shape[1]), np.cumsum(daily, axis=0)])
+    ref_sw, ref_total = _two_period_by_gathering(cum, N_DAYS, min_days)
+    sw, tilts, total = search._two_period_exhaustive(cum, N_DAYS, min_days)
+    assert sw == ref_sw
+    assert total == search._best_tilts_separable(cum, ref_sw, N_DAYS)[1]
+    assert max(ref_total, total) > 0
