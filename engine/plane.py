@@ -18,9 +18,8 @@ import numpy as np
 import pandas as pd
 import pvlib
 
+from ..choices import TRANSPOSITION_MODELS  # noqa: F401 (its home is ..choices)
 from .horizon import HorizonShading
-
-TRANSPOSITION_MODELS = ("isotropic", "haydavies", "perez")
 
 TRANSPOSITION_REFERENCES = {
     "isotropic": "Liu, B. Y. H. & Jordan, R. C. (1963). Solar Energy 7(2), 53-74.",

@@ -20,6 +20,7 @@ from dataclasses import dataclass, field, replace
 from typing import Any
 from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 
+from ..choices import MOUNTINGS  # noqa: F401 (how panels are held; its home is ..choices)
 from . import site_limits as _limits
 from .monthly import first_dark_daylight_month
 
@@ -30,9 +31,6 @@ CLIENT_FIELDS = ("client", "address", "reference")
 CLIENT_KEYS = ("prepared_for",)
 #: Longest client, address or reference, characters.
 CLIENT_FIELD_MAX = 300
-
-#: How panels are held (see :data:`tiltyard.engine.tilt.MOUNTINGS` for what each allows).
-MOUNTINGS = ("flush", "fixed-rack", "adjustable", "ground-rows", "flat-roof-rows")
 
 
 class SiteError(ValueError):

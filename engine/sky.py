@@ -16,18 +16,12 @@ import numpy as np
 import pandas as pd
 import pvlib
 
+from ..choices import CLEARSKY_MODELS, SOLAR_CONSTANT_W_M2  # noqa: F401 (home: ..choices)
 from .geometry import azimuth_north_to_south_based, incidence_coefficients
 from .site import Site
 from .solarpos import earth_sun_distance_au, site_pressure_pa
 from .sun import daily_declination_eot
 from .timegrid import REFERENCE_YEAR
-
-#: Default solar constant, W/m². Kopp, G. & Lean, J. L. (2011). A new, lower
-#: value of total solar irradiance: Evidence and climate significance.
-#: Geophys. Res. Lett. 38, L01706 (1360.8 +/- 0.5 W/m², rounded).
-SOLAR_CONSTANT_W_M2 = 1361.0
-
-CLEARSKY_MODELS = ("ineichen", "simplified_solis", "haurwitz")
 
 #: Highest site the Ineichen-Perez clear sky is used for, m. Above it its altitude terms
 #: (``cg1 = 5.09e-5 h + 0.868``, ``fh1 = exp(-h / 8000)``; Ineichen & Perez 2002) drive

@@ -22,11 +22,7 @@ from zoneinfo import ZoneInfo
 import numpy as np
 import pandas as pd
 
-#: The default year: a fixed, non-leap reference year, shown in every output.
-REFERENCE_YEAR = 2023
-
-#: Interval lengths offered for resampling a clear or monthly sky, minutes.
-STEPS_MIN = (60, 30, 15, 10, 5, 1)
+from ..choices import REFERENCE_YEAR, STEPS_MIN, TIME_BASES  # noqa: F401 (home: ..choices)
 
 #: Every interval length the year's grid accepts, minutes: the whole minutes that
 #: divide an hour (a weather file's own interval is used as it is).
@@ -46,8 +42,6 @@ MIDPOINT_CONVENTION = (
     "interval values at the interval midpoint; sunrise and sunset intervals at the "
     "midpoint of their sun-up part, weighted by its length"
 )
-
-TIME_BASES = ("clock", "standard", "solar")
 
 
 @dataclass(frozen=True)

@@ -10,13 +10,11 @@ from dataclasses import dataclass, field, fields
 import numpy as np
 import pandas as pd
 
+from ...choices import OPTION_KINDS  # noqa: F401 (its home is ...choices)
 from ..manyplane import sum_by_month
 from ..site import MOUNTINGS
 from ..skyyear import IrradianceOptions
 from ..words import MIN_TILT_DEFAULT_DEG
-
-OPTION_KINDS = ("horizontal", "plane", "rule-of-thumb", "fixed-optimal", "two-season",
-                "four-season", "monthly", "two-axis")
 
 #: How the panels are held, and so which options a study may list and recommend:
 #: ``flush`` on the roof (the roof's own tilt and azimuth; no seasonal option),

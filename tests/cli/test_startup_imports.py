@@ -1,6 +1,7 @@
-"""What each command line start imports (issue 16, point 7): ``--version`` and ``--help``
-load no engine module and none of numpy, pandas, pvlib or Qt; a subcommand loads the
-engine it uses and no Qt unless it draws (the sheet, the desktop app).
+"""What each command line start imports (issue 16, point 7): ``--version``, ``--help``
+and every subcommand's ``--help`` load no engine module and none of numpy, pandas,
+pvlib or Qt; a subcommand loads the engine it uses and no Qt unless it draws (the
+sheet, the desktop app).
 
 Each case runs in a fresh interpreter and lists ``sys.modules`` at exit.
 """
@@ -34,8 +35,12 @@ def _start(*args):
 
 
 @pytest.mark.parametrize("args", [["--version"], ["--help"], ["sun", "--help"],
-                                  ["--verbose", "--help"]])
+                                  ["--verbose", "--help"], ["study", "--help"],
+                                  ["sheet", "--help"], ["irradiance", "--help"],
+                                  ["batch", "--help"], ["sites", "--help"],
+                                  ["study", "-h", "--verbose"]])
 def test_version_and_help_import_no_engine(args):
+    # a subcommand's help lists its choices from tiltyard.choices, not the engine
     got = _start(*args)
     assert got["code"] == 0
     assert got["heavy"] == []
@@ -67,3 +72,16 @@ def test_subcommands_load_no_qt():
         assert got["code"] == 0, args
         assert not [m for m in got["heavy"] if m in QT], (args, got["heavy"])
     assert "tiltyard.engine" in _start("sun", "larkmoor-dairy", "--date", "2023-06-21")["heavy"]
+
+
+def test_subcommand_help_names_the_engines_choices():
+    # the help's choices are the engine's own (tiltyard.choices is their one home)
+    from tiltyard.engine.plane import TRANSPOSITION_MODELS
+    from tiltyard.engine.site import MOUNTINGS
+    from tiltyard.engine.tilt import OPTION_KINDS
+
+    study = _start("study", "--help")["out"]
+    assert "{" + ",".join(TRANSPOSITION_MODELS) + "}" in study
+    assert "{" + ",".join(MOUNTINGS) + "}" in study
+    sheet = "".join(_start("sheet", "--help")["out"].split())   # wrapped at any hyphen
+    assert ",".join(OPTION_KINDS) in sheet
