@@ -113,3 +113,26 @@ def test_few_instants_equal_pvlib_spa_python(n):
     ours = solar_position(times, site, delta_t=69.1)
     np.testing.assert_array_equal(ours[COLUMNS].to_numpy(),
                                   _pvlib(times, site, 69.1)[COLUMNS].to_numpy())
+
+
+def test_earth_sun_distance_equals_pvlib_cold_and_kept():
+    # pvlib.solarposition.nrel_earthsun_distance with the same delta T, bit for bit:
+    # computed afresh, taken whole from the per-process store, and partly new
+    site = load_demo("larkmoor-dairy")
+    grid = year_grid(site.timezone, 2023, 60)
+    times = evaluation_points(grid, site).times_utc
+    clear_time_terms_cache()
+
+    def ref(t):
+        return np.asarray(pvlib.solarposition.nrel_earthsun_distance(
+            t, delta_t=solarpos.delta_t_s(t)), dtype=float)
+
+    cold = solarpos.earth_sun_distance_au(times)
+    np.testing.assert_array_equal(cold, ref(times))
+    np.testing.assert_array_equal(solarpos.earth_sun_distance_au(times), cold)
+    assert len(solarpos._radius_cache) == 1
+    moved = times.delete([5, 4000]).insert(5, times[5] + pd.Timedelta(seconds=77)) \
+        .insert(4000, times[4000] - pd.Timedelta(seconds=3))
+    np.testing.assert_array_equal(solarpos.earth_sun_distance_au(moved), ref(moved))
+    clear_time_terms_cache()
+    assert len(solarpos._radius_cache) == 0
