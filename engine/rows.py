@@ -195,11 +195,18 @@ def irradiation_per_ground_m2(poa_kwh_m2, gcr):
 # -- the design date ------------------------------------------------------------
 
 @functools.lru_cache(maxsize=16)
+def _date_events(site: Site, date: pd.Timestamp) -> pd.Series:
+    """The sun events of one local date (:func:`tiltyard.engine.sunevents.sun_events`),
+    once per site and date: the design date's rule and its window both read them."""
+    return sun_events(site, [date]).table.iloc[0]
+
+
+@functools.lru_cache(maxsize=16)
 def _noon_sun(site: Site, date: pd.Timestamp) -> tuple[float, float]:
     """Apparent elevation and azimuth of the sun at solar noon on a local date, degrees
     (Reda & Andreas 2008, NREL/TP-560-34302, App. A.2, through pvlib); once per site
     and date, whatever the rows' azimuth."""
-    noon = sun_events(site, [date]).table["solar_noon"].iloc[0]
+    noon = _date_events(site, date)["solar_noon"]
     pos = solar_position(pd.DatetimeIndex([noon]), site)
     return float(pos["apparent_elevation"].iloc[0]), float(pos["azimuth"].iloc[0])
 
@@ -385,7 +392,7 @@ def _design_window(site: Site, day: pd.Timestamp, half: float, step: float,
     depend on the rows' tilt or azimuth (Reda & Andreas 2008, NREL/TP-560-34302,
     for the positions and the noon, through pvlib).
     """
-    ev = sun_events(site, [day]).table.iloc[0]
+    ev = _date_events(site, day)
     noon = pd.Timestamp(ev["solar_noon"]).tz_convert(site.timezone)
     sun = _Sun(site, noon.tz_convert("UTC"))
     half_s = half * 3600.0

@@ -190,13 +190,18 @@ class _Scorer:
         else:
             azimuths = np.mod(self.grid_best_azimuth + np.arange(-5.0, 5.5, 1.0), 360.0)
         c_t, c_a = np.meshgrid(tilts, azimuths, indexing="ij")
-        c_month, cand = self.monthly(c_t, c_a)
+        seasonal = any(opts.allows(k) for k, _ in SEASONAL_KINDS)
+        if seasonal:
+            c_month, cand = self.monthly(c_t, c_a)
+        else:       # no schedule to search: the candidates' months straight from the year
+            c_month = many_plane_monthly(self.terms, c_t, c_a, self.mod, site=self.site)
         ci = int(np.argmax(self.score_cols(c_month)))
         opt_tilt, opt_az = float(c_t.ravel()[ci]), float(c_a.ravel()[ci])
         ai = int(np.flatnonzero(azimuths == opt_az)[0])
         # the candidates' daily columns at the optimum's azimuth feed the schedules
-        self.sched_daily = cand.daily_kwh_m2.reshape(self.n_days, len(tilts),
-                                                     len(azimuths))[:, :, ai]
+        self.sched_daily = (cand.daily_kwh_m2.reshape(self.n_days, len(tilts),
+                                                      len(azimuths))[:, :, ai]
+                            if seasonal else None)
         self.sched_tilts, self.sched_az = tilts, opt_az
         label = ("Best plane for the site" if opts.mounting == "flush" else "Optimal fixed")
         note = (f"optimum over tilts {tilts[0]:g}-{tilts[-1]:g} by {opts.tilt_step_deg:g} deg"

@@ -59,7 +59,7 @@ def _pvlib_plane(arrays, tilt, azimuth):
 
 def _study(name, cold: bool = False):
     # each run as a new site: the row layouts' per-site caches start empty
-    for cached in ("_design_window", "_noon_sun"):
+    for cached in ("_design_window", "_noon_sun", "_date_events"):
         if hasattr(rows, cached):
             getattr(rows, cached).cache_clear()
     if cold:     # as the first site of a year and interval in a process
