@@ -8,6 +8,7 @@ profile and its obstacles.
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass
 
 import numpy as np
@@ -477,10 +478,18 @@ class HorizonShading:
 def plane_shading(site: Site, surface_tilt: float, surface_azimuth: float) -> HorizonShading:
     """Horizon effects of ``site``'s effective horizon on one plane.
 
+    Kept for the last planes asked for (a study's schedules meet the same planes
+    again and again).
+
     References
     ----------
     See :func:`sky_view_factor` and :func:`horizon_band_fraction`.
     """
+    return _plane_shading(site, float(surface_tilt), float(surface_azimuth))
+
+
+@functools.lru_cache(maxsize=64)
+def _plane_shading(site: Site, surface_tilt: float, surface_azimuth: float) -> HorizonShading:
     def hz(a):
         return site_horizon_deg(site, a)
 

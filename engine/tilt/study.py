@@ -401,6 +401,19 @@ def periods_poa(sky: SkyYear, site: Site, schedule, columns=PERIOD_COLUMNS) -> p
     Transposition as :func:`tiltyard.engine.plane.poa_components` (pvlib;
     Perez et al. 1990, Hay & Davies 1980, Liu & Jordan 1963).
     """
+    tilt, azim, out = _periods_arrays(sky, site, schedule, columns)
+    return pd.DataFrame({"surface_tilt": tilt, "surface_azimuth": azim, **out},
+                        index=_interval_index(sky))
+
+
+def _interval_index(sky: SkyYear) -> pd.DatetimeIndex:
+    """The intervals' starts in the site's zone, named ``interval_start`` (a renamed copy:
+    the grid's own index is shared)."""
+    return sky.grid.start_local.rename("interval_start")
+
+
+def _periods_arrays(sky: SkyYear, site: Site, schedule, columns) -> tuple:
+    """:func:`periods_poa` as arrays: ``(surface_tilt, surface_azimuth, {column: values})``."""
     pos = sky.position
     frac = sky.sun_up_fraction
     zen = pos["apparent_zenith"].to_numpy()
@@ -437,10 +450,7 @@ def periods_poa(sky: SkyYear, site: Site, schedule, columns=PERIOD_COLUMNS) -> p
             out[c][m] = poa[c] * (1.0 if c == "aoi" else frac[m])
         tilt[m] = t
         azim[m] = a
-    index = sky.grid.start_local       # the site's zone (a sky year is of its site)
-    df = pd.DataFrame({"surface_tilt": tilt, "surface_azimuth": azim, **out}, index=index)
-    df.index.name = "interval_start"
-    return df
+    return tilt, azim, out
 
 
 def _row_kw(opts: StudyOptions) -> dict:
@@ -482,14 +492,15 @@ def _option_rows(opt: StudyOption, layouts: _RowLayouts) -> OptionRows:
 
 def _option_yield(sky: SkyYear, site: Site, opt: StudyOption, opts: StudyOptions) -> OptionYield:
     schedule = None if opt.kind == "two-axis" else opt.schedule
-    poa = periods_poa(sky, site, schedule, columns=("poa_global",))["poa_global"]
+    _, _, out = _periods_arrays(sky, site, schedule, ("poa_global",))
+    poa = pd.Series(out["poa_global"], index=_interval_index(sky), name="poa_global")
     temp = wind = None
     if sky.temp_air is not None:
         temp = np.asarray(sky.temp_air, dtype=float)
         if sky.wind_speed is not None:
             wind = np.asarray(sky.wind_speed, dtype=float)
     result = specific_yield(poa, sky.grid.step_h, temp_air=temp, wind_speed=wind,
-                            loss_fraction=opts.loss_fraction)
+                            loss_fraction=opts.loss_fraction, month=sky.month)
     return OptionYield(opt.label, opt.kind, result)
 
 
@@ -512,7 +523,8 @@ def _two_axis(sky: SkyYear, site: Site, month_of_day: np.ndarray) -> StudyOption
     pvlib transposition as in :func:`tiltyard.engine.plane.poa_components`.
     """
     # periods_poa gives interval means (value x sun-up fraction): x hours / 1000 = kWh/m2
-    e = periods_poa(sky, site, None)["poa_global"].to_numpy() * (sky.grid.step_h / 1000.0)
+    e = _periods_arrays(sky, site, None, ("poa_global",))[2]["poa_global"] \
+        * (sky.grid.step_h / 1000.0)
     daily = np.bincount(sky.day_index, weights=e, minlength=sky.n_days)
     m = _monthly_from_daily(daily[:, None], month_of_day)[:, 0]
     return StudyOption("Two-axis tracking (ceiling, not a recommendation)", "two-axis",

@@ -27,7 +27,7 @@ import numpy as np
 import pvlib
 from timing import median_time
 
-from tiltyard.engine import rows
+from tiltyard.engine import horizon, rows
 from tiltyard.engine.assess import assess
 from tiltyard.engine.assessment import demo_assessment
 from tiltyard.engine.demo_sites import demo_site_names, load_demo
@@ -63,10 +63,11 @@ def _pvlib_plane(arrays, tilt, azimuth):
 
 
 def _study(name, cold: bool = False):
-    # each run as a new site: the row layouts' per-site caches start empty
-    for cached in ("_design_window", "_noon_sun", "_date_events"):
-        if hasattr(rows, cached):
-            getattr(rows, cached).cache_clear()
+    # each run as a new site: the per-site caches (row layouts, plane shading) start empty
+    for module, cached in ((rows, "_design_window"), (rows, "_noon_sun"),
+                           (rows, "_date_events"), (horizon, "_plane_shading")):
+        if hasattr(module, cached):
+            getattr(module, cached).cache_clear()
     if cold:     # as the first site of a year and interval in a process
         clear_time_terms_cache()
     return assess(demo_assessment(name)).study()
