@@ -109,7 +109,8 @@ def tilt_study(site: Site, opts: StudyOptions | None = None,
     report(0.6, "seasonal schedules")
     options.extend(st.seasonal())
     report(0.85, "two-axis ceiling")
-    options.append(_two_axis(sky, site, st.mod))
+    tracking_poa = _periods_arrays(sky, site, None, ("poa_global",))[2]["poa_global"]
+    options.append(_two_axis(sky, st.mod, tracking_poa))
     curve_az = fixed_opt.schedule[0].azimuth_deg
     tilt_curve = st.curve(curve_az)
     if opts.irradiance.sky == "clear":
@@ -125,7 +126,9 @@ def tilt_study(site: Site, opts: StudyOptions | None = None,
     fixed_p = fixed_opt.schedule[0]
     row_tilt = fixed_p.tilt_deg if opts.row_tilt_deg is None else opts.row_tilt_deg
     chosen_rows, row_note = layouts.get(row_tilt, fixed_p.azimuth_deg)
-    yields = tuple(_option_yield(sky, site, o, opts) for o in options)
+    yields = tuple(_option_yield(sky, site, o, opts,
+                                 tracking_poa if o.kind == "two-axis" else None)
+                   for o in options)
     monthly_method = None
     if opts.irradiance.sky == "monthly":
         monthly_method = monthly_method_comparison(site, options, opts.irradiance.year,
@@ -236,7 +239,8 @@ class _Scorer:
     def curve(self, azimuth_deg: float) -> pd.DataFrame:
         """Objective and annual irradiation against tilt (0-90° by 1°) at one azimuth."""
         tilts = np.arange(0.0, 91.0)
-        m, _ = self.monthly(tilts, np.full(91, azimuth_deg))
+        m = many_plane_monthly(self.terms, tilts, np.full(91, azimuth_deg), self.mod,
+                               site=self.site)
         return pd.DataFrame({"objective_kwh_m2": self.score_cols(m), "annual_kwh_m2": m.sum(0)},
                             index=pd.Index(tilts, name="tilt_deg"))
 
@@ -490,10 +494,13 @@ def _option_rows(opt: StudyOption, layouts: _RowLayouts) -> OptionRows:
     return OptionRows(opt.label, opt.kind, layout, per_ground, note)
 
 
-def _option_yield(sky: SkyYear, site: Site, opt: StudyOption, opts: StudyOptions) -> OptionYield:
-    schedule = None if opt.kind == "two-axis" else opt.schedule
-    _, _, out = _periods_arrays(sky, site, schedule, ("poa_global",))
-    poa = pd.Series(out["poa_global"], index=_interval_index(sky), name="poa_global")
+def _option_yield(sky: SkyYear, site: Site, opt: StudyOption, opts: StudyOptions,
+                  poa_global=None) -> OptionYield:
+    """``opt``'s indicative yield; ``poa_global`` its interval values when known already."""
+    if poa_global is None:
+        schedule = None if opt.kind == "two-axis" else opt.schedule
+        poa_global = _periods_arrays(sky, site, schedule, ("poa_global",))[2]["poa_global"]
+    poa = pd.Series(poa_global, index=_interval_index(sky), name="poa_global")
     temp = wind = None
     if sky.temp_air is not None:
         temp = np.asarray(sky.temp_air, dtype=float)
@@ -512,8 +519,9 @@ def _open_sky(sky: SkyYear, open_site: Site) -> SkyYear:
     return replace(sky, site=open_site, sun_visible=up.copy())
 
 
-def _two_axis(sky: SkyYear, site: Site, month_of_day: np.ndarray) -> StudyOption:
-    """Two-axis tracking: the plane faces the sun at every instant (the ceiling).
+def _two_axis(sky: SkyYear, month_of_day: np.ndarray, poa_global: np.ndarray) -> StudyOption:
+    """Two-axis tracking: the plane faces the sun at every instant (the ceiling), from its
+    interval ``poa_global`` (``periods_poa(sky, site, None)``).
 
     Beam is blocked behind the site horizon; sky diffuse uses the open-sky view
     factor of the tracking plane, a slight overestimate that suits a ceiling.
@@ -523,8 +531,7 @@ def _two_axis(sky: SkyYear, site: Site, month_of_day: np.ndarray) -> StudyOption
     pvlib transposition as in :func:`tiltyard.engine.plane.poa_components`.
     """
     # periods_poa gives interval means (value x sun-up fraction): x hours / 1000 = kWh/m2
-    e = _periods_arrays(sky, site, None, ("poa_global",))[2]["poa_global"] \
-        * (sky.grid.step_h / 1000.0)
+    e = poa_global * (sky.grid.step_h / 1000.0)
     daily = np.bincount(sky.day_index, weights=e, minlength=sky.n_days)
     m = _monthly_from_daily(daily[:, None], month_of_day)[:, 0]
     return StudyOption("Two-axis tracking (ceiling, not a recommendation)", "two-axis",
