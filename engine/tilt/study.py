@@ -225,9 +225,9 @@ class _Scorer:
             return []
         open_site = site.with_changes(horizon=type(site.horizon)(), obstacles=())
         g_t, g_a = self.grid_tilts, self.grid_azimuths
-        og = many_plane_daily(many_plane_terms(_open_sky(sky, open_site)), g_t, g_a,
-                              site=open_site)
-        og_ann = og.daily_kwh_m2.sum(axis=0).reshape(g_t.shape)
+        og = many_plane_monthly(many_plane_terms(_open_sky(sky, open_site)), g_t, g_a,
+                                self.mod, site=open_site)
+        og_ann = og.sum(axis=0).reshape(g_t.shape)
         oa = float(g_a[np.unravel_index(int(np.argmax(og_ann)), og_ann.shape)])
         if abs((oa - equator + 180.0) % 360.0 - 180.0) > 5.0:
             return [f"The clear-sky optimum azimuth ({oa:g} deg) is more than 5 deg from the "
