@@ -111,6 +111,10 @@ TIME_TERMS_CACHE_SIZE = 8
 #: Larger sets of instants are computed but not kept (a year at 5-minute intervals fits).
 TIME_TERMS_CACHE_MAX = 110_000
 
+#: Smaller sets are computed but not kept either: they are cheap, belong to one site (a
+#: day's path, a root search, a row layout's window) and would push a year's terms out.
+TIME_TERMS_CACHE_MIN = 256
+
 _cache: dict = {}
 _radius_cache: dict = {}         # earth_sun_distance_au's sets, kept the same way
 _cache_lock = threading.Lock()   # engine calls may run in threads
@@ -258,10 +262,10 @@ def _kept_per_process(store: dict, t: np.ndarray, dt: np.ndarray, compute, field
     A set seen before comes back as it is; a set of the same length agreeing with
     a kept one in at least half its instants takes the kept values there and
     computes the rest (two or more instants at once, as a whole set is computed).
-    The last :data:`TIME_TERMS_CACHE_SIZE` sets of at most
+    The last :data:`TIME_TERMS_CACHE_SIZE` sets of :data:`TIME_TERMS_CACHE_MIN` to
     :data:`TIME_TERMS_CACHE_MAX` instants are kept. Common practice, no source.
     """
-    keep = t.size <= TIME_TERMS_CACHE_MAX
+    keep = TIME_TERMS_CACHE_MIN <= t.size <= TIME_TERMS_CACHE_MAX
     key = None
     if keep:
         key = (t.size, hashlib.blake2b(t.tobytes() + dt.tobytes(), digest_size=16).digest())

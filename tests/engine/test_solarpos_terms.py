@@ -77,14 +77,21 @@ def test_partly_new_instants_take_the_kept_terms_and_compute_the_rest():
 
 def test_cache_is_bounded():
     clear_time_terms_cache()
+    n_min = solarpos.TIME_TERMS_CACHE_MIN
     for k in range(solarpos.TIME_TERMS_CACHE_SIZE + 3):
-        time_terms(np.arange(10.0) + 1e6 * k, 69.0)
+        time_terms(np.arange(float(n_min)) + 1e6 * k, 69.0)
     assert len(solarpos._cache) == solarpos.TIME_TERMS_CACHE_SIZE
     big = np.arange(solarpos.TIME_TERMS_CACHE_MAX + 1, dtype=float)
-    time_terms(big[:3], 69.0)
+    time_terms(big[:n_min], 69.0)
     n = len(solarpos._cache)
     time_terms(big, 69.0)                                     # too large to keep
     assert len(solarpos._cache) == n
+    kept = list(solarpos._cache)
+    for k in range(20):                                       # small sets: never kept
+        small = time_terms(np.arange(3.0) + 7e5 * k, 69.0)
+    assert list(solarpos._cache) == kept
+    fresh = solarpos._compute_time_terms(np.arange(3.0) + 7e5 * 19, np.full(3, 69.0))
+    np.testing.assert_array_equal(small.declination_deg, fresh[2])
 
 
 def test_evaluation_points_same_with_cold_and_warm_terms():
