@@ -38,7 +38,15 @@ import pandas as pd
 from scipy.optimize import brentq, minimize_scalar
 
 from .site import Site
-from .solarpos import RISE_SET_ELEVATION_DEG, delta_t_s, solar_position
+from .solarpos import (
+    RISE_SET_ELEVATION_DEG,
+    _spa_unixtime,
+    delta_t_s,
+    site_positions,
+    site_pressure_pa,
+    solar_position,
+    time_terms,
+)
 from .sunevents import sun_events
 from .timegrid import REFERENCE_YEAR, local_date
 from .words import day_month
@@ -357,14 +365,17 @@ class _Sun:
         self.site = site
         self.noon_utc = noon_utc
         self.delta_t = float(delta_t_s(pd.DatetimeIndex([noon_utc]))[0])
+        self.pressure_pa = site_pressure_pa(site.elevation_m)
 
     def times(self, offsets_s) -> pd.DatetimeIndex:
         us = np.round(np.asarray(offsets_s, dtype=float) * 1e6).astype("int64")
         return pd.DatetimeIndex(self.noon_utc + pd.to_timedelta(us, unit="us"))
 
     def __call__(self, offsets_s):
-        pos = solar_position(self.times(offsets_s), self.site, delta_t=self.delta_t)
-        return pos["apparent_elevation"].to_numpy(), pos["azimuth"].to_numpy()
+        # solar_position's steps without its table (this is called many times per layout)
+        terms = time_terms(_spa_unixtime(self.times(offsets_s)), self.delta_t)
+        _, _, el_app, _, az = site_positions(terms, self.site, self.pressure_pa)
+        return el_app, az
 
 
 @dataclass(frozen=True)
