@@ -20,7 +20,10 @@ tilt grows, at ``tan b = -cos z / v``. So each day's beam sum is the unclipped
 sum, a product of per-day sums and plane factors, minus the parts past each
 (interval, azimuth) pair's sign change, gathered with one difference array over
 the tilts and a running sum. Other sets of planes take a chunked pass over all
-pairs, with daily sums from segment sums over each day's intervals.
+pairs, with daily sums from segment sums over each day's intervals. The same
+passes give monthly totals directly (:func:`many_plane_monthly`) when the days
+are gathered into months from the start: the per-day sums become per-month
+sums and the difference array is binned by month, so no daily table is made.
 
 The arithmetic is that of pvlib's ``get_total_irradiance`` (isotropic,
 ``haydavies``, ``perez``) and of :func:`tiltyard.engine.plane.poa_components`
