@@ -380,7 +380,13 @@ def sky_view_factor(surface_tilt, surface_azimuth, horizon_elevation_deg, n_az: 
         shift_u, shift_inv = np.unique(shift_idx, return_inverse=True)
         if (tilt_u[0] >= 0.0 and tilt_u[-1] <= 90.0
                 and tilt_u.size * shift_u.size <= _PRODUCT_RATIO * tilt_deg.size):
-            f = _svf_product(tilt_u, shift_u, h, n_az)[tilt_inv, shift_inv]
+            if shift_u.size > 2 and np.all(h == h[0]):
+                # a level horizon (an open site): every azimuth's column is the same sums
+                # of the same numbers, so one column serves them all, bit for bit (two
+                # are computed: numpy adds a lone column's rows pairwise, several in turn)
+                f = _svf_product(tilt_u, shift_u[:2], h, n_az)[tilt_inv, 0]
+            else:
+                f = _svf_product(tilt_u, shift_u, h, n_az)[tilt_inv, shift_inv]
         else:
             f = _svf_on_grid(tilt_deg, shift_idx, h, n_az)
     else:
