@@ -38,6 +38,7 @@ import numpy as np
 import pvlib
 
 from .horizon import _count_below, horizon_band_fraction, site_horizon_deg, sky_view_factor
+from .plane import perez_f1_f2
 from .skyyear import SkyYear
 
 #: Upper bound on the float64 working set of one chunk (of intervals, or of days
@@ -83,49 +84,6 @@ class ManyPlaneTerms:
     f1_over_b: np.ndarray      # Perez F1 / max(cos z, cos 85) (0 for other models)
     one_minus_f1: np.ndarray   # Perez 1 - F1 (1 for isotropic, 1 - AI for Hay-Davies)
     f2: np.ndarray             # Perez F2 (0 for other models)
-
-
-def perez_f1_f2(dhi, dni, dni_extra, solar_zenith, airmass):
-    """Perez 1990 circumsolar and horizon brightening coefficients F1, F2.
-
-    Parameters
-    ----------
-    dhi, dni, dni_extra : array_like
-        W/m².
-    solar_zenith : array_like
-        Apparent zenith, degrees.
-    airmass : array_like
-        Relative airmass.
-
-    Returns
-    -------
-    (numpy.ndarray, numpy.ndarray)
-        F1 (clipped at 0, as pvlib does) and F2.
-
-    References
-    ----------
-    Perez, R., Ineichen, P., Seals, R., Michalsky, J. & Stewart, R. (1990).
-    Solar Energy 44(5), 271-289, with the 'allsitescomposite1990' coefficients
-    and the bins and kappa = 1.041 of pvlib.irradiance.perez.
-    """
-    dhi = np.asarray(dhi, dtype=float)
-    dni = np.asarray(dni, dtype=float)
-    kappa = 1.041
-    z = np.radians(np.asarray(solar_zenith, dtype=float))
-    delta = dhi * np.asarray(airmass, dtype=float) / np.asarray(dni_extra, dtype=float)
-    with np.errstate(invalid="ignore", divide="ignore"):
-        eps = (np.divide(dhi + dni, dhi) + kappa * z**3) / (1 + kappa * z**3)
-    ebin = np.digitize(eps, (0.0, 1.065, 1.23, 1.5, 1.95, 2.8, 4.5, 6.2))
-    ebin = np.array(ebin)
-    ebin[np.isnan(eps)] = 0
-    ebin -= 1
-    f1c, f2c = pvlib.irradiance._get_perez_coefficients("allsitescomposite1990")
-    nans = np.array([np.nan, np.nan, np.nan])
-    f1c = np.vstack((f1c, nans))
-    f2c = np.vstack((f2c, nans))
-    f1 = np.maximum(f1c[ebin, 0] + f1c[ebin, 1] * delta + f1c[ebin, 2] * z, 0)
-    f2 = f2c[ebin, 0] + f2c[ebin, 1] * delta + f2c[ebin, 2] * z
-    return f1, f2
 
 
 def many_plane_terms(sky: SkyYear, model: str | None = None) -> ManyPlaneTerms:
