@@ -106,7 +106,7 @@ _TERM_FIELDS = ("sidereal_deg", "right_ascension_deg", "declination_deg", "radiu
                 "equation_of_time_min")
 
 #: Sets of instants kept by :func:`time_terms` per process.
-TIME_TERMS_CACHE_SIZE = 8
+TIME_TERMS_CACHE_SIZE = 12
 
 #: Larger sets of instants are computed but not kept (a year at 5-minute intervals fits).
 TIME_TERMS_CACHE_MAX = 110_000
@@ -261,7 +261,8 @@ def _kept_per_process(store: dict, t: np.ndarray, dt: np.ndarray, compute, field
     (attributes of what ``build`` makes, along with ``unixtime`` and ``delta_t``).
     A set seen before comes back as it is; a set of the same length agreeing with
     a kept one in at least half its instants takes the kept values there and
-    computes the rest (two or more instants at once, as a whole set is computed).
+    computes the rest (two or more instants at once, as a whole set is computed),
+    and is kept in its place.
     The last :data:`TIME_TERMS_CACHE_SIZE` sets of :data:`TIME_TERMS_CACHE_MIN` to
     :data:`TIME_TERMS_CACHE_MAX` instants are kept. Common practice, no source.
     """
@@ -274,16 +275,16 @@ def _kept_per_process(store: dict, t: np.ndarray, dt: np.ndarray, compute, field
             if hit is not None:
                 store[key] = hit                   # most recently used last
                 return hit
-            kept = list(store.values())
-    values = None
+            kept = list(store.items())
+    values = base = None
     if keep:
-        for old in reversed(kept):
+        for old_key, old in reversed(kept):
             if len(old.unixtime) != t.size:
                 continue
             same = (old.unixtime == t) & (old.delta_t == dt)
             if same.mean() < 0.5:
                 continue
-            values = [getattr(old, f).copy() for f in fields]
+            base, values = old_key, [getattr(old, f).copy() for f in fields]
             new = np.flatnonzero(~same)
             if new.size:
                 pick = new if new.size > 1 else np.repeat(new, 2)
@@ -296,6 +297,9 @@ def _kept_per_process(store: dict, t: np.ndarray, dt: np.ndarray, compute, field
     out = build(values)
     if keep:
         with _cache_lock:
+            # the new set takes the place of the one it was made from: the next site of
+            # the zone starts from either as well, and each zone keeps one set of its kind
+            store.pop(base, None)
             store[key] = out
             while len(store) > TIME_TERMS_CACHE_SIZE:
                 store.pop(next(iter(store)))

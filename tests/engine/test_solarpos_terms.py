@@ -73,6 +73,8 @@ def test_partly_new_instants_take_the_kept_terms_and_compute_the_rest():
                                                                  np.full(shifted.size, 69.0)))
         for f in solarpos._TERM_FIELDS:
             np.testing.assert_array_equal(getattr(got, f), getattr(fresh, f))
+        # the partly new set takes the place of the one it came from
+        assert len(solarpos._cache) == 1
 
 
 def test_cache_is_bounded():
