@@ -127,7 +127,7 @@ def _irradiance_parser(sub, options: bool = True) -> None:
                                    "azimuth (degrees clockwise from true north, south = 180).")
     if not options:
         return
-    from tiltyard.engine.sky import SOLAR_CONSTANT_W_M2
+    from tiltyard.engine.choices import SOLAR_CONSTANT_W_M2
 
     s.add_argument("site", metavar="SITE", help=SITE_HELP)
     s.add_argument("--tilt", type=float, required=True, metavar="DEG",
@@ -174,8 +174,7 @@ def _sheet_parser(sub, options: bool = True) -> None:
                "to the desktop app's preferences.")
     if not options:
         return
-    from tiltyard.engine.tilt import OPTION_KINDS
-    from tiltyard.engine.timegrid import TIME_BASES
+    from tiltyard.engine.choices import OPTION_KINDS, TIME_BASES
 
     s.add_argument("site", metavar="SITE", help=SITE_HELP)
     s.add_argument("-o", "--output", metavar="FILE.pdf", default=None,
@@ -230,7 +229,7 @@ SUBCOMMANDS = {"sites": _sites_parser, "sun": _sun_parser, "irradiance": _irradi
 def _add_study_options(s) -> None:
     """The tilt study's flags (study and sheet take the same ones). Flags left out keep the
     site file's saved settings (its ``assessment`` section), else the defaults."""
-    from tiltyard.engine.site import MOUNTINGS
+    from tiltyard.engine.choices import MOUNTINGS
 
     _add_model_options(s)
     s.add_argument("--objective", default=None, metavar="OBJ",
@@ -266,9 +265,12 @@ def _add_study_options(s) -> None:
 
 def _add_model_options(s) -> None:
     """The sky's models, year and interval (irradiance, study and sheet take the same)."""
-    from tiltyard.engine.plane import TRANSPOSITION_MODELS
-    from tiltyard.engine.sky import CLEARSKY_MODELS
-    from tiltyard.engine.timegrid import REFERENCE_YEAR, STEPS_MIN
+    from tiltyard.engine.choices import (
+        CLEARSKY_MODELS,
+        REFERENCE_YEAR,
+        STEPS_MIN,
+        TRANSPOSITION_MODELS,
+    )
 
     s.add_argument("--model", choices=TRANSPOSITION_MODELS, default=None,
                    help="sky diffuse model (default perez)")

@@ -54,7 +54,7 @@ def add_batch_parser(sub, add_sky_options, add_study_options, options: bool = Tr
                        description=_BATCH_DESCRIPTION, epilog=_BATCH_EPILOG)
     if not options:
         return
-    from tiltyard.engine.timegrid import TIME_BASES
+    from tiltyard.engine.choices import TIME_BASES
 
     s.add_argument("input", metavar="INPUT",
                    help="a .csv of sites, a .geojson FeatureCollection or a folder of site files")

@@ -33,6 +33,17 @@ SKY_BASES = ("clear", "monthly", "file")
 #: The default year: a fixed, non-leap reference year, shown in every output.
 REFERENCE_YEAR = 2023
 
+#: How panels are held (a :class:`tiltyard.engine.site.Plane`'s ``mounting``).
+MOUNTINGS = ("flush", "fixed-rack", "adjustable", "ground-rows", "flat-roof-rows")
+
+#: Time bases of displayed times: local clock time, local standard time, apparent
+#: solar time (:mod:`tiltyard.engine.timegrid`).
+TIME_BASES = ("clock", "standard", "solar")
+
+#: Kinds of tilt-study option, in the order a study lists them (:mod:`tiltyard.engine.tilt`).
+OPTION_KINDS = ("horizontal", "plane", "rule-of-thumb", "fixed-optimal", "two-season",
+                "four-season", "monthly", "two-axis")
+
 #: Interval lengths offered for resampling a clear or monthly sky, minutes.
 STEPS_MIN = (60, 30, 15, 10, 5, 1)
 

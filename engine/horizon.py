@@ -8,6 +8,7 @@ profile and its obstacles.
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass
 
 import numpy as np
@@ -379,7 +380,13 @@ def sky_view_factor(surface_tilt, surface_azimuth, horizon_elevation_deg, n_az: 
         shift_u, shift_inv = np.unique(shift_idx, return_inverse=True)
         if (tilt_u[0] >= 0.0 and tilt_u[-1] <= 90.0
                 and tilt_u.size * shift_u.size <= _PRODUCT_RATIO * tilt_deg.size):
-            f = _svf_product(tilt_u, shift_u, h, n_az)[tilt_inv, shift_inv]
+            if shift_u.size > 2 and np.all(h == h[0]):
+                # a level horizon (an open site): every azimuth's column is the same sums
+                # of the same numbers, so one column serves them all, bit for bit (two
+                # are computed: numpy adds a lone column's rows pairwise, several in turn)
+                f = _svf_product(tilt_u, shift_u[:2], h, n_az)[tilt_inv, 0]
+            else:
+                f = _svf_product(tilt_u, shift_u, h, n_az)[tilt_inv, shift_inv]
         else:
             f = _svf_on_grid(tilt_deg, shift_idx, h, n_az)
     else:
@@ -477,10 +484,18 @@ class HorizonShading:
 def plane_shading(site: Site, surface_tilt: float, surface_azimuth: float) -> HorizonShading:
     """Horizon effects of ``site``'s effective horizon on one plane.
 
+    Kept for the last planes asked for (a study's schedules meet the same planes
+    again and again).
+
     References
     ----------
     See :func:`sky_view_factor` and :func:`horizon_band_fraction`.
     """
+    return _plane_shading(site, float(surface_tilt), float(surface_azimuth))
+
+
+@functools.lru_cache(maxsize=64)
+def _plane_shading(site: Site, surface_tilt: float, surface_azimuth: float) -> HorizonShading:
     def hz(a):
         return site_horizon_deg(site, a)
 

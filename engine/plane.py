@@ -86,6 +86,22 @@ def poa_components(surface_tilt, surface_azimuth, solar_zenith, solar_azimuth, g
     See :data:`TRANSPOSITION_REFERENCES`; pvlib.irradiance.get_total_irradiance
     for the open-horizon sum (this function equals it when the horizon is open).
     """
+    index = solar_zenith.index if isinstance(solar_zenith, pd.Series) else None
+    return pd.DataFrame(poa_arrays(surface_tilt, surface_azimuth, solar_zenith, solar_azimuth,
+                                   ghi, dni, dhi, dni_extra, albedo, model, airmass,
+                                   sun_visible, shading), index=index)
+
+
+def poa_arrays(surface_tilt, surface_azimuth, solar_zenith, solar_azimuth, ghi, dni, dhi,
+               dni_extra, albedo, model: str = "perez", airmass=None,
+               sun_visible=None, shading: HorizonShading | None = None) -> dict:
+    """The columns of :func:`poa_components` as a dict of arrays (no DataFrame), for
+    callers that take a few of them over many calls; same parameters, same numbers.
+
+    References
+    ----------
+    As :func:`poa_components`.
+    """
     if model not in TRANSPOSITION_MODELS:
         raise ValueError(f"model = {model!r}: must be one of {', '.join(TRANSPOSITION_MODELS)}")
     ghi = np.asarray(ghi, dtype=float)
@@ -93,7 +109,6 @@ def poa_components(surface_tilt, surface_azimuth, solar_zenith, solar_azimuth, g
     dhi = np.asarray(dhi, dtype=float)
     zen = np.asarray(solar_zenith, dtype=float)
     saz = np.asarray(solar_azimuth, dtype=float)
-    index = solar_zenith.index if isinstance(solar_zenith, pd.Series) else None
     aoi = np.asarray(angle_of_incidence(surface_tilt, surface_azimuth, zen, saz), dtype=float)
     beam = np.maximum(dni * np.cos(np.radians(aoi)), 0.0)
     if model == "isotropic":
@@ -137,4 +152,47 @@ def poa_components(surface_tilt, surface_azimuth, solar_zenith, solar_azimuth, g
     # summed in the same order as poa_global, so an open horizon loses exactly 0
     out["poa_global_open"] = beam + out["poa_sky_diffuse_open"] + ground
     out["aoi"] = aoi
-    return pd.DataFrame(out, index=index)
+    return out
+
+
+def perez_f1_f2(dhi, dni, dni_extra, solar_zenith, airmass):
+    """Perez 1990 circumsolar and horizon brightening coefficients F1, F2.
+
+    Parameters
+    ----------
+    dhi, dni, dni_extra : array_like
+        W/m².
+    solar_zenith : array_like
+        Apparent zenith, degrees.
+    airmass : array_like
+        Relative airmass.
+
+    Returns
+    -------
+    (numpy.ndarray, numpy.ndarray)
+        F1 (clipped at 0, as pvlib does) and F2.
+
+    References
+    ----------
+    Perez, R., Ineichen, P., Seals, R., Michalsky, J. & Stewart, R. (1990).
+    Solar Energy 44(5), 271-289, with the 'allsitescomposite1990' coefficients
+    and the bins and kappa = 1.041 of pvlib.irradiance.perez.
+    """
+    dhi = np.asarray(dhi, dtype=float)
+    dni = np.asarray(dni, dtype=float)
+    kappa = 1.041
+    z = np.radians(np.asarray(solar_zenith, dtype=float))
+    delta = dhi * np.asarray(airmass, dtype=float) / np.asarray(dni_extra, dtype=float)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        eps = (np.divide(dhi + dni, dhi) + kappa * z**3) / (1 + kappa * z**3)
+    ebin = np.digitize(eps, (0.0, 1.065, 1.23, 1.5, 1.95, 2.8, 4.5, 6.2))
+    ebin = np.array(ebin)
+    ebin[np.isnan(eps)] = 0
+    ebin -= 1
+    f1c, f2c = pvlib.irradiance._get_perez_coefficients("allsitescomposite1990")
+    nans = np.array([np.nan, np.nan, np.nan])
+    f1c = np.vstack((f1c, nans))
+    f2c = np.vstack((f2c, nans))
+    f1 = np.maximum(f1c[ebin, 0] + f1c[ebin, 1] * delta + f1c[ebin, 2] * z, 0)
+    f2 = f2c[ebin, 0] + f2c[ebin, 1] * delta + f2c[ebin, 2] * z
+    return f1, f2

@@ -38,7 +38,15 @@ import pandas as pd
 from scipy.optimize import brentq, minimize_scalar
 
 from .site import Site
-from .solarpos import RISE_SET_ELEVATION_DEG, delta_t_s, solar_position
+from .solarpos import (
+    RISE_SET_ELEVATION_DEG,
+    _spa_unixtime,
+    delta_t_s,
+    site_positions,
+    site_pressure_pa,
+    solar_position,
+    time_terms,
+)
 from .sunevents import sun_events
 from .timegrid import REFERENCE_YEAR, local_date
 from .words import day_month
@@ -195,11 +203,18 @@ def irradiation_per_ground_m2(poa_kwh_m2, gcr):
 # -- the design date ------------------------------------------------------------
 
 @functools.lru_cache(maxsize=16)
+def _date_events(site: Site, date: pd.Timestamp) -> pd.Series:
+    """The sun events of one local date (:func:`tiltyard.engine.sunevents.sun_events`),
+    once per site and date: the design date's rule and its window both read them."""
+    return sun_events(site, [date]).table.iloc[0]
+
+
+@functools.lru_cache(maxsize=16)
 def _noon_sun(site: Site, date: pd.Timestamp) -> tuple[float, float]:
     """Apparent elevation and azimuth of the sun at solar noon on a local date, degrees
     (Reda & Andreas 2008, NREL/TP-560-34302, App. A.2, through pvlib); once per site
     and date, whatever the rows' azimuth."""
-    noon = sun_events(site, [date]).table["solar_noon"].iloc[0]
+    noon = _date_events(site, date)["solar_noon"]
     pos = solar_position(pd.DatetimeIndex([noon]), site)
     return float(pos["apparent_elevation"].iloc[0]), float(pos["azimuth"].iloc[0])
 
@@ -350,14 +365,17 @@ class _Sun:
         self.site = site
         self.noon_utc = noon_utc
         self.delta_t = float(delta_t_s(pd.DatetimeIndex([noon_utc]))[0])
+        self.pressure_pa = site_pressure_pa(site.elevation_m)
 
     def times(self, offsets_s) -> pd.DatetimeIndex:
         us = np.round(np.asarray(offsets_s, dtype=float) * 1e6).astype("int64")
         return pd.DatetimeIndex(self.noon_utc + pd.to_timedelta(us, unit="us"))
 
     def __call__(self, offsets_s):
-        pos = solar_position(self.times(offsets_s), self.site, delta_t=self.delta_t)
-        return pos["apparent_elevation"].to_numpy(), pos["azimuth"].to_numpy()
+        # solar_position's steps without its table (this is called many times per layout)
+        terms = time_terms(_spa_unixtime(self.times(offsets_s)), self.delta_t)
+        _, _, el_app, _, az = site_positions(terms, self.site, self.pressure_pa)
+        return el_app, az
 
 
 @dataclass(frozen=True)
@@ -385,7 +403,7 @@ def _design_window(site: Site, day: pd.Timestamp, half: float, step: float,
     depend on the rows' tilt or azimuth (Reda & Andreas 2008, NREL/TP-560-34302,
     for the positions and the noon, through pvlib).
     """
-    ev = sun_events(site, [day]).table.iloc[0]
+    ev = _date_events(site, day)
     noon = pd.Timestamp(ev["solar_noon"]).tz_convert(site.timezone)
     sun = _Sun(site, noon.tz_convert("UTC"))
     half_s = half * 3600.0

@@ -21,6 +21,7 @@ from typing import Any
 from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 
 from . import site_limits as _limits
+from .choices import MOUNTINGS as MOUNTINGS
 from .words import figure
 
 #: Who a sheet is prepared for: the site's optional ``prepared_for`` object (format 2; a
@@ -30,9 +31,6 @@ CLIENT_FIELDS = ("client", "address", "reference")
 CLIENT_KEYS = ("prepared_for",)
 #: Longest client, address or reference, characters.
 CLIENT_FIELD_MAX = 300
-
-#: How panels are held (see :data:`tiltyard.engine.tilt.MOUNTINGS` for what each allows).
-MOUNTINGS = ("flush", "fixed-rack", "adjustable", "ground-rows", "flat-roof-rows")
 
 
 class SiteError(ValueError):

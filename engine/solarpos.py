@@ -106,12 +106,17 @@ _TERM_FIELDS = ("sidereal_deg", "right_ascension_deg", "declination_deg", "radiu
                 "equation_of_time_min")
 
 #: Sets of instants kept by :func:`time_terms` per process.
-TIME_TERMS_CACHE_SIZE = 8
+TIME_TERMS_CACHE_SIZE = 12
 
 #: Larger sets of instants are computed but not kept (a year at 5-minute intervals fits).
 TIME_TERMS_CACHE_MAX = 110_000
 
+#: Smaller sets are computed but not kept either: they are cheap, belong to one site (a
+#: day's path, a root search, a row layout's window) and would push a year's terms out.
+TIME_TERMS_CACHE_MIN = 256
+
 _cache: dict = {}
+_radius_cache: dict = {}         # earth_sun_distance_au's sets, kept the same way
 _cache_lock = threading.Lock()   # engine calls may run in threads
 
 
@@ -239,50 +244,74 @@ def time_terms(unixtime, delta_t) -> TimeTerms:
     """
     t = np.atleast_1d(np.asarray(unixtime, dtype=float))
     dt = np.broadcast_to(np.asarray(delta_t, dtype=float), t.shape)
-    keep = t.size <= TIME_TERMS_CACHE_MAX
+
+    def build(values):
+        out = TimeTerms(t.copy(), np.array(dt), *values)
+        for f in ("unixtime", "delta_t", *_TERM_FIELDS):
+            getattr(out, f).setflags(write=False)
+        return out
+
+    return _kept_per_process(_cache, t, dt, _compute_time_terms, _TERM_FIELDS, build)
+
+
+def _kept_per_process(store: dict, t: np.ndarray, dt: np.ndarray, compute, fields, build):
+    """``build(values)`` for the instants ``t`` with delta T ``dt``, kept in ``store``.
+
+    ``compute(t, dt)`` gives the tuple of elementwise values named ``fields``
+    (attributes of what ``build`` makes, along with ``unixtime`` and ``delta_t``).
+    A set seen before comes back as it is; a set of the same length agreeing with
+    a kept one in at least half its instants takes the kept values there and
+    computes the rest (two or more instants at once, as a whole set is computed),
+    and is kept in its place.
+    The last :data:`TIME_TERMS_CACHE_SIZE` sets of :data:`TIME_TERMS_CACHE_MIN` to
+    :data:`TIME_TERMS_CACHE_MAX` instants are kept. Common practice, no source.
+    """
+    keep = TIME_TERMS_CACHE_MIN <= t.size <= TIME_TERMS_CACHE_MAX
     key = None
     if keep:
         key = (t.size, hashlib.blake2b(t.tobytes() + dt.tobytes(), digest_size=16).digest())
         with _cache_lock:
-            hit = _cache.pop(key, None)
+            hit = store.pop(key, None)
             if hit is not None:
-                _cache[key] = hit                  # most recently used last
+                store[key] = hit                   # most recently used last
                 return hit
-            kept = list(_cache.values())
-    values = None
+            kept = list(store.items())
+    values = base = None
     if keep:
-        for old in reversed(kept):
-            if len(old) != t.size:
+        for old_key, old in reversed(kept):
+            if len(old.unixtime) != t.size:
                 continue
             same = (old.unixtime == t) & (old.delta_t == dt)
             if same.mean() < 0.5:
                 continue
-            values = [getattr(old, f).copy() for f in _TERM_FIELDS]
+            base, values = old_key, [getattr(old, f).copy() for f in fields]
             new = np.flatnonzero(~same)
             if new.size:
-                # two or more instants at once, as a whole set is computed
                 pick = new if new.size > 1 else np.repeat(new, 2)
-                fresh = _compute_time_terms(t[pick], dt[pick])
+                fresh = compute(t[pick], dt[pick])
                 for v, f in zip(values, fresh, strict=True):
                     v[new] = f[: new.size]
             break
     if values is None:
-        values = _compute_time_terms(t, dt)
-    out = TimeTerms(t.copy(), np.array(dt), *values)
-    for f in ("unixtime", "delta_t", *_TERM_FIELDS):
-        getattr(out, f).setflags(write=False)
+        values = compute(t, dt)
+    out = build(values)
     if keep:
         with _cache_lock:
-            _cache[key] = out
-            while len(_cache) > TIME_TERMS_CACHE_SIZE:
-                _cache.pop(next(iter(_cache)))
+            # the new set takes the place of the one it was made from: the next site of
+            # the zone starts from either as well, and each zone keeps one set of its kind
+            store.pop(base, None)
+            store[key] = out
+            while len(store) > TIME_TERMS_CACHE_SIZE:
+                store.pop(next(iter(store)))
     return out
 
 
 def clear_time_terms_cache() -> None:
-    """Forget the kept :class:`TimeTerms` (tests; a worker that moves to another year)."""
+    """Forget the kept :class:`TimeTerms` and Earth-Sun distances (tests; a worker that
+    moves to another year)."""
     with _cache_lock:
         _cache.clear()
+        _radius_cache.clear()
 
 
 def site_positions(terms: TimeTerms, site: Site, pressure_pa: float | None = None,
@@ -523,13 +552,37 @@ def declination_deg(times: pd.DatetimeIndex) -> np.ndarray:
 def earth_sun_distance_au(times: pd.DatetimeIndex) -> np.ndarray:
     """Earth-Sun distance in astronomical units by SPA.
 
+    A year's evaluation instants are the same for every site of a time zone but
+    where the sun rises or sets inside an interval, so the distances are kept per
+    process as :func:`time_terms` keeps its terms (the same numbers as computed
+    afresh).
+
     References
     ----------
     Reda & Andreas (2008), NREL/TP-560-34302, section 3.2.8, through
     :func:`pvlib.solarposition.nrel_earthsun_distance`.
     """
     t = pd.DatetimeIndex(times)
-    return np.asarray(pvlib.solarposition.nrel_earthsun_distance(t, delta_t=delta_t_s(t)),
-                      dtype=float)
+    unixtime = np.atleast_1d(_spa_unixtime(t).astype(float))
+    dt = np.broadcast_to(np.asarray(delta_t_s(t), dtype=float), unixtime.shape)
+    kept = _kept_per_process(_radius_cache, unixtime, dt, _radius_au, ("radius_au",),
+                             lambda values: _Radius(unixtime.copy(), np.array(dt), values[0]))
+    return kept.radius_au.copy()
+
+
+@dataclass(frozen=True, eq=False)
+class _Radius:
+    """Earth-Sun distances at a set of instants, as :func:`earth_sun_distance_au` keeps them."""
+
+    unixtime: np.ndarray
+    delta_t: np.ndarray
+    radius_au: np.ndarray
+
+
+def _radius_au(unixtime: np.ndarray, delta_t: np.ndarray) -> tuple[np.ndarray]:
+    """SPA's Earth-Sun distance, AU: :func:`pvlib.spa.earthsun_distance`, which
+    :func:`pvlib.solarposition.nrel_earthsun_distance` calls (Reda & Andreas 2008,
+    sec. 3.2.8)."""
+    return (np.asarray(_spa.earthsun_distance(unixtime, delta_t, 1), dtype=float),)
 
 

@@ -135,7 +135,7 @@ def _series(name: str, value, index: pd.DatetimeIndex, lo: float, hi: float, uni
 
 def specific_yield(poa_global: pd.Series, interval_h, temp_air=None, wind_speed=None,
                    loss_fraction: float = 0.14, gamma_pdc: float = -0.004, u0: float = 25.0,
-                   u1: float = 6.84) -> SpecificYield:
+                   u1: float = 6.84, month=None) -> SpecificYield:
     """Indicative specific yield, kWh per kWp, from plane-of-array irradiance.
 
     ``yield = sum(E / 1000 * (1 + gamma_pdc (T_cell - 25)) * (1 - loss_fraction) * dt)``
@@ -167,6 +167,9 @@ def specific_yield(poa_global: pd.Series, interval_h, temp_air=None, wind_speed=
         Faiman constant heat loss factor, W/m²/K (greater than 0, at most 100).
     u1 : float, default 6.84
         Faiman wind heat loss factor, W/m²/K per m/s (0 to 50).
+    month : array_like of int, optional
+        Each value's calendar month (1-12) in the index's own time zone, when the
+        caller has it already (a sky year's ``month``); by default from the index.
 
     Returns
     -------
@@ -232,7 +235,13 @@ def specific_yield(poa_global: pd.Series, interval_h, temp_air=None, wind_speed=
     y = dc * (1.0 - loss) * dt
     h = float(np.sum(e * dt))
     temp_loss = 0.0 if h <= 0.0 else 100.0 * (1.0 - float(np.sum(e * factor * dt)) / h)
-    monthly = np.bincount(index.month.to_numpy() - 1, weights=y, minlength=12)
+    if month is None:
+        month = index.month.to_numpy()
+    month = np.asarray(month)
+    if month.shape != (len(e),) or month.min() < 1 or month.max() > 12:
+        raise ValueError(f"month: must hold {len(e)} months, 1-12 (one per value of "
+                         "poa_global)")
+    monthly = np.bincount(month.astype(np.intp) - 1, weights=y, minlength=12)
     series = pd.DataFrame({"poa_global": e, "temp_cell": temp_cell, "dc_kw_kwp": dc,
                            "yield_kwh_kwp": y}, index=index)
     return SpecificYield(

@@ -182,9 +182,10 @@ def _day_transits(t0, t1, ds: _DaySun) -> tuple[np.ndarray, np.ndarray, np.ndarr
 def _local(seconds, tz) -> pd.DatetimeIndex:
     """UT seconds (NaN for none) as local aware times (NaT for none)."""
     s = np.asarray(seconds, dtype=float)
-    us = np.where(np.isfinite(s), np.round(np.nan_to_num(s) * 1e6), 0).astype("int64")
+    finite = np.isfinite(s)
+    us = np.where(finite, np.round(np.nan_to_num(s) * 1e6), 0).astype("int64")
     idx = pd.DatetimeIndex(pd.to_datetime(us, unit="us", utc=True)).tz_convert(tz)
-    return idx.where(np.isfinite(s))
+    return idx if finite.all() else idx.where(finite)
 
 
 def sun_events(site: Site, dates) -> SunEvents:

@@ -14,6 +14,7 @@ standard time and apparent solar time are for display.
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass
 from datetime import timedelta
 from zoneinfo import ZoneInfo
@@ -24,6 +25,7 @@ import pandas as pd
 from .choices import GRID_STEPS_MIN as GRID_STEPS_MIN
 from .choices import REFERENCE_YEAR as REFERENCE_YEAR
 from .choices import STEPS_MIN as STEPS_MIN
+from .choices import TIME_BASES as TIME_BASES
 from .choices import check_step_min as check_step_min
 
 #: Words used in outputs to state the time convention.
@@ -31,8 +33,6 @@ MIDPOINT_CONVENTION = (
     "interval values at the interval midpoint; sunrise and sunset intervals at the "
     "midpoint of their sun-up part, weighted by its length"
 )
-
-TIME_BASES = ("clock", "standard", "solar")
 
 
 @dataclass(frozen=True)
@@ -72,9 +72,9 @@ class TimeGrid:
         return self.start_utc.append(
             pd.DatetimeIndex([self.start_utc[-1] + pd.Timedelta(minutes=self.step_min)]))
 
-    @property
+    @functools.cached_property
     def start_local(self) -> pd.DatetimeIndex:
-        """Interval starts in local clock time (with daylight saving)."""
+        """Interval starts in local clock time (with daylight saving); computed once."""
         return self.start_utc.tz_convert(self.timezone)
 
     def __len__(self) -> int:

@@ -9,14 +9,12 @@ from dataclasses import dataclass, field, fields
 
 import numpy as np
 
+from ..choices import OPTION_KINDS as OPTION_KINDS
 from ..choices import RowSettings, StudySettings, check_positions
 from ..choices import _check_switch_dates as _check_switch_dates
 from ..manyplane import sum_by_month
 from ..site import MOUNTINGS
 from ..skyyear import IrradianceOptions
-
-OPTION_KINDS = ("horizontal", "plane", "rule-of-thumb", "fixed-optimal", "two-season",
-                "four-season", "monthly", "two-axis")
 
 #: How the panels are held, and so which options a study may list and recommend:
 #: ``flush`` on the roof (the roof's own tilt and azimuth; no seasonal option),

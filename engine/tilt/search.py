@@ -62,20 +62,23 @@ def _two_period_exhaustive(cum, n_days, min_days):
 
     A two-period split is one period ``[s1, s1 + length)`` (cyclic) and the
     rest; a length and its complement give the same splits, so lengths up to
-    half the year cover every split once.
+    half the year cover every split once. Each length's segment sums are
+    computed into the same two buffers (slices of the two-year cumulative sums,
+    no gathering), so they stay in cache.
     """
     total_all = cum[n_days]
     cum2 = np.vstack([cum, total_all[None, :] + cum[1:]])   # cumulative over two years
-    s1 = np.arange(n_days)
+    start = cum2[:n_days]
+    seg_a, seg_b = np.empty_like(start), np.empty_like(start)
     best_total, best_sw = -np.inf, None
     for length in range(min_days, n_days // 2 + 1):
-        seg_a = cum2[s1 + length] - cum2[s1]
-        seg_b = total_all[None, :] - seg_a
+        np.subtract(cum2[length:length + n_days], start, out=seg_a)
+        np.subtract(total_all[None, :], seg_a, out=seg_b)
         tot = seg_a.max(axis=1) + seg_b.max(axis=1)
         i = int(np.argmax(tot))
         if tot[i] > best_total:
             best_total = float(tot[i])
-            best_sw = sorted([int(s1[i]), int((s1[i] + length) % n_days)])
+            best_sw = sorted([i, (i + length) % n_days])
     tilts, total = _best_tilts_separable(cum, best_sw, n_days)
     return best_sw, tilts, total
 
@@ -192,6 +195,8 @@ def _improve_for_objective(daily, switches, tilts, month_of_day, opts, n_days, m
     month = np.asarray(month_of_day, dtype=np.intp) - 1
     rows = np.arange(n_days)
     n_t = daily.shape[1]
+    daily_t = np.ascontiguousarray(daily.T)                     # (tilt, day)
+    bins = (np.arange(n_t)[:, None] * 12 + month[None, :]).ravel()
 
     def score(sw, tl):
         d = daily[rows, _day_tilts(sw, tl, n_days)]
@@ -205,11 +210,11 @@ def _improve_for_objective(daily, switches, tilts, month_of_day, opts, n_days, m
         in_p = np.zeros(n_days, dtype=bool)
         in_p[_period_days(a, b, n_days)] = True
         base = daily[rows, day_t]
-        monthly = np.empty((n_t, 12))
-        for t in range(n_t):
-            monthly[t] = np.bincount(month, weights=np.where(in_p, daily[:, t], base),
-                                     minlength=12)
-        return _schedule_scores(monthly, opts, active)
+        # one bincount for every tilt column: bin (t, month) takes its days in day
+        # order, as a bincount of column t alone does
+        trial = np.where(in_p[None, :], daily_t, base[None, :])
+        monthly = np.bincount(bins, weights=trial.ravel(), minlength=n_t * 12)
+        return _schedule_scores(monthly.reshape(n_t, 12), opts, active)
 
     best = score(switches, tilts)
     sw, tl = list(switches), list(tilts)

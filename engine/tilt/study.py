@@ -12,8 +12,8 @@ import numpy as np
 import pandas as pd
 
 from ..horizon import plane_shading
-from ..manyplane import many_plane_daily, many_plane_terms
-from ..plane import poa_components
+from ..manyplane import many_plane_daily, many_plane_monthly, many_plane_terms
+from ..plane import poa_arrays
 from ..rows import irradiation_per_ground_m2, row_layout
 from ..site import Site
 from ..skyyear import SkyYear, sky_year
@@ -109,7 +109,8 @@ def tilt_study(site: Site, opts: StudyOptions | None = None,
     report(0.6, "seasonal schedules")
     options.extend(st.seasonal())
     report(0.85, "two-axis ceiling")
-    options.append(_two_axis(sky, site, st.mod))
+    tracking_poa = _periods_arrays(sky, site, None, ("poa_global",))[2]["poa_global"]
+    options.append(_two_axis(sky, st.mod, tracking_poa))
     curve_az = fixed_opt.schedule[0].azimuth_deg
     tilt_curve = st.curve(curve_az)
     if opts.irradiance.sky == "clear":
@@ -125,7 +126,9 @@ def tilt_study(site: Site, opts: StudyOptions | None = None,
     fixed_p = fixed_opt.schedule[0]
     row_tilt = fixed_p.tilt_deg if opts.row_tilt_deg is None else opts.row_tilt_deg
     chosen_rows, row_note = layouts.get(row_tilt, fixed_p.azimuth_deg)
-    yields = tuple(_option_yield(sky, site, o, opts) for o in options)
+    yields = tuple(_option_yield(sky, site, o, opts,
+                                 tracking_poa if o.kind == "two-axis" else None)
+                   for o in options)
     monthly_method = None
     if opts.irradiance.sky == "monthly":
         monthly_method = monthly_method_comparison(site, options, opts.irradiance.year,
@@ -169,7 +172,8 @@ class _Scorer:
         """The tilt x azimuth map in objective units (% of its best) and its best plane."""
         g_t, g_a = np.meshgrid(np.arange(0.0, 91.0, 1.0), np.arange(0.0, 360.0, 5.0),
                                indexing="ij")
-        g_month, _ = self.monthly(g_t, g_a)
+        # monthly totals straight from the year (the map needs no daily table)
+        g_month = many_plane_monthly(self.terms, g_t, g_a, self.mod, site=self.site)
         g_score = self.score_cols(g_month).reshape(g_t.shape)
         gi = np.unravel_index(int(np.argmax(g_score)), g_score.shape)
         self.grid_tilts, self.grid_azimuths = g_t, g_a
@@ -189,13 +193,18 @@ class _Scorer:
         else:
             azimuths = np.mod(self.grid_best_azimuth + np.arange(-5.0, 5.5, 1.0), 360.0)
         c_t, c_a = np.meshgrid(tilts, azimuths, indexing="ij")
-        c_month, cand = self.monthly(c_t, c_a)
+        seasonal = any(opts.allows(k) for k, _ in SEASONAL_KINDS)
+        if seasonal:
+            c_month, cand = self.monthly(c_t, c_a)
+        else:       # no schedule to search: the candidates' months straight from the year
+            c_month = many_plane_monthly(self.terms, c_t, c_a, self.mod, site=self.site)
         ci = int(np.argmax(self.score_cols(c_month)))
         opt_tilt, opt_az = float(c_t.ravel()[ci]), float(c_a.ravel()[ci])
         ai = int(np.flatnonzero(azimuths == opt_az)[0])
         # the candidates' daily columns at the optimum's azimuth feed the schedules
-        self.sched_daily = cand.daily_kwh_m2.reshape(self.n_days, len(tilts),
-                                                     len(azimuths))[:, :, ai]
+        self.sched_daily = (cand.daily_kwh_m2.reshape(self.n_days, len(tilts),
+                                                      len(azimuths))[:, :, ai]
+                            if seasonal else None)
         self.sched_tilts, self.sched_az = tilts, opt_az
         label = ("Best plane for the site" if opts.mounting == "flush" else "Optimal fixed")
         note = (f"optimum over tilts from {tilts[0]:g} deg to {tilts[-1]:g} deg in steps of "
@@ -217,9 +226,9 @@ class _Scorer:
             return []
         open_site = site.with_changes(horizon=type(site.horizon)(), obstacles=())
         g_t, g_a = self.grid_tilts, self.grid_azimuths
-        og = many_plane_daily(many_plane_terms(_open_sky(sky, open_site)), g_t, g_a,
-                              site=open_site)
-        og_ann = og.daily_kwh_m2.sum(axis=0).reshape(g_t.shape)
+        og = many_plane_monthly(many_plane_terms(_open_sky(sky, open_site)), g_t, g_a,
+                                self.mod, site=open_site)
+        og_ann = og.sum(axis=0).reshape(g_t.shape)
         oa = float(g_a[np.unravel_index(int(np.argmax(og_ann)), og_ann.shape)])
         if abs((oa - equator + 180.0) % 360.0 - 180.0) > 5.0:
             return [f"The clear-sky optimum azimuth ({oa:g} deg) is more than 5 deg from the "
@@ -231,7 +240,8 @@ class _Scorer:
     def curve(self, azimuth_deg: float) -> pd.DataFrame:
         """Objective and annual irradiation against tilt (0-90° by 1°) at one azimuth."""
         tilts = np.arange(0.0, 91.0)
-        m, _ = self.monthly(tilts, np.full(91, azimuth_deg))
+        m = many_plane_monthly(self.terms, tilts, np.full(91, azimuth_deg), self.mod,
+                               site=self.site)
         return pd.DataFrame({"objective_kwh_m2": self.score_cols(m), "annual_kwh_m2": m.sum(0)},
                             index=pd.Index(tilts, name="tilt_deg"))
 
@@ -396,6 +406,19 @@ def periods_poa(sky: SkyYear, site: Site, schedule, columns=PERIOD_COLUMNS) -> p
     Transposition as :func:`tiltyard.engine.plane.poa_components` (pvlib;
     Perez et al. 1990, Hay & Davies 1980, Liu & Jordan 1963).
     """
+    tilt, azim, out = _periods_arrays(sky, site, schedule, columns)
+    return pd.DataFrame({"surface_tilt": tilt, "surface_azimuth": azim, **out},
+                        index=_interval_index(sky))
+
+
+def _interval_index(sky: SkyYear) -> pd.DatetimeIndex:
+    """The intervals' starts in the site's zone, named ``interval_start`` (a renamed copy:
+    the grid's own index is shared)."""
+    return sky.grid.start_local.rename("interval_start")
+
+
+def _periods_arrays(sky: SkyYear, site: Site, schedule, columns) -> tuple:
+    """:func:`periods_poa` as arrays: ``(surface_tilt, surface_azimuth, {column: values})``."""
     pos = sky.position
     frac = sky.sun_up_fraction
     zen = pos["apparent_zenith"].to_numpy()
@@ -425,17 +448,14 @@ def periods_poa(sky: SkyYear, site: Site, schedule, columns=PERIOD_COLUMNS) -> p
             t = float(period.tilt_deg)
             a = float(period.azimuth_deg)
             shading = plane_shading(site, t, a)
-        poa = poa_components(t, a, zen[m], saz[m], sky.ghi[m], sky.dni[m], sky.dhi[m],
-                             sky.dni_extra[m], albedo[m], sky.options.model,
-                             sun_visible=sky.sun_visible[m], shading=shading)
+        poa = poa_arrays(t, a, zen[m], saz[m], sky.ghi[m], sky.dni[m], sky.dhi[m],
+                         sky.dni_extra[m], albedo[m], sky.options.model,
+                         sun_visible=sky.sun_visible[m], shading=shading)
         for c in cols:
-            out[c][m] = poa[c].to_numpy() * (1.0 if c == "aoi" else frac[m])
+            out[c][m] = poa[c] * (1.0 if c == "aoi" else frac[m])
         tilt[m] = t
         azim[m] = a
-    index = sky.grid.start_utc.tz_convert(site.timezone)
-    df = pd.DataFrame({"surface_tilt": tilt, "surface_azimuth": azim, **out}, index=index)
-    df.index.name = "interval_start"
-    return df
+    return tilt, azim, out
 
 
 def _row_kw(opts: StudyOptions) -> dict:
@@ -475,15 +495,20 @@ def _option_rows(opt: StudyOption, layouts: _RowLayouts) -> OptionRows:
     return OptionRows(opt.label, opt.kind, layout, per_ground, note)
 
 
-def _option_yield(sky: SkyYear, site: Site, opt: StudyOption, opts: StudyOptions) -> OptionYield:
-    poa = schedule_poa(sky, site, opt)["poa_global"]
+def _option_yield(sky: SkyYear, site: Site, opt: StudyOption, opts: StudyOptions,
+                  poa_global=None) -> OptionYield:
+    """``opt``'s indicative yield; ``poa_global`` its interval values when known already."""
+    if poa_global is None:
+        schedule = None if opt.kind == "two-axis" else opt.schedule
+        poa_global = _periods_arrays(sky, site, schedule, ("poa_global",))[2]["poa_global"]
+    poa = pd.Series(poa_global, index=_interval_index(sky), name="poa_global")
     temp = wind = None
     if sky.temp_air is not None:
         temp = np.asarray(sky.temp_air, dtype=float)
         if sky.wind_speed is not None:
             wind = np.asarray(sky.wind_speed, dtype=float)
     result = specific_yield(poa, sky.grid.step_h, temp_air=temp, wind_speed=wind,
-                            loss_fraction=opts.loss_fraction)
+                            loss_fraction=opts.loss_fraction, month=sky.month)
     return OptionYield(opt.label, opt.kind, result)
 
 
@@ -495,8 +520,9 @@ def _open_sky(sky: SkyYear, open_site: Site) -> SkyYear:
     return replace(sky, site=open_site, sun_visible=up.copy())
 
 
-def _two_axis(sky: SkyYear, site: Site, month_of_day: np.ndarray) -> StudyOption:
-    """Two-axis tracking: the plane faces the sun at every instant (the ceiling).
+def _two_axis(sky: SkyYear, month_of_day: np.ndarray, poa_global: np.ndarray) -> StudyOption:
+    """Two-axis tracking: the plane faces the sun at every instant (the ceiling), from its
+    interval ``poa_global`` (``periods_poa(sky, site, None)``).
 
     Beam is blocked behind the site horizon; sky diffuse uses the open-sky view
     factor of the tracking plane, a slight overestimate that suits a ceiling.
@@ -506,7 +532,7 @@ def _two_axis(sky: SkyYear, site: Site, month_of_day: np.ndarray) -> StudyOption
     pvlib transposition as in :func:`tiltyard.engine.plane.poa_components`.
     """
     # periods_poa gives interval means (value x sun-up fraction): x hours / 1000 = kWh/m2
-    e = periods_poa(sky, site, None)["poa_global"].to_numpy() * (sky.grid.step_h / 1000.0)
+    e = poa_global * (sky.grid.step_h / 1000.0)
     daily = np.bincount(sky.day_index, weights=e, minlength=sky.n_days)
     m = _monthly_from_daily(daily[:, None], month_of_day)[:, 0]
     return StudyOption("Two-axis tracking (ceiling, not a recommendation)", "two-axis",

@@ -1,6 +1,9 @@
 """Benchmark: the batch on the invented demo portfolio. Prints measured figures; never fails
 on time.
 
+- one whole study of each demo site in plane-years (bench_study.py's unit and measure: one
+  pvlib get_total_irradiance call on an hourly year, timed in the same run), cold and with
+  the SPA time terms reused as a batch has them (target at most 200);
 - sites per second on a local process pool of 1 and 2 workers and on a 2-worker Dask
   LocalCluster (worker processes), and the time that gives for 10,000 sites;
 - the start-up overhead of the LocalCluster (start, connect, first task back);
@@ -72,6 +75,32 @@ def _rate_line(label: str, summary) -> str:
             f"{summary.sites_per_second:6.2f} sites/s")
 
 
+def study_cost(b: Bench) -> list[str]:
+    from bench_study import CLOCK, _pvlib_plane, _study, _up_arrays, plane_years
+    from timing import median_time
+
+    from tiltyard.engine.demo_sites import demo_site_names, load_demo
+    from tiltyard.engine.skyyear import IrradianceOptions, sky_year
+
+    arrays = _up_arrays(sky_year(load_demo("larkmoor-dairy"),
+                                 IrradianceOptions(model="perez", step_min=60)))
+    unit, _, _ = median_time(lambda: _pvlib_plane(arrays, 35.0, 180.0), repeat=31,
+                             clock=CLOCK)
+    repeat = 3 if b.quick else 5
+    lines = [f"one whole study in plane-years (unit {unit * 1e3:.3f} ms CPU; median of "
+             f"{repeat}, each run against the unit timed just before it; target at most 200):"]
+    worst = {True: 0.0, False: 0.0}
+    for name in demo_site_names():
+        cost = {}
+        for cold in (True, False):
+            cost[cold], _, _ = plane_years(lambda name=name, cold=cold: _study(name, cold),
+                                           arrays, repeat)
+            worst[cold] = max(worst[cold], cost[cold])
+        lines.append(f"  {name:20} cold {cost[True]:4.0f}   time terms reused {cost[False]:4.0f}")
+    lines.append(f"  largest: cold {worst[True]:.0f}, time terms reused {worst[False]:.0f}")
+    return lines
+
+
 def local_pool(b: Bench) -> list[str]:
     lines = ["local process pool (spawned workers; start-up included):"]
     for workers in (1, 2):
@@ -121,7 +150,7 @@ def memory(b: Bench) -> list[str]:
 
 
 #: The figures printed, in order.
-SECTIONS = [local_pool, local_cluster, extrapolated, memory]
+SECTIONS = [study_cost, local_pool, local_cluster, extrapolated, memory]
 
 
 def main(argv=None):

@@ -2,11 +2,14 @@
 
 Site larkmoor-dairy with its horizon and obstacles, Perez sky, hourly
 reference year. Times (a) the many-plane engine (time-only terms plus the
-grid pass, and the grid pass alone with the terms precomputed) and (b) a loop
+grid pass, and the grid pass alone with the terms precomputed), for daily
+totals (``many_plane_daily``) and for monthly totals (``many_plane_monthly``,
+what the tilt study's map takes), and (b) a loop
 calling pvlib.irradiance.get_total_irradiance once per plane on the same sky
 (Holmgren, Hansen & Mikofski 2018, JOSS 3(29), 884), timed on a subset of
 planes and scaled linearly to the full grid. Prints figures; never fails on
-time. Targets: (a) at most 0.3 s median and at least 100x faster than (b).
+time. Targets: (a) at most 0.3 s median and at least 150x faster than (b) (the
+loop gives annual totals only, so either grid gives more than it).
 
 Run: python tests/benchmarks/bench_manyplane.py
 """
@@ -21,7 +24,7 @@ import pvlib
 from timing import median_time
 
 from tiltyard.engine.demo_sites import load_demo
-from tiltyard.engine.manyplane import many_plane_daily, many_plane_terms
+from tiltyard.engine.manyplane import many_plane_daily, many_plane_monthly, many_plane_terms
 from tiltyard.engine.skyyear import IrradianceOptions, sky_year
 
 REPEAT = 7
@@ -67,6 +70,12 @@ def main():
     print(f"  (a) terms + many_plane_daily                 median {med_a * 1000:7.1f} ms"
           f"  (min {lo * 1000:.1f}, max {hi * 1000:.1f})")
 
+    mod = np.asarray(sky.month)[np.searchsorted(sky.day_index, np.arange(sky.n_days))]
+    med_m, lo, hi = median_time(
+        lambda: many_plane_monthly(many_plane_terms(sky), tilt, azim, mod, site=site))
+    print(f"  (a') terms + many_plane_monthly              median {med_m * 1000:7.1f} ms"
+          f"  (min {lo * 1000:.1f}, max {hi * 1000:.1f})")
+
     rng = np.random.default_rng(0)
     pick = rng.choice(n_planes, size=N_LOOP_PLANES, replace=False)
     med_loop, lo, hi = median_time(lambda: _pvlib_loop(sky, tilt[pick], azim[pick]))
@@ -74,8 +83,9 @@ def main():
     print(f"  (b) pvlib get_total_irradiance loop, {N_LOOP_PLANES} planes  median "
           f"{med_loop * 1000:7.1f} ms  (min {lo * 1000:.1f}, max {hi * 1000:.1f})")
     print(f"      scaled linearly to {n_planes} planes: {med_b:.2f} s (estimate, not measured)")
-    print(f"  ratio (b)/(a): {med_b / med_a:.0f}x  "
-          f"(with terms precomputed: {med_b / med_grid:.0f}x)")
+    print(f"  ratio (b)/(a): {med_b / med_a:.0f}x daily totals "
+          f"(with terms precomputed: {med_b / med_grid:.0f}x); (b)/(a'): {med_b / med_m:.0f}x "
+          "monthly totals, the study's map")
 
     # the loop is open-horizon pvlib; check the engine's open totals agree on the subset
     res = many_plane_daily(terms, tilt[pick], azim[pick], site=site, with_open=True)
@@ -90,7 +100,7 @@ def main():
     rss = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
     print(f"  peak traced memory of the grid call: {peak / 2**20:.1f} MiB; process peak RSS "
           f"so far: {rss / 1024:.0f} MiB")
-    print("  target: (a) at most 300 ms median and at least 100x faster than (b)")
+    print("  target: (a) at most 300 ms median and at least 150x faster than (b)")
 
 
 if __name__ == "__main__":

@@ -4,8 +4,8 @@ Runs each command in a fresh interpreter ``REPEAT`` times (as the ``tiltyard``
 script does: ``from tiltyard.app.cli import main``) and prints the median wall
 time, the ratio to ``python -c pass`` and the heavy modules the command loaded
 (numpy, pandas, pvlib, scipy, Qt, the engine). Prints figures; never fails on
-time. Target: ``--version`` and ``--help`` import no engine module, numpy,
-pandas, pvlib or Qt, and start within a few times a bare Python.
+time. Target: ``--version``, ``--help`` and each subcommand's ``--help`` import no
+engine module, numpy, pandas, pvlib or Qt, and start within a few times a bare Python.
 
 Run: python tests/benchmarks/bench_startup.py [--source DIR]
 ``--source DIR`` puts DIR first on the path (a folder holding a ``tiltyard``
@@ -22,7 +22,8 @@ import time
 
 REPEAT = 15
 HEAVY = ("numpy", "pandas", "pvlib", "scipy", "PySide6", "pyqtgraph", "tiltyard.engine")
-COMMANDS = (["--version"], ["--help"], ["sun", "--help"], ["study", "--help"], ["sites"],
+COMMANDS = (["--version"], ["--help"], ["sun", "--help"], ["study", "--help"],
+            ["sheet", "--help"], ["batch", "--help"], ["sites"],
             ["sun", "larkmoor-dairy", "--date", "2023-06-21"])
 RUN = ("import atexit, sys\n"
        "def _report():\n"

@@ -10,6 +10,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from pvlib import irradiance
 
+from tiltyard.engine import horizon
 from tiltyard.engine.demo_sites import load_demo
 from tiltyard.engine.horizon import (
     HORIZON_BAND_DEG,
@@ -299,6 +300,23 @@ def test_tilt_azimuth_grid_matches_one_at_a_time(tilts):
     one_by_one = np.array([float(sky_view_factor(t, a, h_fn))
                            for t, a in zip(tilt.ravel(), azim.ravel(), strict=True)])
     np.testing.assert_allclose(together.ravel(), one_by_one, rtol=0, atol=1e-12)
+
+
+@pytest.mark.parametrize("planes", [(np.arange(0.0, 91.0, 1.0), np.arange(0.0, 360.0, 5.0)),
+                                    (np.arange(10.0, 90.5, 1.0), np.arange(175.0, 186.0, 1.0))])
+@pytest.mark.parametrize("h_deg", [0.0, 4.5, -3.0])
+def test_level_horizon_grid_is_the_full_product_bit_for_bit(h_deg, planes):
+    # a level horizon takes one azimuth column of the product for all: the same numbers
+    # as the product over every azimuth (regression, bit for bit), and Liu & Jordan's
+    # (1 + cos b) / 2 for h = 0 (Liu & Jordan 1963)
+    tilt, azim = np.meshgrid(*planes, indexing="ij")
+    level = sky_view_factor(tilt, azim, np.full(1440, h_deg))
+    full = horizon._svf_product(planes[0], np.round(planes[1] / 0.25).astype(int),
+                                np.radians(np.full(1440, h_deg)), 1440)
+    assert level.tobytes() == np.clip(full, 0.0, 1.0).tobytes()
+    if h_deg == 0.0:
+        # midpoint rule on 1440 azimuths: within 1e-6 of the closed form
+        np.testing.assert_allclose(level, (1 + np.cos(np.radians(tilt))) / 2, rtol=0, atol=1e-6)
 
 
 @pytest.mark.parametrize("values", [np.arange(0.0, 91.0, 1.0), np.array([0.0, 10.0, 35.0, 62.5]),

@@ -21,7 +21,12 @@ from tiltyard.engine import manyplane
 from tiltyard.engine.demo_sites import load_demo
 from tiltyard.engine.horizon import plane_shading
 from tiltyard.engine.jobs import irradiance_year
-from tiltyard.engine.manyplane import many_plane_daily, many_plane_terms
+from tiltyard.engine.manyplane import (
+    many_plane_daily,
+    many_plane_monthly,
+    many_plane_terms,
+    sum_by_month,
+)
 from tiltyard.engine.plane import poa_components
 from tiltyard.engine.site import Site
 from tiltyard.engine.skyyear import IrradianceOptions, sky_year
@@ -393,3 +398,43 @@ def test_polar_site_narrow_azimuth_fan_matches_pvlib(monkeypatch):
         j = _plane_column(result, t, a)
         # pvlib get_total_irradiance (Holmgren et al. 2018), 1e-9 relative
         np.testing.assert_allclose(result.daily_kwh_m2[:, j], ref, rtol=1e-9, atol=1e-12)
+
+
+# -- monthly totals without the daily table -------------------------------------------
+
+@pytest.mark.parametrize("planes", ["grid", "pairs"])
+def test_monthly_equals_the_daily_table_summed(monkeypatch, planes):
+    site = load_demo("larkmoor-dairy")
+    sky, _ = _clipping_sky(site)          # Perez clipping acts on some rows
+    terms = many_plane_terms(sky)
+    mod = _month_of_day(sky)
+    tilt, azim = np.meshgrid(np.arange(0.0, 91.0, 5.0), np.arange(0.0, 360.0, 15.0),
+                             indexing="ij")
+    if planes == "pairs":
+        monkeypatch.setattr(manyplane, "PRODUCT_RATIO", -1)
+    ref = sum_by_month(many_plane_daily(terms, tilt, azim, site=site).daily_kwh_m2, mod)
+    got = many_plane_monthly(terms, tilt, azim, mod, site=site)
+    assert got.shape == (12, tilt.size)
+    # regression: the same sums grouped by month first, 1e-12 relative
+    np.testing.assert_allclose(got, ref, rtol=1e-12, atol=1e-15)
+
+
+def test_monthly_grid_matches_pvlib():
+    site = load_demo("larkmoor-dairy")
+    sky = sky_year(site, IrradianceOptions(model="perez"))
+    terms = many_plane_terms(sky)
+    mod = _month_of_day(sky)
+    tilt, azim = _grid()
+    got = many_plane_monthly(terms, tilt, azim, mod, site=site)
+    for t, a in ON_GRID[:6]:
+        j = int(np.flatnonzero((tilt.ravel() == t) & (azim.ravel() == a))[0])
+        poa = irradiance_year(site, t, a, IrradianceOptions(model="perez"))
+        # pvlib transposition with the horizon applied, through the one-plane job
+        # (Holmgren et al. 2018), 1e-9 relative
+        np.testing.assert_allclose(got[:, j], poa.monthly["poa_kwh_m2"].to_numpy(), rtol=1e-9)
+
+
+def test_monthly_refuses_a_wrong_month_table():
+    sky = sky_year(OPEN_SITE, IrradianceOptions(model="isotropic"))
+    with pytest.raises(ValueError, match="month_of_day"):
+        many_plane_monthly(many_plane_terms(sky), 30.0, 180.0, np.ones(10))

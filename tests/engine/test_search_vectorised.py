@@ -28,12 +28,24 @@ def _daily(seed, n_t=46):
     return 6 - 0.002 * (tilts[None, :] - opt[:, None]) ** 2 + rng.normal(0, 0.01, (N_DAYS, n_t))
 
 
+@pytest.mark.parametrize("order", ["C", "F"])
 @pytest.mark.parametrize("shape", [(N_DAYS,), (N_DAYS, 1), (N_DAYS, 3), (N_DAYS, 200)])
-def test_sum_by_month_is_add_at_bit_for_bit(shape):
-    d = np.random.default_rng(1).random(shape) * 7
+def test_sum_by_month_is_add_at_bit_for_bit(shape, order):
+    # "F": a grid's daily table, stored plane by plane
+    d = np.asarray(np.random.default_rng(1).random(shape) * 7, order=order)
     ref = np.zeros((12,) + shape[1:])
     np.add.at(ref, MONTH - 1, d)
     np.testing.assert_array_equal(sum_by_month(d, MONTH), ref)
+    assert sum_by_month(d, MONTH).tobytes() == ref.tobytes()
+
+
+def test_sum_by_month_days_out_of_month_order():
+    # days not in month order: the sums are add.at's all the same
+    month = np.roll(MONTH, 40)
+    d = np.asfortranarray(np.random.default_rng(2).random((N_DAYS, 50)))
+    ref = np.zeros((12, 50))
+    np.add.at(ref, month - 1, d)
+    assert sum_by_month(d, month).tobytes() == ref.tobytes()
 
 
 @pytest.mark.parametrize("seed", [0, 1, 2])
@@ -104,3 +116,32 @@ def test_local_search_matches_one_by_one(objective, months):
         assert (list(got[0]), list(got[1])) == (list(want[0]), list(want[1]))
         if objective == "worst-month":      # the search has moved the schedule
             assert (list(got[0]), list(got[1])) != (list(sw), list(tl))
+
+
+def _two_period_by_gathering(cum, n_days, min_days):
+    """The two-period search as a plain loop with gathered segment sums."""
+    total_all = cum[n_days]
+    cum2 = np.vstack([cum, total_all[None, :] + cum[1:]])
+    s1 = np.arange(n_days)
+    best_total, best_sw = -np.inf, None
+    for length in range(min_days, n_days // 2 + 1):
+        seg_a = cum2[s1 + length] - cum2[s1]
+        seg_b = total_all[None, :] - seg_a
+        tot = seg_a.max(axis=1) + seg_b.max(axis=1)
+        i = int(np.argmax(tot))
+        if tot[i] > best_total:
+            best_total = float(tot[i])
+            best_sw = sorted([int(s1[i]), int((s1[i] + length) % n_days)])
+    return best_sw, best_total
+
+
+@pytest.mark.parametrize("seed", [0, 1, 2])
+@pytest.mark.parametrize("min_days", [1, 30, 90])
+def test_two_period_search_matches_the_loop(seed, min_days):
+    daily = _daily(seed)
+    cum = np.vstack([np.zeros(daily.shape[1]), np.cumsum(daily, axis=0)])
+    ref_sw, ref_total = _two_period_by_gathering(cum, N_DAYS, min_days)
+    sw, tilts, total = search._two_period_exhaustive(cum, N_DAYS, min_days)
+    assert sw == ref_sw
+    assert total == search._best_tilts_separable(cum, ref_sw, N_DAYS)[1]
+    assert max(ref_total, total) > 0

@@ -73,18 +73,27 @@ def test_partly_new_instants_take_the_kept_terms_and_compute_the_rest():
                                                                  np.full(shifted.size, 69.0)))
         for f in solarpos._TERM_FIELDS:
             np.testing.assert_array_equal(getattr(got, f), getattr(fresh, f))
+        # the partly new set takes the place of the one it came from
+        assert len(solarpos._cache) == 1
 
 
 def test_cache_is_bounded():
     clear_time_terms_cache()
+    n_min = solarpos.TIME_TERMS_CACHE_MIN
     for k in range(solarpos.TIME_TERMS_CACHE_SIZE + 3):
-        time_terms(np.arange(10.0) + 1e6 * k, 69.0)
+        time_terms(np.arange(float(n_min)) + 1e6 * k, 69.0)
     assert len(solarpos._cache) == solarpos.TIME_TERMS_CACHE_SIZE
     big = np.arange(solarpos.TIME_TERMS_CACHE_MAX + 1, dtype=float)
-    time_terms(big[:3], 69.0)
+    time_terms(big[:n_min], 69.0)
     n = len(solarpos._cache)
     time_terms(big, 69.0)                                     # too large to keep
     assert len(solarpos._cache) == n
+    kept = list(solarpos._cache)
+    for k in range(20):                                       # small sets: never kept
+        small = time_terms(np.arange(3.0) + 7e5 * k, 69.0)
+    assert list(solarpos._cache) == kept
+    fresh = solarpos._compute_time_terms(np.arange(3.0) + 7e5 * 19, np.full(3, 69.0))
+    np.testing.assert_array_equal(small.declination_deg, fresh[2])
 
 
 def test_evaluation_points_same_with_cold_and_warm_terms():
@@ -113,3 +122,26 @@ def test_few_instants_equal_pvlib_spa_python(n):
     ours = solar_position(times, site, delta_t=69.1)
     np.testing.assert_array_equal(ours[COLUMNS].to_numpy(),
                                   _pvlib(times, site, 69.1)[COLUMNS].to_numpy())
+
+
+def test_earth_sun_distance_equals_pvlib_cold_and_kept():
+    # pvlib.solarposition.nrel_earthsun_distance with the same delta T, bit for bit:
+    # computed afresh, taken whole from the per-process store, and partly new
+    site = load_demo("larkmoor-dairy")
+    grid = year_grid(site.timezone, 2023, 60)
+    times = evaluation_points(grid, site).times_utc
+    clear_time_terms_cache()
+
+    def ref(t):
+        return np.asarray(pvlib.solarposition.nrel_earthsun_distance(
+            t, delta_t=solarpos.delta_t_s(t)), dtype=float)
+
+    cold = solarpos.earth_sun_distance_au(times)
+    np.testing.assert_array_equal(cold, ref(times))
+    np.testing.assert_array_equal(solarpos.earth_sun_distance_au(times), cold)
+    assert len(solarpos._radius_cache) == 1
+    moved = times.delete([5, 4000]).insert(5, times[5] + pd.Timedelta(seconds=77)) \
+        .insert(4000, times[4000] - pd.Timedelta(seconds=3))
+    np.testing.assert_array_equal(solarpos.earth_sun_distance_au(moved), ref(moved))
+    clear_time_terms_cache()
+    assert len(solarpos._radius_cache) == 0
