@@ -320,6 +320,28 @@ def site_positions(terms: TimeTerms, site: Site, pressure_pa: float | None = Non
         _spa.topocentric_zenith_angle(e), _spa.topocentric_zenith_angle(e0), e, e0, phi))
 
 
+def refracted_elevation_deg(elevation_deg, site: Site, pressure_pa: float | None = None,
+                            temperature_c: float = REFRACTION_TEMPERATURE_C,
+                            atmos_refract_deg: float = 0.5667) -> np.ndarray:
+    """Apparent (refracted) solar elevation from the geometric one, degrees.
+
+    The refraction step of :func:`site_positions` on its own, with the same
+    pressure and temperature, for sun positions found without SPA's earlier
+    steps (:mod:`tiltyard.engine.skynodes`).
+
+    References
+    ----------
+    Reda & Andreas (2008), NREL/TP-560-34302, eqs. 42-43, through
+    :mod:`pvlib.spa`.
+    """
+    if pressure_pa is None:
+        pressure_pa = site_pressure_pa(site.elevation_m)
+    e0 = np.asarray(elevation_deg, dtype=float)
+    de = _spa.atmospheric_refraction_correction(pressure_pa / 100, temperature_c, e0,
+                                                atmos_refract_deg)
+    return np.asarray(_spa.topocentric_elevation_angle(e0, de), dtype=float)
+
+
 def _spa_unixtime(times: pd.DatetimeIndex) -> np.ndarray:
     """Seconds since 1970 as :func:`pvlib.solarposition.spa_python` computes them."""
     epoch = pd.Timestamp("1970-01-01", tz="UTC").tz_convert(times.tz)

@@ -42,8 +42,9 @@ def check_step_min(step_min) -> int:
 
 #: Words used in outputs to state the time convention.
 MIDPOINT_CONVENTION = (
-    "interval values at the interval midpoint; sunrise and sunset intervals at the "
-    "midpoint of their sun-up part, weighted by its length"
+    "interval means over each interval's sun-up part (sunrise and sunset intervals "
+    "weighted by its length): clear sky integrated at two Gauss-Legendre points, "
+    "extraterrestrial in closed form, weather and monthly-mean data at the interval midpoint"
 )
 
 TIME_BASES = ("clock", "standard", "solar")
