@@ -207,8 +207,8 @@ def _clear_day(site: Site, grid: TimeGrid, options: IrradianceOptions) -> _Sky:
     ep = evaluation_points(grid, site)
     pos, frac = ep.position, ep.sun_up_fraction
     up = frac > 0
-    dni_extra = np.asarray(extraterrestrial_normal(ep.times_utc, options.solar_constant_w_m2),
-                           dtype=float)
+    dni_extra = np.asarray(extraterrestrial_normal(ep.times_utc, options.solar_constant_w_m2,
+                                                   ep.delta_t), dtype=float)
     vis = sun_visible(site, pos["azimuth"].to_numpy(),
                       pos["apparent_elevation"].to_numpy()) & up
     month = grid.start_local.month.to_numpy()

@@ -51,7 +51,8 @@ CLEARSKY_REFERENCES = {
 
 
 def extraterrestrial_normal(times: pd.DatetimeIndex,
-                            solar_constant_w_m2: float = SOLAR_CONSTANT_W_M2) -> np.ndarray:
+                            solar_constant_w_m2: float = SOLAR_CONSTANT_W_M2,
+                            delta_t: float | None = None) -> np.ndarray:
     """Extraterrestrial irradiance on a plane normal to the sun, W/m².
 
     Parameters
@@ -60,6 +61,10 @@ def extraterrestrial_normal(times: pd.DatetimeIndex,
         Timezone-aware instants.
     solar_constant_w_m2 : float, default 1361
         Mean total solar irradiance at 1 AU.
+    delta_t : float, optional
+        TT - UT1 (s) of the positions already computed at ``times``, whose
+        SPA distance is then reused
+        (:func:`tiltyard.engine.solarpos.earth_sun_distance_au`).
 
     Returns
     -------
@@ -74,7 +79,7 @@ def extraterrestrial_normal(times: pd.DatetimeIndex,
     if not 1000.0 <= solar_constant_w_m2 <= 1500.0:
         raise ValueError(f"solar_constant_w_m2 = {solar_constant_w_m2!r}: must be between "
                          "1000 and 1500 W/m2")
-    r = earth_sun_distance_au(times)
+    r = earth_sun_distance_au(times, delta_t)
     return solar_constant_w_m2 / r**2
 
 

@@ -542,15 +542,28 @@ def declination_deg(times: pd.DatetimeIndex) -> np.ndarray:
     return _geocentric_sun(_unix_seconds(t), delta_t_s(t))[1]
 
 
-def earth_sun_distance_au(times: pd.DatetimeIndex) -> np.ndarray:
+def earth_sun_distance_au(times: pd.DatetimeIndex, delta_t: float | None = None) -> np.ndarray:
     """Earth-Sun distance in astronomical units by SPA.
+
+    Parameters
+    ----------
+    times : pandas.DatetimeIndex
+        Instants.
+    delta_t : float, optional
+        TT - UT1, s. Given, the distance comes from :func:`time_terms` (the
+        per-process cache, so instants whose positions were just computed with
+        the same delta T cost nothing); by default from :func:`delta_t_s`
+        through pvlib.
 
     References
     ----------
     Reda & Andreas (2008), NREL/TP-560-34302, section 3.2.8, through
-    :func:`pvlib.solarposition.nrel_earthsun_distance`.
+    :func:`pvlib.solarposition.nrel_earthsun_distance` or the same steps of
+    :mod:`pvlib.spa` in :func:`time_terms`.
     """
     t = pd.DatetimeIndex(times)
+    if delta_t is not None:
+        return np.asarray(time_terms(_spa_unixtime(t), delta_t).radius_au, dtype=float)
     return np.asarray(pvlib.solarposition.nrel_earthsun_distance(t, delta_t=delta_t_s(t)),
                       dtype=float)
 
