@@ -2,9 +2,10 @@
 
 The time-only terms of a year (sun position, horizontal components, Perez F1
 and F2 or the Hay-Davies anisotropy index, sun visibility) are computed once by
-:func:`tiltyard.engine.skyyear.sky_year`; each plane contributes only its
-orientation. The cosine of the angle of incidence for an (interval, plane) pair
-is
+:func:`tiltyard.engine.skyyear.sky_year` at the sky's nodes (its instants of
+transposition, :mod:`tiltyard.engine.skynodes`: two per interval for the clear
+sky, one for a series); each plane contributes only its orientation. The
+cosine of the angle of incidence for a (node, plane) pair is
 
 ``cos(aoi) = [cos z, sin z cos A, sin z sin A] . [cos b, sin b cos g, sin b sin g]``
 
@@ -13,18 +14,18 @@ isotropic, horizon-band and ground terms are separable products of a per-day
 time sum and a plane factor.
 
 Planes that pair a set of tilts in [0, 90] degrees with a set of azimuths (a
-tilt x azimuth grid) are summed without visiting every (interval, plane) pair:
-for one interval and one azimuth, ``cos z cos b + v sin b`` (``v`` the sun's
+tilt x azimuth grid) are summed without visiting every (node, plane) pair:
+for one node and one azimuth, ``cos z cos b + v sin b`` (``v`` the sun's
 horizontal component towards the azimuth) changes sign at most once as the
 tilt grows, at ``tan b = -cos z / v``. So each day's beam sum is the unclipped
 sum, a product of per-day sums and plane factors, minus the parts past each
-(interval, azimuth) pair's sign change, gathered with one difference array over
+(node, azimuth) pair's sign change, gathered with one difference array over
 the tilts and a running sum. Other sets of planes take a chunked pass over all
-pairs, with daily sums from segment sums over each day's intervals.
+pairs, with daily sums from segment sums over each day's nodes.
 
 The arithmetic is that of pvlib's ``get_total_irradiance`` (isotropic,
 ``haydavies``, ``perez``) and of :func:`tiltyard.engine.plane.poa_components`
-for the horizon, and is tested against both to 1e-9 relative.
+for the horizon at the same nodes, and is tested against both to 1e-9 relative.
 """
 
 from __future__ import annotations

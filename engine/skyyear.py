@@ -163,7 +163,7 @@ class SkyYear:
 
     @property
     def kwh_weight(self) -> np.ndarray:
-        """kWh/m² per W/m² of instantaneous irradiance, per interval
+        """kWh/m² per W/m² of sun-up mean irradiance, per interval
         (sun-up fraction times interval length in hours, over 1000)."""
         return self.sun_up_fraction * self.grid.step_h / 1000.0
 

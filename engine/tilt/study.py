@@ -318,7 +318,8 @@ def _period_mask(day_index: np.ndarray, period: Period, year: int) -> np.ndarray
     return (day_index >= a) & (day_index <= b) if a <= b else (day_index >= a) | (day_index <= b)
 
 
-def schedule_poa(sky: SkyYear, site: Site, option: StudyOption) -> pd.DataFrame:
+def schedule_poa(sky: SkyYear, site: Site, option: StudyOption,
+                 columns=None) -> pd.DataFrame:
     """Interval plane-of-array irradiance of an option's schedule, W/m².
 
     Each period's plane gets its own horizon shading; the two-axis ceiling
@@ -335,6 +336,8 @@ def schedule_poa(sky: SkyYear, site: Site, option: StudyOption) -> pd.DataFrame:
         The site (horizon).
     option : StudyOption
         The option whose schedule is evaluated.
+    columns : sequence of str, optional
+        Some of :data:`PERIOD_COLUMNS` only (all by default).
 
     Returns
     -------
@@ -350,7 +353,8 @@ def schedule_poa(sky: SkyYear, site: Site, option: StudyOption) -> pd.DataFrame:
     Transposition as :func:`tiltyard.engine.plane.poa_components` (pvlib;
     Perez et al. 1990, Hay & Davies 1980, Liu & Jordan 1963).
     """
-    return periods_poa(sky, site, None if option.kind == "two-axis" else option.schedule)
+    return periods_poa(sky, site, None if option.kind == "two-axis" else option.schedule,
+                       PERIOD_COLUMNS if columns is None else columns)
 
 
 #: Columns :func:`periods_poa` gives besides the plane's tilt and azimuth.
@@ -483,7 +487,7 @@ def _option_rows(opt: StudyOption, layouts: _RowLayouts) -> OptionRows:
 
 
 def _option_yield(sky: SkyYear, site: Site, opt: StudyOption, opts: StudyOptions) -> OptionYield:
-    poa = schedule_poa(sky, site, opt)["poa_global"]
+    poa = schedule_poa(sky, site, opt, ("poa_global",))["poa_global"]
     temp = wind = None
     if sky.temp_air is not None:
         temp = np.asarray(sky.temp_air, dtype=float)
