@@ -6,9 +6,10 @@ sky basis (with the clear-sky GHI beside them), and the plane-of-array
 irradiance with its beam, sky-diffuse and ground-reflected parts after the
 site horizon, plus the day's totals. The arithmetic is that of the year
 (:func:`tiltyard.engine.jobs.irradiance_year`): intervals from local midnight,
-each evaluated at its midpoint (at the midpoint of its sun-up part around
-sunrise and sunset, :data:`tiltyard.engine.timegrid.MIDPOINT_CONVENTION`), so
-a day's total here is the same number as that day's share of the year.
+each with its evaluation instant at its midpoint (of its sun-up part around
+sunrise and sunset), the clear sky integrated at the nodes of
+:mod:`tiltyard.engine.skynodes` (:data:`tiltyard.engine.timegrid.MIDPOINT_CONVENTION`),
+so a day's total here is the same number as that day's share of the year.
 
 - Clear sky: the day is computed on its own intervals (10 min by default).
 - Monthly values or a weather file: those bases only exist as a whole year
@@ -98,10 +99,12 @@ class DayCurves:
     series : pandas.DataFrame
         One row per interval of the date, indexed by the interval's
         evaluation instant in local clock time (tz-aware, the site's zone).
-        Irradiance columns (:data:`IRRADIANCE_COLUMNS`) are instantaneous
-        values at that instant in W/m², zero while the sun is down
-        (``dni_extra`` is zero then too); ``ghi_clear`` is the clear-sky GHI
-        whatever the basis. Also ``interval_start`` (local),
+        Irradiance columns (:data:`IRRADIANCE_COLUMNS`) are means over each
+        interval's sun-up part in W/m² (the clear sky over its nodes,
+        :mod:`tiltyard.engine.skynodes`; the extraterrestrial in closed form;
+        ``dni_extra`` at the instant), zero while the sun is down;
+        ``ghi_clear`` is the clear-sky GHI whatever the basis (for the
+        monthly and weather bases, at the instant). Also ``interval_start`` (local),
         ``sun_up_fraction``, ``apparent_zenith``, ``zenith``, ``azimuth``,
         ``apparent_elevation`` (degrees), ``aoi`` (degrees) and
         ``sun_visible`` (sun above the site horizon).

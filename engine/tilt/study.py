@@ -431,7 +431,7 @@ def periods_poa(sky: SkyYear, site: Site, schedule, columns=PERIOD_COLUMNS) -> p
             node_m = _period_mask(nodes.day_index, period, sky.options.year)
             t = node_t = float(period.tilt_deg)
             a = node_a = float(period.azimuth_deg)
-            shading = plane_shading(site, t, a)
+            shading = plane_shading(site, t, a) if m.any() else None
         if not m.any():
             continue
         if sums:
