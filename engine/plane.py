@@ -87,6 +87,15 @@ def poa_components(surface_tilt, surface_azimuth, solar_zenith, solar_azimuth, g
     See :data:`TRANSPOSITION_REFERENCES`; pvlib.irradiance.get_total_irradiance
     for the open-horizon sum (this function equals it when the horizon is open).
     """
+    index = solar_zenith.index if isinstance(solar_zenith, pd.Series) else None
+    return pd.DataFrame(_component_arrays(surface_tilt, surface_azimuth, solar_zenith,
+                                          solar_azimuth, ghi, dni, dhi, dni_extra, albedo, model,
+                                          airmass, sun_visible, shading), index=index)
+
+
+def _component_arrays(surface_tilt, surface_azimuth, solar_zenith, solar_azimuth, ghi, dni, dhi,
+                      dni_extra, albedo, model, airmass, sun_visible, shading) -> dict:
+    """The columns of :func:`poa_components` as a dict of arrays (its arithmetic)."""
     if model not in TRANSPOSITION_MODELS:
         raise ValueError(f"model = {model!r}: must be one of {', '.join(TRANSPOSITION_MODELS)}")
     ghi = np.asarray(ghi, dtype=float)
@@ -94,7 +103,6 @@ def poa_components(surface_tilt, surface_azimuth, solar_zenith, solar_azimuth, g
     dhi = np.asarray(dhi, dtype=float)
     zen = np.asarray(solar_zenith, dtype=float)
     saz = np.asarray(solar_azimuth, dtype=float)
-    index = solar_zenith.index if isinstance(solar_zenith, pd.Series) else None
     aoi = np.asarray(angle_of_incidence(surface_tilt, surface_azimuth, zen, saz), dtype=float)
     beam = np.maximum(dni * np.cos(np.radians(aoi)), 0.0)
     if model == "isotropic":
@@ -138,7 +146,7 @@ def poa_components(surface_tilt, surface_azimuth, solar_zenith, solar_azimuth, g
     # summed in the same order as poa_global, so an open horizon loses exactly 0
     out["poa_global_open"] = beam + out["poa_sky_diffuse_open"] + ground
     out["aoi"] = aoi
-    return pd.DataFrame(out, index=index)
+    return out
 
 
 def poa_interval_means(nodes, n_intervals: int, surface_tilt, surface_azimuth, model: str,
@@ -180,9 +188,8 @@ def poa_interval_means(nodes, n_intervals: int, surface_tilt, surface_azimuth, m
     """
     m = np.ones(len(nodes), dtype=bool) if node_mask is None else np.asarray(node_mask)
     tilt, azim = (v[m] if np.ndim(v) else float(v) for v in (surface_tilt, surface_azimuth))
-    poa = poa_components(tilt, azim, nodes.apparent_zenith[m], nodes.azimuth[m], nodes.ghi[m],
-                         nodes.dni[m], nodes.dhi[m], nodes.dni_extra[m], nodes.albedo[m], model,
-                         sun_visible=nodes.sun_visible[m], shading=shading)
+    poa = _component_arrays(tilt, azim, nodes.apparent_zenith[m], nodes.azimuth[m], nodes.ghi[m],
+                            nodes.dni[m], nodes.dhi[m], nodes.dni_extra[m], nodes.albedo[m],
+                            model, None, nodes.sun_visible[m], shading)
     w, iv = nodes.weight[m], nodes.interval[m]
-    return {c: np.bincount(iv, weights=poa[c].to_numpy() * w, minlength=n_intervals)
-            for c in columns}
+    return {c: np.bincount(iv, weights=poa[c] * w, minlength=n_intervals) for c in columns}
