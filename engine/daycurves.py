@@ -6,9 +6,10 @@ sky basis (with the clear-sky GHI beside them), and the plane-of-array
 irradiance with its beam, sky-diffuse and ground-reflected parts after the
 site horizon, plus the day's totals. The arithmetic is that of the year
 (:func:`tiltyard.engine.jobs.irradiance_year`): intervals from local midnight,
-each evaluated at its midpoint (at the midpoint of its sun-up part around
-sunrise and sunset, :data:`tiltyard.engine.timegrid.MIDPOINT_CONVENTION`), so
-a day's total here is the same number as that day's share of the year.
+each with its evaluation instant at its midpoint (of its sun-up part around
+sunrise and sunset), the clear sky integrated at the nodes of
+:mod:`tiltyard.engine.skynodes` (:data:`tiltyard.engine.timegrid.MIDPOINT_CONVENTION`),
+so a day's total here is the same number as that day's share of the year.
 
 - Clear sky: the day is computed on its own intervals (10 min by default).
 - Monthly values or a weather file: those bases only exist as a whole year
@@ -34,9 +35,10 @@ import pandas as pd
 from .horizon import HorizonShading, plane_shading, sun_visible
 from .horizon_loss import schedule_horizon_loss
 from .jobs import irradiance_on_plane
-from .plane import poa_components
+from .plane import angle_of_incidence, poa_interval_means
 from .site import Site
 from .sky import clear_sky, extraterrestrial_interval_mean, extraterrestrial_normal
+from .skynodes import SkyNodes, clear_sky_nodes
 from .skyyear import IrradianceOptions, SkyYear, sky_year
 from .sun import evaluation_points
 from .timegrid import MIDPOINT_CONVENTION, TimeGrid, check_step_min, local_date
@@ -97,10 +99,12 @@ class DayCurves:
     series : pandas.DataFrame
         One row per interval of the date, indexed by the interval's
         evaluation instant in local clock time (tz-aware, the site's zone).
-        Irradiance columns (:data:`IRRADIANCE_COLUMNS`) are instantaneous
-        values at that instant in W/m², zero while the sun is down
-        (``dni_extra`` is zero then too); ``ghi_clear`` is the clear-sky GHI
-        whatever the basis. Also ``interval_start`` (local),
+        Irradiance columns (:data:`IRRADIANCE_COLUMNS`) are means over each
+        interval's sun-up part in W/m² (the clear sky over its nodes,
+        :mod:`tiltyard.engine.skynodes`; the extraterrestrial in closed form;
+        ``dni_extra`` at the instant), zero while the sun is down;
+        ``ghi_clear`` is the clear-sky GHI whatever the basis (for the
+        monthly and weather bases, at the instant). Also ``interval_start`` (local),
         ``sun_up_fraction``, ``apparent_zenith``, ``zenith``, ``azimuth``,
         ``apparent_elevation`` (degrees), ``aoi`` (degrees) and
         ``sun_visible`` (sun above the site horizon).
@@ -198,6 +202,7 @@ class _Sky:
     albedo: np.ndarray
     step_h: float
     note: str
+    nodes: SkyNodes
 
 
 def _clear_day(site: Site, grid: TimeGrid, options: IrradianceOptions) -> _Sky:
@@ -205,23 +210,30 @@ def _clear_day(site: Site, grid: TimeGrid, options: IrradianceOptions) -> _Sky:
     ep = evaluation_points(grid, site)
     pos, frac = ep.position, ep.sun_up_fraction
     up = frac > 0
-    dni_extra = np.asarray(extraterrestrial_normal(ep.times_utc, options.solar_constant_w_m2),
-                           dtype=float)
-    cs = clear_sky(ep.times_utc, pos, site, options.clearsky_model, dni_extra)
-    ghi, dni, dhi = (np.where(up, cs.data[c].to_numpy(), 0.0) for c in ("ghi", "dni", "dhi"))
+    dni_extra = np.asarray(extraterrestrial_normal(ep.times_utc, options.solar_constant_w_m2,
+                                                   ep.delta_t), dtype=float)
     vis = sun_visible(site, pos["azimuth"].to_numpy(),
                       pos["apparent_elevation"].to_numpy()) & up
     month = grid.start_local.month.to_numpy()
     albedo = np.asarray(site.albedo_by_month(), dtype=float)[month - 1]
+    nodes, cs = clear_sky_nodes(site, ep.times_utc, pos, frac, grid.step_min,
+                                options.clearsky_model, dni_extra, albedo, np.zeros(len(frac), int))
+    ghi, dni, dhi = (_sun_up_mean(nodes.interval_sums(v, len(frac)), frac)
+                     for v in (nodes.ghi, nodes.dni, nodes.dhi))
     return _Sky(grid.start_utc, ep.times_utc, frac, pos, ghi, dni, dhi, dni_extra, vis,
-                albedo, grid.step_h, cs.note)
+                albedo, grid.step_h, cs.note, nodes)
+
+
+def _sun_up_mean(interval_mean, frac):
+    """An interval mean over the interval's sun-up share (0 with the sun down)."""
+    return np.where(frac > 0, interval_mean / np.where(frac > 0, frac, 1.0), 0.0)
 
 
 def _slice_year(sky: SkyYear, rows: np.ndarray) -> _Sky:
     return _Sky(sky.grid.start_utc[rows], sky.times_utc[rows], sky.sun_up_fraction[rows],
                 sky.position.iloc[rows], sky.ghi[rows], sky.dni[rows], sky.dhi[rows],
                 sky.dni_extra[rows], sky.sun_visible[rows], sky.albedo[rows], sky.grid.step_h,
-                sky.note)
+                sky.note, sky.nodes.take(rows))
 
 
 def _et_sun_up_mean(sky, site: Site, zenith, surface_tilt, surface_azimuth, step_min):
@@ -239,13 +251,20 @@ def _et_sun_up_mean(sky, site: Site, zenith, surface_tilt, surface_azimuth, step
 
 
 def _poa(sky: _Sky, surface_tilt: float, surface_azimuth: float, model: str,
-         shading: HorizonShading) -> pd.DataFrame:
-    """Plane-of-array components at the sky's instants, as irradiance_year computes them."""
+         shading: HorizonShading) -> dict:
+    """Plane-of-array components over each interval's sun-up part, as irradiance_year
+    computes them (at the sky's nodes), and the angle of incidence at the instants."""
+    cols = ("poa_global", "poa_direct", "poa_sky_diffuse", "poa_ground_diffuse",
+            "poa_global_open")
+    means = poa_interval_means(sky.nodes, len(sky.frac), float(surface_tilt), surface_azimuth,
+                               model, shading, columns=cols)
+    out = {c: _sun_up_mean(v, sky.frac) for c, v in means.items()}
     pos = sky.position
-    return poa_components(float(surface_tilt), surface_azimuth,
-                          pos["apparent_zenith"].to_numpy(), pos["azimuth"].to_numpy(),
-                          sky.ghi, sky.dni, sky.dhi, sky.dni_extra, sky.albedo, model,
-                          sun_visible=sky.visible, shading=shading)
+    aoi = np.asarray(angle_of_incidence(float(surface_tilt), surface_azimuth,
+                                        pos["apparent_zenith"].to_numpy(),
+                                        pos["azimuth"].to_numpy()), dtype=float)
+    out["aoi"] = aoi
+    return out
 
 
 def irradiance_day(site: Site, date, surface_tilt: float, surface_azimuth: float,
@@ -332,7 +351,7 @@ def irradiance_day(site: Site, date, surface_tilt: float, surface_azimuth: float
     else:
         cs = clear_sky(sky.times_utc, pos, site, options.clearsky_model, sky.dni_extra)
         ghi_clear = np.where(up, cs.data["ghi"].to_numpy(), 0.0)
-    aoi = poa["aoi"].to_numpy()
+    aoi = poa["aoi"]
     index = pd.DatetimeIndex(sky.times_utc).tz_convert(site.timezone)
     index.name = "eval_time_local"
     series = pd.DataFrame({
@@ -349,11 +368,11 @@ def irradiance_day(site: Site, date, surface_tilt: float, surface_azimuth: float
         "extraterrestrial_poa": _et_sun_up_mean(sky, site, zen, float(surface_tilt),
                                                 surface_azimuth, step),
         "ghi": sky.ghi, "dni": sky.dni, "dhi": sky.dhi, "ghi_clear": ghi_clear,
-        "poa_global": poa["poa_global"].to_numpy(),
-        "poa_direct": poa["poa_direct"].to_numpy(),
-        "poa_sky_diffuse": poa["poa_sky_diffuse"].to_numpy(),
-        "poa_ground_diffuse": poa["poa_ground_diffuse"].to_numpy(),
-        "poa_global_open": poa["poa_global_open"].to_numpy(),
+        "poa_global": poa["poa_global"],
+        "poa_direct": poa["poa_direct"],
+        "poa_sky_diffuse": poa["poa_sky_diffuse"],
+        "poa_ground_diffuse": poa["poa_ground_diffuse"],
+        "poa_global_open": poa["poa_global_open"],
     }, index=index)
     weight = sky.frac * sky.step_h / 1000.0
     totals = {key: float(np.sum(series[col].to_numpy() * weight))

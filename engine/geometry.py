@@ -180,3 +180,45 @@ def azimuth_north_to_south_based(azimuth_deg):
     """
     a = np.asarray(azimuth_deg, dtype=float) - 180.0
     return (a + 180.0) % 360.0 - 180.0
+
+
+def declination_hour_angle(phi, zenith, azimuth):
+    """Declination and hour angle of the sun seen at a zenith and azimuth, radians.
+
+    Parameters
+    ----------
+    phi : float or array_like
+        Latitude, radians.
+    zenith, azimuth : array_like
+        Solar zenith and azimuth (clockwise from north), radians.
+
+    Returns
+    -------
+    (delta, omega) : tuple of numpy.ndarray
+        Declination and hour angle (negative before noon).
+
+    References
+    ----------
+    Duffie & Beckman (2013), eqs. 1.6.5 and 1.6.6 solved for the declination
+    and hour angle (spherical astronomy of the horizon and equator frames).
+    """
+    sin_d = np.clip(np.sin(phi) * np.cos(zenith) + np.cos(phi) * np.sin(zenith) * np.cos(azimuth),
+                    -1.0, 1.0)
+    omega = np.arctan2(-np.sin(azimuth) * np.sin(zenith),
+                       np.cos(phi) * np.cos(zenith) - np.sin(phi) * np.sin(zenith) * np.cos(azimuth))
+    return np.arcsin(sin_d), omega
+
+
+def zenith_azimuth(phi, delta, omega):
+    """Solar zenith and azimuth (clockwise from north) from declination and hour angle, radians.
+
+    The inverse of :func:`declination_hour_angle`.
+
+    References
+    ----------
+    Duffie & Beckman (2013), eqs. 1.6.5 and 1.6.6.
+    """
+    up = np.sin(phi) * np.sin(delta) + np.cos(phi) * np.cos(delta) * np.cos(omega)
+    east = -np.cos(delta) * np.sin(omega)
+    north = np.cos(phi) * np.sin(delta) - np.sin(phi) * np.cos(delta) * np.cos(omega)
+    return np.arccos(np.clip(up, -1.0, 1.0)), np.arctan2(east, north) % (2.0 * np.pi)

@@ -2,9 +2,10 @@
 
 The time-only terms of a year (sun position, horizontal components, Perez F1
 and F2 or the Hay-Davies anisotropy index, sun visibility) are computed once by
-:func:`tiltyard.engine.skyyear.sky_year`; each plane contributes only its
-orientation. The cosine of the angle of incidence for an (interval, plane) pair
-is
+:func:`tiltyard.engine.skyyear.sky_year` at the sky's nodes (its instants of
+transposition, :mod:`tiltyard.engine.skynodes`: two per interval for the clear
+sky, one for a series); each plane contributes only its orientation. The
+cosine of the angle of incidence for a (node, plane) pair is
 
 ``cos(aoi) = [cos z, sin z cos A, sin z sin A] . [cos b, sin b cos g, sin b sin g]``
 
@@ -13,21 +14,21 @@ isotropic, horizon-band and ground terms are separable products of a per-day
 time sum and a plane factor.
 
 Planes that pair a set of tilts in [0, 90] degrees with a set of azimuths (a
-tilt x azimuth grid) are summed without visiting every (interval, plane) pair:
-for one interval and one azimuth, ``cos z cos b + v sin b`` (``v`` the sun's
+tilt x azimuth grid) are summed without visiting every (node, plane) pair:
+for one node and one azimuth, ``cos z cos b + v sin b`` (``v`` the sun's
 horizontal component towards the azimuth) changes sign at most once as the
 tilt grows, at ``tan b = -cos z / v``. So each day's beam sum is the unclipped
 sum, a product of per-day sums and plane factors, minus the parts past each
-(interval, azimuth) pair's sign change, gathered with one difference array over
+(node, azimuth) pair's sign change, gathered with one difference array over
 the tilts and a running sum. Other sets of planes take a chunked pass over all
-pairs, with daily sums from segment sums over each day's intervals. The same
+pairs, with daily sums from segment sums over each day's nodes. The same
 passes give monthly totals directly (:func:`many_plane_monthly`) when the days
 are gathered into months from the start: the per-day sums become per-month
 sums and the difference array is binned by month, so no daily table is made.
 
 The arithmetic is that of pvlib's ``get_total_irradiance`` (isotropic,
 ``haydavies``, ``perez``) and of :func:`tiltyard.engine.plane.poa_components`
-for the horizon, and is tested against both to 1e-9 relative.
+for the horizon at the same nodes, and is tested against both to 1e-9 relative.
 """
 
 from __future__ import annotations
@@ -58,9 +59,10 @@ _SMALL_BLAS = 2**18
 
 @dataclass(frozen=True)
 class ManyPlaneTerms:
-    """Time-only transposition terms for the sun-up intervals of a :class:`SkyYear`.
+    """Time-only transposition terms for the nodes of a :class:`SkyYear`.
 
-    All arrays have one value per sun-up interval. ``sun_w`` multiplies
+    All arrays have one value per node (:attr:`SkyYear.nodes`: one per sun-up
+    interval for a series, Gauss-Legendre nodes for the clear sky). ``sun_w`` multiplies
     ``max(cos aoi, 0)`` for beam plus circumsolar light (open horizon; multiply
     by ``visible`` for the site horizon); ``iso_w`` multiplies the plane's isotropic factor
     ``(1 + cos b) / 2``; ``hor_w`` multiplies ``sin b``; ``ground_w`` multiplies
@@ -70,7 +72,7 @@ class ManyPlaneTerms:
     """
 
     model: str
-    rows: np.ndarray           # indices of the sun-up intervals in the year
+    rows: np.ndarray           # the year's interval of each node
     day_index: np.ndarray
     n_days: int
     sun_vec: np.ndarray        # (n, 3): cos z, sin z cos A, sin z sin A (apparent zenith)
@@ -106,17 +108,16 @@ def many_plane_terms(sky: SkyYear, model: str | None = None) -> ManyPlaneTerms:
     formulation of pvlib.irradiance (Holmgren et al. 2018, JOSS 3(29), 884).
     """
     model = model or sky.options.model
-    up = sky.sun_up_fraction > 0
-    rows = np.flatnonzero(up)
-    k = sky.kwh_weight[rows]
-    pos = sky.position
-    zen = pos["apparent_zenith"].to_numpy()[rows]
-    saz = pos["azimuth"].to_numpy()[rows]
+    nodes = sky.nodes
+    rows = nodes.interval
+    k = nodes.weight * sky.grid.step_h / 1000.0
+    zen = nodes.apparent_zenith
+    saz = nodes.azimuth
     cz, sz = np.cos(np.radians(zen)), np.sin(np.radians(zen))
     sun_vec = np.stack([cz, sz * np.cos(np.radians(saz)), sz * np.sin(np.radians(saz))], axis=1)
-    ghi, dni, dhi = sky.ghi[rows], sky.dni[rows], sky.dhi[rows]
-    dni_extra = sky.dni_extra[rows]
-    vis = sky.sun_visible[rows].astype(float)
+    ghi, dni, dhi = nodes.ghi, nodes.dni, nodes.dhi
+    dni_extra = nodes.dni_extra
+    vis = nodes.sun_visible.astype(float)
     zeros = np.zeros_like(k)
     f1_over_b, f2 = zeros, zeros
     if model == "isotropic":
@@ -148,9 +149,9 @@ def many_plane_terms(sky: SkyYear, model: str | None = None) -> ManyPlaneTerms:
     else:
         clip_rows = np.zeros(len(k), dtype=bool)
     return ManyPlaneTerms(
-        model=model, rows=rows, day_index=sky.day_index[rows], n_days=sky.n_days,
+        model=model, rows=rows, day_index=nodes.day_index, n_days=sky.n_days,
         sun_vec=sun_vec, sun_w=(dni + circ_coef) * k,
-        iso_w=dhi * one_minus * k, hor_w=dhi * f2 * k, ground_w=ghi * sky.albedo[rows] * k,
+        iso_w=dhi * one_minus * k, hor_w=dhi * f2 * k, ground_w=ghi * nodes.albedo * k,
         visible=vis, clip_rows=clip_rows, dhi_w=dhi * k, f1_over_b=f1_over_b,
         one_minus_f1=one_minus, f2=f2)
 
@@ -458,14 +459,13 @@ def _beam_grid(terms, tilt_u, azim_u, fac, sums, diffuse, diffuse_open, w_vis, w
     up = sun[:, 0] > 0.0
     weights = [w_vis, terms.sun_w] if with_open else [w_vis]
     beam_f = [fac.cosb, fac.sinb * np.tile(cg, n_t), fac.sinb * np.tile(sg, n_t)]
-    outs = []
+    factors, xs = [], []
     for w, diff in zip(weights, [diffuse, diffuse_open], strict=False):
         wu, du = w[up], day[up]
-        x = np.column_stack(sums + [np.bincount(du, weights=wu * sun[up, c], minlength=n_days)
-                                    for c in range(3)])
-        out = np.empty((n_t * n_u, n_days))
-        _small_matmul(np.stack(diff + beam_f).T, x.T, out)
-        outs.append(out)
+        xs.append(np.vstack(sums + [np.bincount(du, weights=wu * sun[up, c], minlength=n_days)
+                                    for c in range(3)]))
+        factors.append(np.stack(diff + beam_f).T)
+    outs = [np.empty((n_t * n_u, n_days)) for _ in weights]
     # (interval, azimuth) pairs whose beam weight changes sign within the tilt range,
     # a chunk of days at a time: vs = -v with the sun above the horizontal, v with it
     # below, is positive where it does
@@ -476,48 +476,68 @@ def _beam_grid(terms, tilt_u, azim_u, fac, sums, diffuse, diffuse_open, w_vis, w
     nd = max(int(_GRID_CHUNK_BYTES // (8 * per_day)), -(-n_days // 32))
     nd = max(1, min(n_days, nd, int(CHUNK_BYTES // (8 * per_day))))
     bounds = np.searchsorted(day[rows_all], np.arange(0, n_days + nd, nd))
-    views = [out.reshape(n_t, n_u, n_days) for out in outs]
-    comp = np.arange(n_c)
     for c0, d0 in enumerate(range(0, n_days, nd)):
-        rows = rows_all[bounds[c0]:bounds[c0 + 1]]
-        if rows.size == 0:
-            continue
         m = min(nd, n_days - d0)
-        cz = sun[rows, 0]
-        sgn = np.where(cz > 0.0, -1.0, 1.0)
-        vs = (sun[rows, 1] * sgn)[:, None] * cg[None, :]
-        vs += (sun[rows, 2] * sgn)[:, None] * sg[None, :]
-        keep = np.flatnonzero(vs > 0.0)
-        if keep.size == 0:
-            continue
-        r = keep // n_u
-        den = vs.ravel()[keep]
-        acz = np.abs(cz)[r]
-        # sun above: positive below b* (first tilt not below it); sun below: above b*.
-        # p = n_t (no sign change within the tilts) goes to a spare row
-        p = _count_below(tilt_u, np.degrees(np.arctan(acz / den)), inclusive=cz[r] <= 0.0)
-        base = (p * (n_c * n_u) + (keep - r * n_u)) * m + (day[rows][r] - d0)
-        # the part past b*, to be taken off (sun above) or added (sun below):
-        # -w |cos z| for the cos b factor and w |v| for the sin b factor
-        vals = np.empty((keep.size, n_c))
-        for k, w in enumerate(weights):
-            wr = w[rows][r]
-            np.multiply(wr, acz, out=vals[:, 2 * k])
-            vals[:, 2 * k] *= -1.0
-            np.multiply(wr, den, out=vals[:, 2 * k + 1])
-        idx = base[:, None] + comp[None, :] * (n_u * m)
-        acc = np.bincount(idx.ravel(), weights=vals.ravel(), minlength=per_day * m)
-        flat = acc.reshape(n_t + 1, n_c * n_u * m)
-        for i in range(1, n_t):
-            flat[i] += flat[i - 1]
-        acc = acc.reshape(n_t + 1, n_c, n_u, m)
-        for k, view in enumerate(views):
-            part, part_sin = acc[:n_t, 2 * k], acc[:n_t, 2 * k + 1]
-            part *= cosb_u[:, None, None]
-            part_sin *= sinb_u[:, None, None]
-            part += part_sin
-            view[:, :, d0:d0 + m] += part
+        # this chunk's days of the unclipped sums, corrected below while in cache
+        blocks = [_small_matmul(f, x[:, d0:d0 + m], np.empty((n_t * n_u, m)))
+                  for f, x in zip(factors, xs, strict=True)]
+        rows = rows_all[bounds[c0]:bounds[c0 + 1]]
+        if rows.size:
+            _clip_chunk(sun[rows], day[rows] - d0, [w[rows] for w in weights], tilt_u, cg,
+                        sg, cosb_u, sinb_u, m, blocks)
+        for out, block in zip(outs, blocks, strict=True):
+            out[:, d0:d0 + m] = block
     return outs[0], (outs[1] if with_open else None)
+
+
+def _clip_chunk(sun, day, weights, tilt_u, cg, sg, cosb_u, sinb_u, m, blocks):
+    """Take off (or add) the beam past each row's sign-change tilt, for one chunk of days.
+
+    ``sun``, ``day`` (from the chunk's first day) and ``weights`` are the
+    chunk's rows; ``blocks`` are the ``(tilts x azimuths, m)`` unclipped sums
+    of the chunk, corrected in place (see :func:`_beam_grid`).
+
+    References
+    ----------
+    As :func:`_beam_grid`.
+    """
+    n_t, n_u, n_c = tilt_u.size, cg.size, 2 * len(weights)
+    per_day = (n_t + 1) * n_c * n_u
+    comp = np.arange(n_c)
+    cz = sun[:, 0]
+    sgn = np.where(cz > 0.0, -1.0, 1.0)
+    vs = (sun[:, 1] * sgn)[:, None] * cg[None, :]
+    vs += (sun[:, 2] * sgn)[:, None] * sg[None, :]
+    keep = np.flatnonzero(vs > 0.0)
+    if keep.size == 0:
+        return
+    r = keep // n_u
+    den = vs.ravel()[keep]
+    acz = np.abs(cz)[r]
+    # sun above: positive below b* (first tilt not below it); sun below: above b*.
+    # p = n_t (no sign change within the tilts) goes to a spare row
+    p = _count_below(tilt_u, np.degrees(np.arctan(acz / den)), inclusive=cz[r] <= 0.0)
+    base = (p * (n_c * n_u) + (keep - r * n_u)) * m + day[r]
+    # the part past b*, to be taken off (sun above) or added (sun below):
+    # -w |cos z| for the cos b factor and w |v| for the sin b factor
+    vals = np.empty((keep.size, n_c))
+    for k, w in enumerate(weights):
+        wr = w[r]
+        np.multiply(wr, acz, out=vals[:, 2 * k])
+        vals[:, 2 * k] *= -1.0
+        np.multiply(wr, den, out=vals[:, 2 * k + 1])
+    idx = base[:, None] + comp[None, :] * (n_u * m)
+    acc = np.bincount(idx.ravel(), weights=vals.ravel(), minlength=per_day * m)
+    flat = acc.reshape(n_t + 1, n_c * n_u * m)
+    for i in range(1, n_t):
+        flat[i] += flat[i - 1]
+    acc = acc.reshape(n_t + 1, n_c, n_u, m)
+    for k, block in enumerate(blocks):
+        part, part_sin = acc[:n_t, 2 * k], acc[:n_t, 2 * k + 1]
+        part *= cosb_u[:, None, None]
+        part_sin *= sinb_u[:, None, None]
+        part += part_sin
+        block.reshape(n_t, n_u, m)[...] += part
 
 
 def _small_matmul(a, b, out):

@@ -196,3 +196,49 @@ def perez_f1_f2(dhi, dni, dni_extra, solar_zenith, airmass):
     f1 = np.maximum(f1c[ebin, 0] + f1c[ebin, 1] * delta + f1c[ebin, 2] * z, 0)
     f2 = f2c[ebin, 0] + f2c[ebin, 1] * delta + f2c[ebin, 2] * z
     return f1, f2
+
+
+def poa_interval_means(nodes, n_intervals: int, surface_tilt, surface_azimuth, model: str,
+                       shading: HorizonShading | None = None, node_mask=None,
+                       columns=COMPONENT_COLUMNS) -> dict:
+    """Interval means of plane-of-array components from a sky's nodes, W/m².
+
+    :func:`poa_components` at each node (those in ``node_mask``), times the
+    node's weight, summed over each interval's nodes
+    (:class:`tiltyard.engine.skynodes.SkyNodes`): the one way every total of
+    irradiance on a plane is formed from a sky year.
+
+    Parameters
+    ----------
+    nodes : SkyNodes
+        The sky's nodes.
+    n_intervals : int
+        Intervals in the year (length of the results).
+    surface_tilt, surface_azimuth : float or array_like
+        The plane; arrays give one plane per node (a tracker).
+    model : {"isotropic", "haydavies", "perez"}
+        Sky diffuse model.
+    shading : HorizonShading, optional
+        The plane's horizon factors; None means open.
+    node_mask : array_like of bool, optional
+        Nodes to count (default all).
+    columns : sequence of str
+        Columns of :func:`poa_components` to give.
+
+    Returns
+    -------
+    dict of numpy.ndarray
+        Per column, ``n_intervals`` interval means (0 where no node counts).
+
+    References
+    ----------
+    As :func:`poa_components`; the weighted sum is the quadrature of
+    :mod:`tiltyard.engine.skynodes`.
+    """
+    m = np.ones(len(nodes), dtype=bool) if node_mask is None else np.asarray(node_mask)
+    tilt, azim = (v[m] if np.ndim(v) else float(v) for v in (surface_tilt, surface_azimuth))
+    poa = poa_arrays(tilt, azim, nodes.apparent_zenith[m], nodes.azimuth[m], nodes.ghi[m],
+                            nodes.dni[m], nodes.dhi[m], nodes.dni_extra[m], nodes.albedo[m],
+                            model, None, nodes.sun_visible[m], shading)
+    w, iv = nodes.weight[m], nodes.interval[m]
+    return {c: np.bincount(iv, weights=poa[c] * w, minlength=n_intervals) for c in columns}

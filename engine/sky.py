@@ -18,7 +18,11 @@ import pvlib
 
 from .choices import CLEARSKY_MODELS as CLEARSKY_MODELS
 from .choices import SOLAR_CONSTANT_W_M2 as SOLAR_CONSTANT_W_M2
-from .geometry import azimuth_north_to_south_based, incidence_coefficients
+from .geometry import (
+    azimuth_north_to_south_based,
+    declination_hour_angle,
+    incidence_coefficients,
+)
 from .site import Site
 from .solarpos import earth_sun_distance_au, site_pressure_pa
 from .sun import daily_declination_eot
@@ -42,7 +46,8 @@ CLEARSKY_REFERENCES = {
 
 
 def extraterrestrial_normal(times: pd.DatetimeIndex,
-                            solar_constant_w_m2: float = SOLAR_CONSTANT_W_M2) -> np.ndarray:
+                            solar_constant_w_m2: float = SOLAR_CONSTANT_W_M2,
+                            delta_t: float | None = None) -> np.ndarray:
     """Extraterrestrial irradiance on a plane normal to the sun, W/m².
 
     Parameters
@@ -51,6 +56,10 @@ def extraterrestrial_normal(times: pd.DatetimeIndex,
         Timezone-aware instants.
     solar_constant_w_m2 : float, default 1361
         Mean total solar irradiance at 1 AU.
+    delta_t : float, optional
+        TT - UT1 (s) of the positions already computed at ``times``, whose
+        SPA distance is then reused
+        (:func:`tiltyard.engine.solarpos.earth_sun_distance_au`).
 
     Returns
     -------
@@ -65,7 +74,7 @@ def extraterrestrial_normal(times: pd.DatetimeIndex,
     if not 1000.0 <= solar_constant_w_m2 <= 1500.0:
         raise ValueError(f"solar_constant_w_m2 = {solar_constant_w_m2!r}: must be between "
                          "1000 and 1500 W/m2")
-    r = earth_sun_distance_au(times)
+    r = earth_sun_distance_au(times, delta_t)
     return solar_constant_w_m2 / r**2
 
 
@@ -93,7 +102,7 @@ def extraterrestrial_on_plane(dni_extra, zenith, aoi) -> np.ndarray:
 
 
 #: Mean rate of the solar hour angle, rad/s (360° per mean solar day).
-_HOUR_ANGLE_RATE_RAD_S = 2.0 * np.pi / 86400.0
+HOUR_ANGLE_RATE_RAD_S = 2.0 * np.pi / 86400.0
 
 
 def _positive_part_integral(a, b, c, w1, w2):
@@ -184,15 +193,11 @@ def extraterrestrial_interval_mean(dni_extra, zenith, azimuth, latitude_deg: flo
     saz = saz[up] if saz.ndim else saz
     frac = frac[up]
     phi = np.radians(latitude_deg)
-    z = np.radians(np.asarray(zenith, dtype=float)[up])
-    az = np.radians(np.asarray(azimuth, dtype=float)[up])
-    sin_d = np.clip(np.sin(phi) * np.cos(z) + np.cos(phi) * np.sin(z) * np.cos(az), -1.0, 1.0)
-    delta = np.arcsin(sin_d)
-    omega = np.arctan2(-np.sin(az) * np.sin(z),
-                       np.cos(phi) * np.cos(z) - np.sin(phi) * np.sin(z) * np.cos(az))
+    delta, omega = declination_hour_angle(phi, np.radians(np.asarray(zenith, dtype=float)[up]),
+                                          np.radians(np.asarray(azimuth, dtype=float)[up]))
     a, b, c = incidence_coefficients(phi, delta, np.radians(tilt),
                                      np.radians(azimuth_north_to_south_based(saz)))
-    half_w = 0.5 * frac * step_min * 60.0 * _HOUR_ANGLE_RATE_RAD_S
+    half_w = 0.5 * frac * step_min * 60.0 * HOUR_ANGLE_RATE_RAD_S
     integral = _positive_part_integral(a, b, c, omega - half_w, omega + half_w)
     g_on = np.broadcast_to(np.asarray(dni_extra, dtype=float), out.shape)[up]
     out[up] = g_on * np.maximum(integral / (2.0 * half_w), 0.0) * frac
@@ -330,7 +335,7 @@ def linke_turbidity(times: pd.DatetimeIndex, site: Site) -> tuple[np.ndarray, st
 
 
 def clear_sky(times: pd.DatetimeIndex, position: pd.DataFrame, site: Site,
-              model: str = "ineichen", dni_extra=None) -> ClearSky:
+              model: str = "ineichen", dni_extra=None, turbidity=None) -> ClearSky:
     """Clear-sky GHI, DNI and DHI at the given instants.
 
     Parameters
@@ -346,6 +351,9 @@ def clear_sky(times: pd.DatetimeIndex, position: pd.DataFrame, site: Site,
     dni_extra : array_like, optional
         Extraterrestrial normal irradiance, W/m²; by default
         :func:`extraterrestrial_normal` with the default solar constant.
+    turbidity : (array_like, str), optional
+        Linke turbidity at ``times`` and its source, when the caller has it
+        (:func:`linke_turbidity`); looked up for ``times`` otherwise.
 
     Returns
     -------
@@ -377,7 +385,7 @@ def clear_sky(times: pd.DatetimeIndex, position: pd.DataFrame, site: Site,
             "extraterrestrial irradiance); choose the simplified Solis clear-sky model "
             "(--clearsky simplified_solis, or clearsky_model in the site file's assessment)")
     if model == "ineichen":
-        lt, source = linke_turbidity(times, site)
+        lt, source = linke_turbidity(times, site) if turbidity is None else turbidity
         am_rel = pvlib.atmosphere.get_relative_airmass(app_zen)
         am_abs = pvlib.atmosphere.get_absolute_airmass(am_rel, pressure)
         with np.errstate(divide="ignore", invalid="ignore"):  # night rows give NaN, set to 0

@@ -3,8 +3,11 @@
 :func:`sky_year` evaluates the year's intervals once — sun position at the
 evaluation instants, extraterrestrial irradiance, horizontal irradiance
 components for the chosen sky basis, sun visibility against the site horizon,
-albedo — so that one plane (:func:`tiltyard.engine.jobs.irradiance_year`) and
-thousands of planes (:mod:`tiltyard.engine.manyplane`) see exactly the same sky.
+albedo, and the nodes at which planes are transposed
+(:mod:`tiltyard.engine.skynodes`: Gauss-Legendre nodes for the clear sky, the
+evaluation instant for a series of interval means) — so that one plane
+(:func:`tiltyard.engine.jobs.irradiance_year`) and thousands of planes
+(:mod:`tiltyard.engine.manyplane`) see exactly the same sky.
 """
 
 from __future__ import annotations
@@ -20,6 +23,7 @@ from .choices import SKY_BASES as SKY_BASES
 from .horizon import sun_visible
 from .site import Site
 from .sky import clear_sky, extraterrestrial_normal
+from .skynodes import SkyNodes, clear_sky_nodes, instant_nodes
 from .sun import evaluation_points
 from .timegrid import TimeGrid, year_grid
 from .weather import WeatherData
@@ -75,9 +79,11 @@ class IrradianceOptions:
 class SkyYear:
     """Time-only terms of a year of intervals (arrays of one value per interval).
 
-    Irradiance values (``ghi``, ``dni``, ``dhi``, ``dni_extra``) are
-    instantaneous values at each interval's evaluation instant, W/m², zero
-    while the sun is down; multiply by ``sun_up_fraction`` for interval means.
+    Irradiance values (``ghi``, ``dni``, ``dhi``) are means over each
+    interval's sun-up part, W/m², zero while the sun is down (for the clear
+    sky, over its nodes; for a series, its value); multiply by
+    ``sun_up_fraction`` for interval means. ``dni_extra`` is the value at the
+    evaluation instant. Planes are transposed at ``nodes``.
 
     Attributes
     ----------
@@ -109,6 +115,8 @@ class SkyYear:
     sun_down_ghi_share : float
         Share of a weather series' GHI recorded while the sun is down at the
         site (0 for the clear and monthly bases).
+    nodes : SkyNodes
+        Where planes are transposed (:mod:`tiltyard.engine.skynodes`).
     """
 
     site: Site
@@ -130,6 +138,7 @@ class SkyYear:
     temp_air: np.ndarray | None = None
     wind_speed: np.ndarray | None = None
     sun_down_ghi_share: float = 0.0
+    nodes: SkyNodes | None = None
 
     @property
     def n_days(self) -> int:
@@ -138,7 +147,7 @@ class SkyYear:
 
     @property
     def kwh_weight(self) -> np.ndarray:
-        """kWh/m² per W/m² of instantaneous irradiance, per interval
+        """kWh/m² per W/m² of sun-up mean irradiance, per interval
         (sun-up fraction times interval length in hours, over 1000)."""
         return self.sun_up_fraction * self.grid.step_h / 1000.0
 
@@ -172,36 +181,41 @@ def sky_year(site: Site, options: IrradianceOptions | None = None) -> SkyYear:
     pos = ep.position
     frac = ep.sun_up_fraction
     up = frac > 0
-    dni_extra = np.asarray(extraterrestrial_normal(ep.times_utc, options.solar_constant_w_m2),
-                           dtype=float)
+    dni_extra = np.asarray(extraterrestrial_normal(ep.times_utc, options.solar_constant_w_m2,
+                                                   ep.delta_t), dtype=float)
     zenith = pos["zenith"].to_numpy()
     local = grid.start_local
     month = local.month.to_numpy()
     day_index = local.day_of_year.to_numpy() - 1
     temp_air = wind_speed = None
     sun_down = 0.0
+    vis = sun_visible(site, pos["azimuth"].to_numpy(),
+                      pos["apparent_elevation"].to_numpy()) & up
+    albedo = np.asarray(site.albedo_by_month(), dtype=float)[month - 1]
     if options.sky == "file":
         sky = weather_sky(options.weather, grid, frac, zenith, dni_extra)
         ghi, dni, dhi = sky.ghi, sky.dni, sky.dhi
         temp_air, wind_speed = sky.temp_air, sky.wind_speed
         sun_down = sky.sun_down_ghi_share
         turbidity_source, note = "not used (measured weather)", sky.note
+    elif options.sky == "clear":
+        nodes, cs = clear_sky_nodes(site, ep.times_utc, pos, frac, grid.step_min,
+                                    options.clearsky_model, dni_extra, albedo, day_index)
+        n = len(grid)
+        ghi, dni, dhi = (np.where(up, nodes.interval_sums(v, n) / np.where(up, frac, 1.0), 0.0)
+                         for v in (nodes.ghi, nodes.dni, nodes.dhi))
+        turbidity_source, note = cs.turbidity_source, cs.note
     else:
         cs = clear_sky(ep.times_utc, pos, site, options.clearsky_model, dni_extra)
         ghi = np.where(up, cs.data["ghi"].to_numpy(), 0.0)
-        dni = np.where(up, cs.data["dni"].to_numpy(), 0.0)
-        dhi = np.where(up, cs.data["dhi"].to_numpy(), 0.0)
-        turbidity_source, note = cs.turbidity_source, cs.note
-        if options.sky == "monthly":
-            kwh_weight = frac * grid.step_h / 1000.0
-            sky = monthly_sky(site, ghi, zenith, dni_extra, month, kwh_weight, options.year)
-            ghi, dni, dhi = sky.ghi, sky.dni, sky.dhi
-            turbidity_source = (f"shape from the {options.clearsky_model} clear sky: "
-                                f"{cs.turbidity_source}")
-            note = sky.note
-    vis = sun_visible(site, pos["azimuth"].to_numpy(),
-                      pos["apparent_elevation"].to_numpy()) & up
-    albedo = np.asarray(site.albedo_by_month(), dtype=float)[month - 1]
+        kwh_weight = frac * grid.step_h / 1000.0
+        sky = monthly_sky(site, ghi, zenith, dni_extra, month, kwh_weight, options.year)
+        ghi, dni, dhi = sky.ghi, sky.dni, sky.dhi
+        turbidity_source = (f"shape from the {options.clearsky_model} clear sky: "
+                            f"{cs.turbidity_source}")
+        note = sky.note
+    if options.sky != "clear":
+        nodes = instant_nodes(frac, pos, ghi, dni, dhi, dni_extra, albedo, vis, day_index)
     return SkyYear(site, options, grid, ep.times_utc, frac, pos, ghi, dni, dhi,
                    dni_extra, vis, albedo, month, day_index,
-                   turbidity_source, note, temp_air, wind_speed, sun_down)
+                   turbidity_source, note, temp_air, wind_speed, sun_down, nodes)

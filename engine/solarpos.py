@@ -349,6 +349,28 @@ def site_positions(terms: TimeTerms, site: Site, pressure_pa: float | None = Non
         _spa.topocentric_zenith_angle(e), _spa.topocentric_zenith_angle(e0), e, e0, phi))
 
 
+def refracted_elevation_deg(elevation_deg, site: Site, pressure_pa: float | None = None,
+                            temperature_c: float = REFRACTION_TEMPERATURE_C,
+                            atmos_refract_deg: float = 0.5667) -> np.ndarray:
+    """Apparent (refracted) solar elevation from the geometric one, degrees.
+
+    The refraction step of :func:`site_positions` on its own, with the same
+    pressure and temperature, for sun positions found without SPA's earlier
+    steps (:mod:`tiltyard.engine.skynodes`).
+
+    References
+    ----------
+    Reda & Andreas (2008), NREL/TP-560-34302, eqs. 42-43, through
+    :mod:`pvlib.spa`.
+    """
+    if pressure_pa is None:
+        pressure_pa = site_pressure_pa(site.elevation_m)
+    e0 = np.asarray(elevation_deg, dtype=float)
+    de = _spa.atmospheric_refraction_correction(pressure_pa / 100, temperature_c, e0,
+                                                atmos_refract_deg)
+    return np.asarray(_spa.topocentric_elevation_angle(e0, de), dtype=float)
+
+
 def _spa_unixtime(times: pd.DatetimeIndex) -> np.ndarray:
     """Seconds since 1970 as :func:`pvlib.solarposition.spa_python` computes them."""
     epoch = pd.Timestamp("1970-01-01", tz="UTC").tz_convert(times.tz)
@@ -549,7 +571,7 @@ def declination_deg(times: pd.DatetimeIndex) -> np.ndarray:
     return _geocentric_sun(_unix_seconds(t), delta_t_s(t))[1]
 
 
-def earth_sun_distance_au(times: pd.DatetimeIndex) -> np.ndarray:
+def earth_sun_distance_au(times: pd.DatetimeIndex, delta_t: float | None = None) -> np.ndarray:
     """Earth-Sun distance in astronomical units by SPA.
 
     A year's evaluation instants are the same for every site of a time zone but
@@ -557,12 +579,25 @@ def earth_sun_distance_au(times: pd.DatetimeIndex) -> np.ndarray:
     process as :func:`time_terms` keeps its terms (the same numbers as computed
     afresh).
 
+    Parameters
+    ----------
+    times : pandas.DatetimeIndex
+        Instants.
+    delta_t : float, optional
+        TT - UT1, s. Given, the distance comes from :func:`time_terms` (the
+        per-process cache, so instants whose positions were just computed with
+        the same delta T cost nothing); by default from :func:`delta_t_s`, kept
+        per process as said above.
+
     References
     ----------
     Reda & Andreas (2008), NREL/TP-560-34302, section 3.2.8, through
-    :func:`pvlib.solarposition.nrel_earthsun_distance`.
+    :func:`pvlib.solarposition.nrel_earthsun_distance` or the same steps of
+    :mod:`pvlib.spa` in :func:`time_terms`.
     """
     t = pd.DatetimeIndex(times)
+    if delta_t is not None:
+        return np.asarray(time_terms(_spa_unixtime(t), delta_t).radius_au, dtype=float)
     unixtime = np.atleast_1d(_spa_unixtime(t).astype(float))
     dt = np.broadcast_to(np.asarray(delta_t_s(t), dtype=float), unixtime.shape)
     kept = _kept_per_process(_radius_cache, unixtime, dt, _radius_au, ("radius_au",),

@@ -48,11 +48,15 @@ class EvaluationPoints:
         horizon (0 to 1).
     position : pandas.DataFrame
         Sun position at ``times_utc`` (see :func:`solar_position`).
+    delta_t : float
+        TT - UT1 (s) the positions were computed with (the value at the
+        grid's first instant).
     """
 
     times_utc: pd.DatetimeIndex
     sun_up_fraction: np.ndarray
     position: pd.DataFrame
+    delta_t: float = 0.0
 
 
 def evaluation_points(grid: TimeGrid, site: Site) -> EvaluationPoints:
@@ -121,7 +125,7 @@ def evaluation_points(grid: TimeGrid, site: Site) -> EvaluationPoints:
     _grazing_intervals(el_b, start_s, step_s, site, dt_s, frac, mid)
     times = _utc_times(mid)
     pos = solar_position(times, site, delta_t=dt_s)
-    return EvaluationPoints(times, frac, pos)
+    return EvaluationPoints(times, frac, pos, float(dt_s))
 
 
 def _grazing_intervals(el_b, start_s, step_s, site: Site, dt_s, frac, mid) -> None:

@@ -30,8 +30,9 @@ from .choices import check_step_min as check_step_min
 
 #: Words used in outputs to state the time convention.
 MIDPOINT_CONVENTION = (
-    "interval values at the interval midpoint; sunrise and sunset intervals at the "
-    "midpoint of their sun-up part, weighted by its length"
+    "interval means over each interval's sun-up part (sunrise and sunset intervals "
+    "weighted by its length): clear sky integrated at two Gauss-Legendre points, "
+    "extraterrestrial in closed form, weather and monthly-mean data at the interval midpoint"
 )
 
 

@@ -13,7 +13,7 @@ import pandas as pd
 
 from ..horizon import plane_shading
 from ..manyplane import many_plane_daily, many_plane_monthly, many_plane_terms
-from ..plane import poa_arrays
+from ..plane import angle_of_incidence, poa_interval_means
 from ..rows import irradiation_per_ground_m2, row_layout
 from ..site import Site
 from ..skyyear import SkyYear, sky_year
@@ -329,12 +329,13 @@ def _period_mask(day_index: np.ndarray, period: Period, year: int) -> np.ndarray
     return (day_index >= a) & (day_index <= b) if a <= b else (day_index >= a) | (day_index <= b)
 
 
-def schedule_poa(sky: SkyYear, site: Site, option: StudyOption) -> pd.DataFrame:
+def schedule_poa(sky: SkyYear, site: Site, option: StudyOption,
+                 columns=None) -> pd.DataFrame:
     """Interval plane-of-array irradiance of an option's schedule, W/m².
 
     Each period's plane gets its own horizon shading; the two-axis ceiling
-    follows the sun. Values are interval means (the instantaneous value at the
-    interval's evaluation point times its sun-up fraction), so
+    follows the sun. Values are interval means (the plane's irradiance at the
+    sky's nodes, :mod:`tiltyard.engine.skynodes`, times their weights), so
     ``poa_global * step_h / 1000`` summed over the year is the option's annual
     irradiation in kWh/m² (tested against the many-plane engine).
 
@@ -346,6 +347,8 @@ def schedule_poa(sky: SkyYear, site: Site, option: StudyOption) -> pd.DataFrame:
         The site (horizon).
     option : StudyOption
         The option whose schedule is evaluated.
+    columns : sequence of str, optional
+        Some of :data:`PERIOD_COLUMNS` only (all by default).
 
     Returns
     -------
@@ -361,7 +364,8 @@ def schedule_poa(sky: SkyYear, site: Site, option: StudyOption) -> pd.DataFrame:
     Transposition as :func:`tiltyard.engine.plane.poa_components` (pvlib;
     Perez et al. 1990, Hay & Davies 1980, Liu & Jordan 1963).
     """
-    return periods_poa(sky, site, None if option.kind == "two-axis" else option.schedule)
+    return periods_poa(sky, site, None if option.kind == "two-axis" else option.schedule,
+                       PERIOD_COLUMNS if columns is None else columns)
 
 
 #: Columns :func:`periods_poa` gives besides the plane's tilt and azimuth.
@@ -382,7 +386,9 @@ def periods_poa(sky: SkyYear, site: Site, schedule, columns=PERIOD_COLUMNS) -> p
     The arithmetic of :func:`schedule_poa`: each day counts on the plane of
     the period it falls in (``start``..``end`` inclusive, "MM-DD", a period
     may run over the new year; days outside every period count 0), with that
-    plane's horizon shading. ``schedule=None`` is two-axis tracking.
+    plane's horizon shading. ``schedule=None`` is two-axis tracking (the plane
+    faces the sun at each node). Irradiance is transposed at the sky's nodes
+    and summed per interval (:func:`tiltyard.engine.plane.poa_interval_means`).
 
     Parameters
     ----------
@@ -423,36 +429,42 @@ def _periods_arrays(sky: SkyYear, site: Site, schedule, columns) -> tuple:
     frac = sky.sun_up_fraction
     zen = pos["apparent_zenith"].to_numpy()
     saz = pos["azimuth"].to_numpy()
+    nodes = sky.nodes
     n = len(frac)
     cols = tuple(columns)
     unknown = sorted(set(cols) - set(ALL_POA_COLUMNS))
     if unknown:
         raise ValueError(f"columns: {', '.join(unknown)} not among {', '.join(ALL_POA_COLUMNS)}")
     out = {c: (np.full(n, np.nan) if c == "aoi" else np.zeros(n)) for c in cols}
+    sums = tuple(c for c in cols if c != "aoi")
     tilt = np.zeros(n)
     azim = np.zeros(n)
-    albedo = np.broadcast_to(np.asarray(sky.albedo, dtype=float), (n,))
     if schedule is None:
-        masks = [(np.ones(n, dtype=bool), None)]
+        periods = [None]
     else:
-        masks = [(_period_mask(sky.day_index, p, sky.options.year), p) for p in schedule]
-    for mask, period in masks:
-        m = mask & (frac > 0)
-        if not m.any():
-            continue
+        periods = list(schedule)
+    for period in periods:
         if period is None:
-            t = np.clip(zen[m], 0.0, 90.0)
-            a = saz[m]
+            m = frac > 0
+            node_m = np.ones(len(nodes), dtype=bool)
+            t, a = np.clip(zen[m], 0.0, 90.0), saz[m]
+            node_t, node_a = np.clip(nodes.apparent_zenith, 0.0, 90.0), nodes.azimuth
             shading = None
         else:
-            t = float(period.tilt_deg)
-            a = float(period.azimuth_deg)
-            shading = plane_shading(site, t, a)
-        poa = poa_arrays(t, a, zen[m], saz[m], sky.ghi[m], sky.dni[m], sky.dhi[m],
-                         sky.dni_extra[m], albedo[m], sky.options.model,
-                         sun_visible=sky.sun_visible[m], shading=shading)
-        for c in cols:
-            out[c][m] = poa[c] * (1.0 if c == "aoi" else frac[m])
+            m = _period_mask(sky.day_index, period, sky.options.year) & (frac > 0)
+            node_m = _period_mask(nodes.day_index, period, sky.options.year)
+            t = node_t = float(period.tilt_deg)
+            a = node_a = float(period.azimuth_deg)
+            shading = plane_shading(site, t, a) if m.any() else None
+        if not m.any():
+            continue
+        if sums:
+            means = poa_interval_means(nodes, n, node_t, node_a, sky.options.model, shading,
+                                       node_m, sums)
+            for c in sums:
+                out[c][m] = means[c][m]
+        if "aoi" in cols:
+            out["aoi"][m] = angle_of_incidence(t, a, zen[m], saz[m])
         tilt[m] = t
         azim[m] = a
     return tilt, azim, out
@@ -517,7 +529,8 @@ def _open_sky(sky: SkyYear, open_site: Site) -> SkyYear:
     from dataclasses import replace
 
     up = sky.sun_up_fraction > 0
-    return replace(sky, site=open_site, sun_visible=up.copy())
+    return replace(sky, site=open_site, sun_visible=up.copy(),
+                   nodes=sky.nodes.with_open_horizon())
 
 
 def _two_axis(sky: SkyYear, month_of_day: np.ndarray, poa_global: np.ndarray) -> StudyOption:

@@ -13,7 +13,9 @@ import pvlib
 import pytest
 
 from tiltyard.engine.daycurves import (
+    DAY_STEP_MIN,
     TOTAL_KEYS,
+    _clear_day,
     compare_options,
     day_grid,
     irradiance_day,
@@ -83,11 +85,14 @@ def test_clear_day_at_ten_minutes_agrees_with_the_hourly_year(kelpie, model):
         ref = _year_day_totals(irradiance_year(kelpie, pl.tilt_deg, pl.azimuth_deg, opts),
                                date)
         for key in ("ghi_kwh_m2", "poa_kwh_m2", "extraterrestrial_horizontal_kwh_m2"):
-            # step discretisation: the hourly midpoint rule is off by about
-            # (omega h)^2 / 24 = 0.3 % for omega = 15 deg/h, h = 1 h, more on short winter
-            # days (Burden & Faires, Numerical Analysis, composite midpoint rule error,
-            # from memory); measured here up to 0.45 %. Tolerance 1 % of the day total.
-            assert day.totals_kwh_m2[key] == pytest.approx(ref[key], rel=0.01), (date, key)
+            # step discretisation: both integrate the clear sky at Gauss-Legendre nodes
+            # and the extraterrestrial part in closed form (the hourly midpoint rule was
+            # off by about (omega h)^2 / 24 = 0.3 %, Burden & Faires, Numerical Analysis,
+            # composite midpoint rule error, from memory); what is left is where the sun
+            # crosses the plane's own horizon or the skyline inside an hour: measured up
+            # to 0.17 % of a day's plane-of-array total, under 0.01 % for GHI and the
+            # extraterrestrial. Tolerance 0.5 % of the day total.
+            assert day.totals_kwh_m2[key] == pytest.approx(ref[key], rel=5e-3), (date, key)
 
 
 def test_monthly_basis_day_is_the_years_day(larkmoor):
@@ -143,10 +148,13 @@ def test_clear_sky_ghi_never_exceeds_the_extraterrestrial_horizontal():
             assert (s["ghi"] <= s["extraterrestrial_horizontal"] + 1e-9).all(), (demo, date)
             assert (s["dni"] <= s["dni_extra"] + 1e-9).all(), (demo, date)
             # closure GHI = DHI + DNI cos z of the clear-sky components (Duffie & Beckman
-            # 2013, sec. 2.8, from memory); 1e-6 W/m2
+            # 2013, sec. 2.8, from memory). It holds at each node; the series hold means
+            # over each 10-minute interval's nodes, where the mean of DNI cos z differs
+            # from the mean DNI times cos z at the evaluation instant by the curvature
+            # over the interval (measured up to 0.13 W/m2); tolerance 0.5 W/m2
             closure = s["dhi"] + s["dni"] * np.cos(np.radians(s["apparent_zenith"]))
             up = s["sun_up_fraction"] > 0
-            np.testing.assert_allclose(s["ghi"][up], closure[up], atol=1e-6)
+            np.testing.assert_allclose(s["ghi"][up], closure[up], atol=0.5)
 
 
 def test_extraterrestrial_normal_at_the_equinox_noon_on_the_equator():
@@ -206,18 +214,22 @@ def test_plane_of_array_matches_pvlib_on_an_open_horizon(model):
     day = irradiance_day(site, "2023-04-15", 35.0, 200.0, IrradianceOptions(model=model))
     s = day.series
     assert s["sun_visible"][s["sun_up_fraction"] > 0].all()
-    picks = s[s["apparent_elevation"] > 5.0].iloc[::9]
-    assert len(picks) >= 5
+    # the day's nodes, where its intervals are transposed (tiltyard.engine.skynodes)
+    nd = _clear_day(site, day_grid(site, pd.Timestamp("2023-04-15"), DAY_STEP_MIN),
+                    IrradianceOptions(model=model)).nodes
     ref = pvlib.irradiance.get_total_irradiance(
-        35.0, 200.0, picks["apparent_zenith"], picks["azimuth"], picks["dni"], picks["ghi"],
-        picks["dhi"], dni_extra=picks["dni_extra"], albedo=0.25, model=model)
-    # pvlib.irradiance.get_total_irradiance (Holmgren, Hansen & Mikofski 2018, JOSS 3(29),
-    # 884) on the same instants and horizontal components; 1e-9 relative
-    np.testing.assert_allclose(picks["poa_global"], ref["poa_global"], rtol=1e-9)
-    np.testing.assert_allclose(picks["poa_direct"], ref["poa_direct"], rtol=1e-9)
-    np.testing.assert_allclose(picks["poa_sky_diffuse"], ref["poa_sky_diffuse"], rtol=1e-9)
-    np.testing.assert_allclose(picks["poa_ground_diffuse"], ref["poa_ground_diffuse"],
-                               rtol=1e-9)
+        35.0, 200.0, nd.apparent_zenith, nd.azimuth, nd.dni, nd.ghi, nd.dhi,
+        dni_extra=nd.dni_extra, albedo=0.25, model=model)
+    frac = s["sun_up_fraction"].to_numpy()
+    up = frac > 0
+    for col in ("poa_global", "poa_direct", "poa_sky_diffuse", "poa_ground_diffuse"):
+        mean = np.bincount(nd.interval, weights=np.asarray(ref[col]) * nd.weight,
+                           minlength=len(s))
+        # pvlib.irradiance.get_total_irradiance (Holmgren, Hansen & Mikofski 2018,
+        # JOSS 3(29), 884) at the same nodes and horizontal components, averaged with
+        # the nodes' weights over each interval's sun-up part; 1e-9 relative
+        np.testing.assert_allclose(s[col].to_numpy()[up], mean[up] / frac[up], rtol=1e-9,
+                                   atol=1e-12)
     # an open horizon loses nothing (regression value)
     assert day.totals_kwh_m2["horizon_loss_kwh_m2"] == pytest.approx(0.0, abs=1e-12)
 

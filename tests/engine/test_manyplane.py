@@ -3,7 +3,8 @@
 Reference library: pvlib (Holmgren, W. F., Hansen, C. W. & Mikofski, M. A.
 (2018). pvlib python: a python package for modeling solar energy systems.
 JOSS 3(29), 884), ``pvlib.irradiance.get_total_irradiance`` called once per
-plane on the same sky, and the one-plane job
+plane on the same sky (at its nodes, :attr:`SkyYear.nodes`, each weighted by
+its share of its interval), and the one-plane job
 :func:`tiltyard.engine.jobs.irradiance_year` for the site horizon.
 """
 
@@ -52,17 +53,19 @@ def _plane_column(result, tilt, azimuth):
 
 
 def _pvlib_daily(sky, tilt, azimuth, model):
-    """Daily kWh/m2 from pvlib.irradiance.get_total_irradiance on the sun-up intervals."""
-    up = sky.sun_up_fraction > 0
-    pos = sky.position
+    """Daily kWh/m2 from pvlib.irradiance.get_total_irradiance at the sky's nodes."""
+    nd = sky.nodes
     out = pvlib.irradiance.get_total_irradiance(
-        tilt, azimuth, pos["apparent_zenith"].to_numpy()[up], pos["azimuth"].to_numpy()[up],
-        sky.dni[up], sky.ghi[up], sky.dhi[up], dni_extra=sky.dni_extra[up],
-        albedo=sky.albedo[up], model=model)
+        tilt, azimuth, nd.apparent_zenith, nd.azimuth, nd.dni, nd.ghi, nd.dhi,
+        dni_extra=nd.dni_extra, albedo=nd.albedo, model=model)
     poa = np.asarray(out["poa_global"], dtype=float)
     assert np.isfinite(poa).all()
-    return np.bincount(sky.day_index[up], weights=poa * sky.kwh_weight[up],
-                       minlength=sky.n_days)
+    return np.bincount(nd.day_index, weights=poa * _node_kwh(sky), minlength=sky.n_days)
+
+
+def _node_kwh(sky):
+    """kWh/m2 per W/m2 at each node (its weight times the interval in hours, over 1000)."""
+    return sky.nodes.weight * sky.grid.step_h / 1000.0
 
 
 def _month_of_day(sky):
@@ -180,36 +183,35 @@ def _clipping_sky(site, brightness=1.0):
     than any real sky that low), not data.
     """
     sky = sky_year(site, IrradianceOptions(model="perez"))
-    zen = sky.position["apparent_zenith"].to_numpy()
-    low = (sky.sun_up_fraction > 0) & (zen > 85.0)
+    nd = sky.nodes
+    zen = nd.apparent_zenith
+    low = zen > 85.0
     am = np.nan_to_num(np.asarray(pvlib.atmosphere.get_relative_airmass(zen), dtype=float))
-    dhi = sky.dhi.copy()
-    dni = sky.dni.copy()
-    dhi[low] = brightness * sky.dni_extra[low] / am[low]
+    dhi = nd.dhi.copy()
+    dni = nd.dni.copy()
+    dhi[low] = brightness * nd.dni_extra[low] / am[low]
     kz3 = 1.041 * np.radians(zen[low]) ** 3
     eps_target = 5.0
     dni[low] = dhi[low] * (eps_target * (1 + kz3) - kz3 - 1.0)
-    ghi = np.where(sky.sun_up_fraction > 0, dni * np.cos(np.radians(zen)) + dhi, 0.0)
-    return dataclasses.replace(sky, dhi=dhi, dni=dni, ghi=ghi), low
+    ghi = dni * np.cos(np.radians(zen)) + dhi
+    return dataclasses.replace(sky, nodes=dataclasses.replace(nd, dhi=dhi, dni=dni, ghi=ghi)), low
 
 
 def test_perez_clipping_matches_pvlib():
     sky, low = _clipping_sky(OPEN_SITE)
     terms = many_plane_terms(sky)
     assert terms.clip_rows.any()
-    assert np.isin(np.flatnonzero(low), terms.rows[terms.clip_rows]).mean() > 0.5
+    assert terms.clip_rows[low].mean() > 0.5
     tilt, azim = np.meshgrid(np.arange(0.0, 91.0, 10.0), np.arange(0.0, 360.0, 15.0),
                              indexing="ij")
     result = many_plane_daily(terms, tilt, azim)
-    up = sky.sun_up_fraction > 0
-    pos = sky.position
+    nd = sky.nodes
     bites = 0
     for t, a in ((90.0, 0.0), (90.0, 180.0), (80.0, 345.0), (40.0, 0.0), (0.0, 0.0),
                  (90.0, 90.0), (70.0, 270.0)):
         diffuse = pvlib.irradiance.get_sky_diffuse(
-            t, a, pos["apparent_zenith"].to_numpy()[up], pos["azimuth"].to_numpy()[up],
-            sky.dni[up], sky.ghi[up], sky.dhi[up], dni_extra=sky.dni_extra[up],
-            model="perez")
+            t, a, nd.apparent_zenith, nd.azimuth, nd.dni, nd.ghi, nd.dhi,
+            dni_extra=nd.dni_extra, model="perez")
         bites += int((np.asarray(diffuse) == 0).sum())
         ref = _pvlib_daily(sky, t, a, "perez")
         j = _plane_column(result, t, a)
@@ -227,14 +229,14 @@ def test_perez_clipping_with_horizon_matches_poa_components():
     planes = ((90.0, 0.0), (90.0, 200.0), (75.0, 330.0), (30.0, 118.0))
     result = many_plane_daily(terms, [p[0] for p in planes], [p[1] for p in planes],
                               site=site, with_open=True)
-    pos = sky.position
-    k = sky.kwh_weight
+    nd = sky.nodes
+    k = _node_kwh(sky)
     for j, (t, a) in enumerate(planes):
-        poa = poa_components(t, a, pos["apparent_zenith"].to_numpy(), pos["azimuth"].to_numpy(),
-                             sky.ghi, sky.dni, sky.dhi, sky.dni_extra, sky.albedo, "perez",
-                             sun_visible=sky.sun_visible, shading=plane_shading(site, t, a))
-        ref = np.bincount(sky.day_index, weights=poa["poa_global"].to_numpy() * k)
-        ref_open = np.bincount(sky.day_index, weights=poa["poa_global_open"].to_numpy() * k)
+        poa = poa_components(t, a, nd.apparent_zenith, nd.azimuth, nd.ghi, nd.dni, nd.dhi,
+                             nd.dni_extra, nd.albedo, "perez", sun_visible=nd.sun_visible,
+                             shading=plane_shading(site, t, a))
+        ref = np.bincount(nd.day_index, weights=poa["poa_global"].to_numpy() * k)
+        ref_open = np.bincount(nd.day_index, weights=poa["poa_global_open"].to_numpy() * k)
         # consistency with plane.poa_components (pvlib perez components, Holmgren et al.
         # 2018, with the horizon applied per component); 1e-9 relative
         np.testing.assert_allclose(result.daily_kwh_m2[:, j], ref, rtol=1e-9, atol=1e-12)
@@ -342,12 +344,9 @@ def test_sun_just_below_the_horizontal_matches_pvlib():
     sun's depression angle, the other branch of the grid's sign analysis.
     """
     sky = sky_year(OPEN_SITE, IrradianceOptions(model="isotropic"))
-    pos = sky.position.copy()
-    zen = pos["apparent_zenith"].to_numpy().copy()
-    low = (sky.sun_up_fraction > 0) & (zen > 80.0)
-    zen[low] += 14.0
-    pos["apparent_zenith"] = zen
-    sky = dataclasses.replace(sky, position=pos)
+    zen = sky.nodes.apparent_zenith.copy()
+    zen[zen > 80.0] += 14.0
+    sky = dataclasses.replace(sky, nodes=dataclasses.replace(sky.nodes, apparent_zenith=zen))
     terms = many_plane_terms(sky)
     assert (terms.sun_vec[:, 0] < 0).sum() > 100
     tilt, azim = np.meshgrid(np.arange(0.0, 91.0, 10.0), np.arange(0.0, 360.0, 30.0),
@@ -367,14 +366,13 @@ def test_planes_beyond_vertical_match_pvlib(brightness):
     terms = many_plane_terms(sky)
     if brightness < 1.0:
         # the clip acts only beyond vertical here, outside what clip_rows covers
-        assert not np.isin(np.flatnonzero(low), terms.rows[terms.clip_rows]).any()
+        assert not terms.clip_rows[low].any()
     planes = ((100.0, 0.0), (120.0, 180.0), (150.0, 90.0), (45.0, 200.0))
     result = many_plane_daily(terms, [p[0] for p in planes], [p[1] for p in planes])
-    up = sky.sun_up_fraction > 0
-    pos = sky.position
+    nd = sky.nodes
     diffuse = pvlib.irradiance.get_sky_diffuse(
-        150.0, 90.0, pos["apparent_zenith"].to_numpy()[up], pos["azimuth"].to_numpy()[up],
-        sky.dni[up], sky.ghi[up], sky.dhi[up], dni_extra=sky.dni_extra[up], model="perez")
+        150.0, 90.0, nd.apparent_zenith, nd.azimuth, nd.dni, nd.ghi, nd.dhi,
+        dni_extra=nd.dni_extra, model="perez")
     assert (np.asarray(diffuse) == 0).sum() > 100       # the clip acts in the reference
     for j, (t, a) in enumerate(planes):
         ref = _pvlib_daily(sky, t, a, "perez")
