@@ -116,28 +116,35 @@ def test_no_view_sets_a_minimum_window_over_1024_by_600(window, qtbot, idle):
     assert (window.width(), window.height()) == SMALLEST
 
 
-def test_every_view_at_laptop_sizes_keeps_its_labels_apart(window, qtbot, idle):
-    seen = {}
-    problems = []
+def _each_view_at(window, qtbot, idle, sizes):
+    """Every view shown at each of ``sizes`` in turn: ``(title, view, holder, size)``, the
+    view's result drawn."""
     for title in list(window.views):
         view = window.show_view(title)
         idle(window.runner, 120.0)
         holder = window.stack.currentWidget()
-        assert isinstance(holder, QScrollArea) and holder.widget() is view
-        for size in SIZES:
+        for size in sizes:
             window.resize(*size)
             qtbot.wait(30)
             idle(window.runner, 120.0)
-            assert (window.width(), window.height()) == size, (title, size)
-            # the width always fits (a form column is never cut); at 1024x600 a view
-            # may scroll up and down
-            assert view.width() <= holder.viewport().width(), (title, size, view.width())
-            if size != SMALLEST:
-                assert not holder.verticalScrollBar().isVisible() or title == "Site", (
-                    title, size, view.minimumSizeHint(), holder.viewport().size(),
-                    window.banner.isVisible() and window.banner.text)
-            problems += [(title, size, p) for p in _problems(view)]
-            seen[(title, size)] = len(_text_widgets(view))
+            yield title, view, holder, size
+
+
+def test_every_view_at_laptop_sizes_keeps_its_labels_apart(window, qtbot, idle):
+    seen = {}
+    problems = []
+    for title, view, holder, size in _each_view_at(window, qtbot, idle, SIZES):
+        assert isinstance(holder, QScrollArea) and holder.widget() is view
+        assert (window.width(), window.height()) == size, (title, size)
+        # the width always fits (a form column is never cut); at 1024x600 a view
+        # may scroll up and down
+        assert view.width() <= holder.viewport().width(), (title, size, view.width())
+        if size != SMALLEST:
+            assert not holder.verticalScrollBar().isVisible() or title == "Site", (
+                title, size, view.minimumSizeHint(), holder.viewport().size(),
+                window.banner.isVisible() and window.banner.text)
+        problems += [(title, size, p) for p in _problems(view)]
+        seen[(title, size)] = len(_text_widgets(view))
     assert not problems, "\n".join(map(str, problems))
     assert all(n > 3 for n in seen.values()), seen     # the check looked at something
 
@@ -186,25 +193,18 @@ def test_every_chart_keeps_a_usable_height_and_the_view_scrolls_instead(window, 
     from tiltyard.app import plots
     heights = {}
     clipped = []
-    for title in list(window.views):
-        view = window.show_view(title)
-        idle(window.runner, 120.0)
-        holder = window.stack.currentWidget()
-        for size in CHART_SIZES:
-            window.resize(*size)
-            qtbot.wait(30)
-            idle(window.runner, 120.0)
-            charts = [c for c in view.findChildren(pg.GraphicsView) if c.isVisible()]
-            for chart in charts:
-                heights[(title, size, chart.objectName() or type(chart).__name__,
-                         len(heights))] = chart.height()
-                clipped += _clipped_axis_labels(chart, title, size)
-            if any(c.height() < plots.CHART_MIN_HEIGHT_PX for c in charts):
-                continue            # reported below, with every other short chart
-            # everything the view holds is reachable: it fits or the holder scrolls
-            bar = holder.verticalScrollBar()
-            assert view.height() <= holder.viewport().height() or bar.maximum() > 0, (
-                title, size, view.height(), holder.viewport().height())
+    for title, view, holder, size in _each_view_at(window, qtbot, idle, CHART_SIZES):
+        charts = [c for c in view.findChildren(pg.GraphicsView) if c.isVisible()]
+        for chart in charts:
+            heights[(title, size, chart.objectName() or type(chart).__name__,
+                     len(heights))] = chart.height()
+            clipped += _clipped_axis_labels(chart, title, size)
+        if any(c.height() < plots.CHART_MIN_HEIGHT_PX for c in charts):
+            continue            # reported below, with every other short chart
+        # everything the view holds is reachable: it fits or the holder scrolls
+        bar = holder.verticalScrollBar()
+        assert view.height() <= holder.viewport().height() or bar.maximum() > 0, (
+            title, size, view.height(), holder.viewport().height())
     short = {k: h for k, h in heights.items() if h < plots.CHART_MIN_HEIGHT_PX}
     assert not short, short
     assert not clipped, clipped
