@@ -60,10 +60,18 @@ def prepare_ahead(window) -> threading.Thread:
     """
     from PySide6.QtCore import QTimer
 
+    latitude_deg = window.document.site.latitude_deg
+
     def load() -> None:
         gc.disable()            # loading modules makes no garbage worth a collection
         try:
             warm_up()
+            # the charts' facing for the open site (kept per latitude): numpy's loops
+            # run here, not in the Horizon and Sun path views' first build
+            from tiltyard.engine.sunchart_design import chart_centre_deg
+            chart_centre_deg(latitude_deg)
+        except Exception:  # noqa: BLE001 - the view computes it (and reports) itself
+            pass
         finally:
             gc.freeze()
             gc.enable()
