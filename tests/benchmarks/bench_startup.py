@@ -27,7 +27,9 @@ COMMANDS = (["--version"], ["--help"], ["sun", "--help"], ["study", "--help"],
             ["sun", "larkmoor-dairy", "--date", "2023-06-21"])
 RUN = ("import atexit, sys\n"
        "def _report():\n"
-       "    heavy = sorted({h for m in sys.modules for h in HEAVY if m == h or m.startswith(h + '.')})\n"
+       "    light = ('tiltyard.engine', 'tiltyard.engine.choices', 'tiltyard.engine.words')\n"
+       "    heavy = sorted({h for m in sys.modules for h in HEAVY\n"
+       "                    if (m == h or m.startswith(h + '.')) and m not in light})\n"
        "    sys.stderr.write('HEAVY ' + ','.join(heavy) + '\\n')\n"
        "atexit.register(_report)\n"
        "from tiltyard.app.cli import main\n"
