@@ -57,28 +57,67 @@ def _best_tilts_separable(cum, switches, n_days):
     return tilts, total
 
 
-def _two_period_exhaustive(cum, n_days, min_days):
+def _two_period_totals(cum2, total_all, n_days, lengths, out_rows=None):
+    """Two-period totals ``(len(lengths), n_days)``: row ``j``, column ``i`` is the best
+    tilt's sum over ``[i, i + lengths[j])`` (cyclic) plus the best over the rest.
+
+    Each length's segment sums are computed into the same two buffers (slices of the
+    two-year cumulative sums ``cum2``, no gathering), so they stay in cache.
+    """
+    start = cum2[:n_days]
+    seg_a, seg_b = np.empty_like(start), np.empty_like(start)
+    tot = np.empty((len(lengths), n_days)) if out_rows is None else out_rows
+    for j, length in enumerate(lengths):
+        np.subtract(cum2[length:length + n_days], start, out=seg_a)
+        np.subtract(total_all[None, :], seg_a, out=seg_b)
+        np.add(seg_a.max(axis=1), seg_b.max(axis=1), out=tot[j])
+    return tot
+
+
+def _two_period_exhaustive(cum, n_days, min_days, stride=4):
     """Exhaustive search of two switch days and their best tilts.
 
     A two-period split is one period ``[s1, s1 + length)`` (cyclic) and the
     rest; a length and its complement give the same splits, so lengths up to
-    half the year cover every split once. Each length's segment sums are
-    computed into the same two buffers (slices of the two-year cumulative sums,
-    no gathering), so they stay in cache.
+    half the year cover every split once. The first best split, lengths
+    ascending and then start days, is kept, as a loop keeping only strictly
+    better totals would.
+
+    Bounded, with the same result bit for bit: every split is first scored on
+    every ``stride``-th tilt column (a lower bound of its total, the same
+    arithmetic on fewer columns). Each skipped column ``t`` between kept columns
+    ``s1 < t < s2`` is ``lam x D[s1] + (1 - lam) x D[s2] + c[t]`` day by day
+    (``lam`` from the tilt positions), so any period's sum at ``t`` is at most the
+    best kept column's plus the period's sum of ``e = max_t c[t]`` (at least 0);
+    both periods together gain at most the year's sum of ``e``. Splits whose
+    lower bound falls short of the best lower bound by more than that (and a
+    rounding margin) cannot be best; the rest are scored on every column exactly
+    as the plain search scores them.
     """
     total_all = cum[n_days]
     cum2 = np.vstack([cum, total_all[None, :] + cum[1:]])   # cumulative over two years
-    start = cum2[:n_days]
-    seg_a, seg_b = np.empty_like(start), np.empty_like(start)
-    best_total, best_sw = -np.inf, None
-    for length in range(min_days, n_days // 2 + 1):
-        np.subtract(cum2[length:length + n_days], start, out=seg_a)
-        np.subtract(total_all[None, :], seg_a, out=seg_b)
-        tot = seg_a.max(axis=1) + seg_b.max(axis=1)
-        i = int(np.argmax(tot))
-        if tot[i] > best_total:
-            best_total = float(tot[i])
-            best_sw = sorted([i, (i + length) % n_days])
+    lengths = np.arange(min_days, n_days // 2 + 1)
+    n_t = cum.shape[1]
+    kept = np.unique(np.r_[np.arange(0, n_t, stride), n_t - 1])
+    lower = _two_period_totals(np.ascontiguousarray(cum2[:, kept]), total_all[kept], n_days,
+                               lengths)
+    daily = np.diff(cum, axis=0)                             # (n_days, n_t)
+    cols = np.arange(n_t)
+    hi = np.searchsorted(kept, cols)                         # kept[hi] >= column
+    lo = np.where(kept[hi] == cols, hi, hi - 1)
+    span = (kept[hi] - kept[lo]).astype(float)
+    lam = np.where(span > 0, (kept[hi] - cols) / np.where(span > 0, span, 1.0), 1.0)
+    resid = daily - (lam * daily[:, kept[lo]] + (1.0 - lam) * daily[:, kept[hi]])
+    excess = float(np.maximum(resid.max(axis=1), 0.0).sum())
+    margin = 1e-9 * float(np.abs(cum).max())
+    cand_l, cand_i = np.nonzero(lower >= lower.max() - excess - margin)
+    seg_a = cum2[lengths[cand_l] + cand_i] - cum2[cand_i]
+    seg_b = total_all[None, :] - seg_a
+    cand_tot = seg_a.max(axis=1) + seg_b.max(axis=1)
+    best = float(cand_tot.max())
+    first = int(np.flatnonzero(cand_tot == best)[0])        # candidates in (length, start) order
+    i, length = int(cand_i[first]), int(lengths[cand_l[first]])
+    best_sw = sorted([i, (i + length) % n_days])
     tilts, total = _best_tilts_separable(cum, best_sw, n_days)
     return best_sw, tilts, total
 
