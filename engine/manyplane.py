@@ -501,43 +501,39 @@ def _clip_chunk(sun, day, weights, tilt_u, cg, sg, cosb_u, sinb_u, m, blocks):
     ----------
     As :func:`_beam_grid`.
     """
-    n_t, n_u, n_c = tilt_u.size, cg.size, 2 * len(weights)
-    per_day = (n_t + 1) * n_c * n_u
-    comp = np.arange(n_c)
+    n_t, n_u = tilt_u.size, cg.size
     cz = sun[:, 0]
     sgn = np.where(cz > 0.0, -1.0, 1.0)
     vs = (sun[:, 1] * sgn)[:, None] * cg[None, :]
     vs += (sun[:, 2] * sgn)[:, None] * sg[None, :]
-    keep = np.flatnonzero(vs > 0.0)
+    pos = vs > 0.0
+    keep = np.flatnonzero(pos)
     if keep.size == 0:
         return
-    r = keep // n_u
+    # the kept pairs row by row: each row's values repeated over its kept azimuths
+    counts = np.count_nonzero(pos, axis=1)
     den = vs.ravel()[keep]
-    acz = np.abs(cz)[r]
+    acz = np.repeat(np.abs(cz), counts)
+    col = keep - np.repeat(np.arange(sun.shape[0]) * n_u, counts)
     # sun above: positive below b* (first tilt not below it); sun below: above b*.
     # p = n_t (no sign change within the tilts) goes to a spare row
-    p = _count_below(tilt_u, np.degrees(np.arctan(acz / den)), inclusive=cz[r] <= 0.0)
-    base = (p * (n_c * n_u) + (keep - r * n_u)) * m + day[r]
-    # the part past b*, to be taken off (sun above) or added (sun below):
-    # -w |cos z| for the cos b factor and w |v| for the sin b factor
-    vals = np.empty((keep.size, n_c))
-    for k, w in enumerate(weights):
-        wr = w[r]
-        np.multiply(wr, acz, out=vals[:, 2 * k])
-        vals[:, 2 * k] *= -1.0
-        np.multiply(wr, den, out=vals[:, 2 * k + 1])
-    idx = base[:, None] + comp[None, :] * (n_u * m)
-    acc = np.bincount(idx.ravel(), weights=vals.ravel(), minlength=per_day * m)
-    flat = acc.reshape(n_t + 1, n_c * n_u * m)
-    for i in range(1, n_t):
-        flat[i] += flat[i - 1]
-    acc = acc.reshape(n_t + 1, n_c, n_u, m)
-    for k, block in enumerate(blocks):
-        part, part_sin = acc[:n_t, 2 * k], acc[:n_t, 2 * k + 1]
-        part *= cosb_u[:, None, None]
-        part_sin *= sinb_u[:, None, None]
+    p = _count_below(tilt_u, np.degrees(np.arctan(acz / den)),
+                     inclusive=np.repeat(cz <= 0.0, counts))
+    base = (p * n_u + col) * m + np.repeat(day, counts)
+    size = (n_t + 1) * n_u * m
+    for w, block in zip(weights, blocks, strict=True):
+        # the part past b*, to be taken off (sun above) or added (sun below):
+        # -w |cos z| for the cos b factor and w |v| for the sin b factor, each
+        # summed pair by pair in row order, then run over the tilts
+        wr = np.repeat(w, counts)
+        part = np.bincount(base, weights=-(wr * acz), minlength=size).reshape(n_t + 1, -1)
+        part_sin = np.bincount(base, weights=wr * den, minlength=size).reshape(n_t + 1, -1)
+        part = np.cumsum(part[:n_t], axis=0)
+        part_sin = np.cumsum(part_sin[:n_t], axis=0)
+        part *= cosb_u[:, None]
+        part_sin *= sinb_u[:, None]
         part += part_sin
-        block.reshape(n_t, n_u, m)[...] += part
+        block.reshape(n_t, n_u * m)[...] += part
 
 
 def _small_matmul(a, b, out):
