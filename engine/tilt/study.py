@@ -11,6 +11,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from ..beam_clip import ClipReuse
 from ..horizon import plane_shading
 from ..manyplane import many_plane_daily, many_plane_monthly, many_plane_terms
 from ..plane import angle_of_incidence, poa_interval_means
@@ -144,6 +145,7 @@ class _Scorer:
 
     def __init__(self, site: Site, opts: StudyOptions, sky: SkyYear, terms):
         self.site, self.opts, self.sky, self.terms = site, opts, sky, terms
+        self.grid_clip = ClipReuse()
         self.n_days = sky.n_days
         self.mod = _month_of_day(sky)
         self.year = opts.irradiance.year
@@ -173,7 +175,8 @@ class _Scorer:
         g_t, g_a = np.meshgrid(np.arange(0.0, 91.0, 1.0), np.arange(0.0, 360.0, 5.0),
                                indexing="ij")
         # monthly totals straight from the year (the map needs no daily table)
-        g_month = many_plane_monthly(self.terms, g_t, g_a, self.mod, site=self.site)
+        g_month = many_plane_monthly(self.terms, g_t, g_a, self.mod, site=self.site,
+                                     reuse=self.grid_clip)
         g_score = self.score_cols(g_month).reshape(g_t.shape)
         gi = np.unravel_index(int(np.argmax(g_score)), g_score.shape)
         self.grid_tilts, self.grid_azimuths = g_t, g_a
@@ -226,8 +229,9 @@ class _Scorer:
             return []
         open_site = site.with_changes(horizon=type(site.horizon)(), obstacles=())
         g_t, g_a = self.grid_tilts, self.grid_azimuths
+        # the site grid's beam clip parts serve the nodes the horizon leaves visible
         og = many_plane_monthly(many_plane_terms(_open_sky(sky, open_site)), g_t, g_a,
-                                self.mod, site=open_site)
+                                self.mod, site=open_site, reuse=self.grid_clip)
         og_ann = og.sum(axis=0).reshape(g_t.shape)
         oa = float(g_a[np.unravel_index(int(np.argmax(og_ann)), og_ann.shape)])
         if abs((oa - equator + 180.0) % 360.0 - 180.0) > 5.0:
