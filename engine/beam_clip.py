@@ -59,13 +59,16 @@ def clip_parts(sun, day, weights, tilt_u, cg, sg, cosb_u, sinb_u, m):
     for w in weights:
         # the part past b*, to be taken off (sun above) or added (sun below):
         # -w |cos z| for the cos b factor and w |v| for the sin b factor, each
-        # summed pair by pair in row order, then run over the tilts
+        # summed pair by pair in row order, then run over the tilts in place
         wr = np.repeat(w, counts)
         part = np.bincount(base, weights=-(wr * acz), minlength=size).reshape(n_t + 1, -1)
         part_sin = np.bincount(base, weights=wr * den, minlength=size).reshape(n_t + 1, -1)
-        part = np.cumsum(part[:n_t], axis=0)
-        part_sin = np.cumsum(part_sin[:n_t], axis=0)
+        for i in range(1, n_t):
+            part[i] += part[i - 1]
+            part_sin[i] += part_sin[i - 1]
+        part = part[:n_t]
         part *= cosb_u[:, None]
+        part_sin = part_sin[:n_t]
         part_sin *= sinb_u[:, None]
         part += part_sin
         out.append(part.reshape(n_t * n_u, m))
