@@ -252,6 +252,32 @@ def _count_below(sorted_values, x, inclusive=False) -> np.ndarray:
     return n
 
 
+@functools.lru_cache(maxsize=8)
+def _svf_tilt_terms(tilts: tuple, n_az: int) -> tuple:
+    """The horizon-free parts of :func:`_svf_product` for a set of tilts (read-only):
+    the relative azimuth samples' cosines ``u``, ``cos b``, ``sin b``, ``prim(e_m)``
+    at each plane's own horizon and each tilt's open-sky sum. A study meets the same
+    tilts several times (its map and tilt curve, its candidates' months and days).
+
+    References
+    ----------
+    As :func:`_svf_product`.
+    """
+    rel = np.radians((np.arange(n_az) + 0.5) * (360.0 / n_az))   # relative azimuth samples
+    u = np.cos(rel)
+    beta = np.radians(np.asarray(tilts, dtype=float))
+    cosb, sinb = np.cos(beta), np.sin(beta)
+    b = sinb[:, None] * u[None, :]                               # (T, n)
+    # at the plane's own horizon e_m, a sin(e) + b cos(e) = 0, so prim(e_m) = b e_m / 2;
+    # prim(pi/2) = a/2 + b pi/4
+    prim_e = b * (-np.arctan2(b, cosb[:, None])) / 2.0
+    total = (cosb / 2.0) * n_az + (b * (np.pi / 4.0) - prim_e).sum(axis=1)
+    out = (u, cosb, sinb, prim_e, total)
+    for a in out:
+        a.setflags(write=False)
+    return out
+
+
 def _svf_product(tilt_deg, shift_idx, h, n_az):
     """Sky-view factors ``(T, U)`` of every pairing of tilts with sample-grid azimuths.
 
@@ -275,15 +301,7 @@ def _svf_product(tilt_deg, shift_idx, h, n_az):
     practice, no source).
     """
     n_t, n_u = tilt_deg.size, shift_idx.size
-    rel = np.radians((np.arange(n_az) + 0.5) * (360.0 / n_az))   # relative azimuth samples
-    u = np.cos(rel)
-    beta = np.radians(tilt_deg)
-    cosb, sinb = np.cos(beta), np.sin(beta)
-    b = sinb[:, None] * u[None, :]                               # (T, n)
-    # at the plane's own horizon e_m, a sin(e) + b cos(e) = 0, so prim(e_m) = b e_m / 2;
-    # prim(pi/2) = a/2 + b pi/4
-    prim_e = b * (-np.arctan2(b, cosb[:, None])) / 2.0
-    total = (cosb / 2.0) * n_az + (b * (np.pi / 4.0) - prim_e).sum(axis=1)
+    u, cosb, sinb, prim_e, total = _svf_tilt_terms(tuple(np.asarray(tilt_deg).tolist()), n_az)
     k = (np.arange(n_az)[:, None] + shift_idx[None, :]) % n_az  # sample seen by cell (m, j)
     hk = h[k]
     front = u > 0.0

@@ -38,7 +38,8 @@ from dataclasses import dataclass
 import numpy as np
 import pvlib
 
-from .horizon import _count_below, horizon_band_fraction, site_horizon_deg, sky_view_factor
+from .beam_clip import ClipReuse, clip_parts
+from .horizon import horizon_band_fraction, site_horizon_deg, sky_view_factor
 from .plane import perez_f1_f2
 from .skyyear import SkyYear
 
@@ -270,7 +271,7 @@ def many_plane_daily(terms: ManyPlaneTerms, surface_tilt, surface_azimuth, site=
 
 
 def many_plane_monthly(terms: ManyPlaneTerms, surface_tilt, surface_azimuth,
-                       month_of_day, site=None) -> np.ndarray:
+                       month_of_day, site=None, reuse: ClipReuse | None = None) -> np.ndarray:
     """Monthly plane-of-array irradiation for many planes, without the daily table.
 
     The arithmetic of :func:`many_plane_daily` with the days gathered into
@@ -291,6 +292,10 @@ def many_plane_monthly(terms: ManyPlaneTerms, surface_tilt, surface_azimuth,
         Each day's month, 1-12 (``terms.n_days`` values).
     site : Site, optional
         The horizon, as for :func:`many_plane_daily`.
+    reuse : ClipReuse, optional
+        On a tilt x azimuth grid: keeps this pass's beam clip parts, or takes
+        those of an earlier pass over the same grid whose nodes this pass has
+        with the same weights (:mod:`tiltyard.engine.beam_clip`).
 
     Returns
     -------
@@ -306,11 +311,11 @@ def many_plane_monthly(terms: ManyPlaneTerms, surface_tilt, surface_azimuth,
     if month.shape != (terms.n_days,) or month.min() < 0 or month.max() > 11:
         raise ValueError(f"month_of_day: must hold {terms.n_days} months, 1-12")
     return _many_plane(terms, surface_tilt, surface_azimuth, site, False,
-                       month[terms.day_index], 12).daily_kwh_m2
+                       month[terms.day_index], 12, reuse).daily_kwh_m2
 
 
 def _many_plane(terms: ManyPlaneTerms, surface_tilt, surface_azimuth, site, with_open: bool,
-                bucket: np.ndarray, n_b: int) -> ManyPlaneResult:
+                bucket: np.ndarray, n_b: int, reuse=None) -> ManyPlaneResult:
     """Totals over ``n_b`` periods (``bucket``: each sun-up row's period, non-decreasing
     in time): days for :func:`many_plane_daily`, months for :func:`many_plane_monthly`."""
     tilt, azim = np.broadcast_arrays(np.asarray(surface_tilt, dtype=float),
@@ -337,7 +342,8 @@ def _many_plane(terms: ManyPlaneTerms, surface_tilt, surface_azimuth, site, with
         _beam_all_pairs(terms, fac.pv, w_vis, daily, daily_open, bucket)
     else:
         by_plane, by_plane_open = _beam_grid(terms, tilt_u, azim_u, fac, sums, diffuse,
-                                             diffuse_open, w_vis, with_open, bucket, n_b)
+                                             diffuse_open, w_vis, with_open, bucket, n_b,
+                                             reuse)
         daily = by_plane.T
         daily_open = by_plane_open.T if with_open else None
     clip = terms.clip_rows
@@ -424,7 +430,7 @@ def _product_layout(tilt, azim):
 
 
 def _beam_grid(terms, tilt_u, azim_u, fac, sums, diffuse, diffuse_open, w_vis, with_open,
-               bucket, n_b):
+               bucket, n_b, reuse=None):
     """Totals per period on the tilt-major ``tilt_u x azim_u`` grid (tilts ascending in
     [0, 90]); ``bucket`` gives each sun-up row's period (a day, or a month), ``n_b``
     the number of periods.
@@ -475,69 +481,31 @@ def _beam_grid(terms, tilt_u, azim_u, fac, sums, diffuse, diffuse_open, w_vis, w
     # cache-sized chunks of days, but not so many that the per-chunk overhead shows
     nd = max(int(_GRID_CHUNK_BYTES // (8 * per_day)), -(-n_days // 32))
     nd = max(1, min(n_days, nd, int(CHUNK_BYTES // (8 * per_day))))
+    key = (tilt_u, azim_u, bucket, nd, n_days)
+    kept = (reuse.kept_rows(key, sun, weights, rows_all) if reuse is not None
+            else np.zeros(rows_all.size, dtype=bool))
+    held = reuse.parts if kept.any() else {}
+    keeping = reuse is not None and not kept.any() and reuse.start(key, sun, weights, rows_all)
     bounds = np.searchsorted(day[rows_all], np.arange(0, n_days + nd, nd))
     for c0, d0 in enumerate(range(0, n_days, nd)):
         m = min(nd, n_days - d0)
         # this chunk's days of the unclipped sums, corrected below while in cache
         blocks = [_small_matmul(f, x[:, d0:d0 + m], np.empty((n_t * n_u, m)))
                   for f, x in zip(factors, xs, strict=True)]
-        rows = rows_all[bounds[c0]:bounds[c0 + 1]]
-        if rows.size:
-            _clip_chunk(sun[rows], day[rows] - d0, [w[rows] for w in weights], tilt_u, cg,
-                        sg, cosb_u, sinb_u, m, blocks)
+        chunk = slice(bounds[c0], bounds[c0 + 1])
+        if c0 in held:
+            blocks[0] += held[c0]
+        rows = rows_all[chunk][~kept[chunk]]
+        parts = (clip_parts(sun[rows], day[rows] - d0, [w[rows] for w in weights], tilt_u,
+                            cg, sg, cosb_u, sinb_u, m) if rows.size else None)
+        if parts is not None:
+            if keeping:
+                reuse.parts[c0] = parts[0]
+            for block, part in zip(blocks, parts, strict=True):
+                block += part
         for out, block in zip(outs, blocks, strict=True):
             out[:, d0:d0 + m] = block
     return outs[0], (outs[1] if with_open else None)
-
-
-def _clip_chunk(sun, day, weights, tilt_u, cg, sg, cosb_u, sinb_u, m, blocks):
-    """Take off (or add) the beam past each row's sign-change tilt, for one chunk of days.
-
-    ``sun``, ``day`` (from the chunk's first day) and ``weights`` are the
-    chunk's rows; ``blocks`` are the ``(tilts x azimuths, m)`` unclipped sums
-    of the chunk, corrected in place (see :func:`_beam_grid`).
-
-    References
-    ----------
-    As :func:`_beam_grid`.
-    """
-    n_t, n_u, n_c = tilt_u.size, cg.size, 2 * len(weights)
-    per_day = (n_t + 1) * n_c * n_u
-    comp = np.arange(n_c)
-    cz = sun[:, 0]
-    sgn = np.where(cz > 0.0, -1.0, 1.0)
-    vs = (sun[:, 1] * sgn)[:, None] * cg[None, :]
-    vs += (sun[:, 2] * sgn)[:, None] * sg[None, :]
-    keep = np.flatnonzero(vs > 0.0)
-    if keep.size == 0:
-        return
-    r = keep // n_u
-    den = vs.ravel()[keep]
-    acz = np.abs(cz)[r]
-    # sun above: positive below b* (first tilt not below it); sun below: above b*.
-    # p = n_t (no sign change within the tilts) goes to a spare row
-    p = _count_below(tilt_u, np.degrees(np.arctan(acz / den)), inclusive=cz[r] <= 0.0)
-    base = (p * (n_c * n_u) + (keep - r * n_u)) * m + day[r]
-    # the part past b*, to be taken off (sun above) or added (sun below):
-    # -w |cos z| for the cos b factor and w |v| for the sin b factor
-    vals = np.empty((keep.size, n_c))
-    for k, w in enumerate(weights):
-        wr = w[r]
-        np.multiply(wr, acz, out=vals[:, 2 * k])
-        vals[:, 2 * k] *= -1.0
-        np.multiply(wr, den, out=vals[:, 2 * k + 1])
-    idx = base[:, None] + comp[None, :] * (n_u * m)
-    acc = np.bincount(idx.ravel(), weights=vals.ravel(), minlength=per_day * m)
-    flat = acc.reshape(n_t + 1, n_c * n_u * m)
-    for i in range(1, n_t):
-        flat[i] += flat[i - 1]
-    acc = acc.reshape(n_t + 1, n_c, n_u, m)
-    for k, block in enumerate(blocks):
-        part, part_sin = acc[:n_t, 2 * k], acc[:n_t, 2 * k + 1]
-        part *= cosb_u[:, None, None]
-        part_sin *= sinb_u[:, None, None]
-        part += part_sin
-        block.reshape(n_t, n_u, m)[...] += part
 
 
 def _small_matmul(a, b, out):

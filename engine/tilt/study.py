@@ -11,6 +11,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from ..beam_clip import ClipReuse
 from ..horizon import plane_shading
 from ..manyplane import many_plane_daily, many_plane_monthly, many_plane_terms
 from ..plane import angle_of_incidence, poa_interval_means
@@ -144,6 +145,7 @@ class _Scorer:
 
     def __init__(self, site: Site, opts: StudyOptions, sky: SkyYear, terms):
         self.site, self.opts, self.sky, self.terms = site, opts, sky, terms
+        self.grid_clip = ClipReuse()
         self.n_days = sky.n_days
         self.mod = _month_of_day(sky)
         self.year = opts.irradiance.year
@@ -173,7 +175,8 @@ class _Scorer:
         g_t, g_a = np.meshgrid(np.arange(0.0, 91.0, 1.0), np.arange(0.0, 360.0, 5.0),
                                indexing="ij")
         # monthly totals straight from the year (the map needs no daily table)
-        g_month = many_plane_monthly(self.terms, g_t, g_a, self.mod, site=self.site)
+        g_month = many_plane_monthly(self.terms, g_t, g_a, self.mod, site=self.site,
+                                     reuse=self.grid_clip)
         g_score = self.score_cols(g_month).reshape(g_t.shape)
         gi = np.unravel_index(int(np.argmax(g_score)), g_score.shape)
         self.grid_tilts, self.grid_azimuths = g_t, g_a
@@ -194,16 +197,13 @@ class _Scorer:
             azimuths = np.mod(self.grid_best_azimuth + np.arange(-5.0, 5.5, 1.0), 360.0)
         c_t, c_a = np.meshgrid(tilts, azimuths, indexing="ij")
         seasonal = any(opts.allows(k) for k, _ in SEASONAL_KINDS)
-        if seasonal:
-            c_month, cand = self.monthly(c_t, c_a)
-        else:       # no schedule to search: the candidates' months straight from the year
-            c_month = many_plane_monthly(self.terms, c_t, c_a, self.mod, site=self.site)
+        # the candidates' months straight from the year (the map's arithmetic)
+        c_month = many_plane_monthly(self.terms, c_t, c_a, self.mod, site=self.site)
         ci = int(np.argmax(self.score_cols(c_month)))
         opt_tilt, opt_az = float(c_t.ravel()[ci]), float(c_a.ravel()[ci])
-        ai = int(np.flatnonzero(azimuths == opt_az)[0])
-        # the candidates' daily columns at the optimum's azimuth feed the schedules
-        self.sched_daily = (cand.daily_kwh_m2.reshape(self.n_days, len(tilts),
-                                                      len(azimuths))[:, :, ai]
+        # the schedules search the daily columns of the candidate tilts at its azimuth
+        self.sched_daily = (many_plane_daily(self.terms, tilts, np.full(len(tilts), opt_az),
+                                             site=self.site).daily_kwh_m2
                             if seasonal else None)
         self.sched_tilts, self.sched_az = tilts, opt_az
         label = ("Best plane for the site" if opts.mounting == "flush" else "Optimal fixed")
@@ -226,8 +226,9 @@ class _Scorer:
             return []
         open_site = site.with_changes(horizon=type(site.horizon)(), obstacles=())
         g_t, g_a = self.grid_tilts, self.grid_azimuths
+        # the site grid's beam clip parts serve the nodes the horizon leaves visible
         og = many_plane_monthly(many_plane_terms(_open_sky(sky, open_site)), g_t, g_a,
-                                self.mod, site=open_site)
+                                self.mod, site=open_site, reuse=self.grid_clip)
         og_ann = og.sum(axis=0).reshape(g_t.shape)
         oa = float(g_a[np.unravel_index(int(np.argmax(og_ann)), og_ann.shape)])
         if abs((oa - equator + 180.0) % 360.0 - 180.0) > 5.0:
@@ -440,27 +441,36 @@ def _periods_arrays(sky: SkyYear, site: Site, schedule, columns) -> tuple:
     tilt = np.zeros(n)
     azim = np.zeros(n)
     if schedule is None:
-        periods = [None]
+        m = frac > 0
+        node_t, node_a = np.clip(nodes.apparent_zenith, 0.0, 90.0), nodes.azimuth
+        planes = [(m, np.ones(len(nodes), dtype=bool), np.clip(zen[m], 0.0, 90.0), saz[m],
+                   None)] if m.any() else []
+        shading = None
     else:
-        periods = list(schedule)
-    for period in periods:
-        if period is None:
-            m = frac > 0
-            node_m = np.ones(len(nodes), dtype=bool)
-            t, a = np.clip(zen[m], 0.0, 90.0), saz[m]
-            node_t, node_a = np.clip(nodes.apparent_zenith, 0.0, 90.0), nodes.azimuth
-            shading = None
-        else:
+        planes = []
+        for period in schedule:
             m = _period_mask(sky.day_index, period, sky.options.year) & (frac > 0)
-            node_m = _period_mask(nodes.day_index, period, sky.options.year)
-            t = node_t = float(period.tilt_deg)
-            a = node_a = float(period.azimuth_deg)
-            shading = plane_shading(site, t, a) if m.any() else None
-        if not m.any():
-            continue
+            if not m.any():
+                continue
+            t, a = float(period.tilt_deg), float(period.azimuth_deg)
+            planes.append((m, _period_mask(nodes.day_index, period, sky.options.year), t, a,
+                           plane_shading(site, t, a)))
+        # every period's nodes in one transposition, each node with its period's plane
+        # and horizon factors (the same numbers node by node as one call per period)
+        node_t, node_a = np.zeros(len(nodes)), np.zeros(len(nodes))
+        iso_ratio, band = np.ones(len(nodes)), np.ones(len(nodes))
+        for _, node_m, t, a, sh in planes:
+            node_t[node_m], node_a[node_m] = t, a
+            iso_ratio[node_m] = sh.isotropic_ratio
+            band[node_m] = sh.horizon_band_fraction
+    if planes and sums:
+        node_all = np.logical_or.reduce([p[1] for p in planes])
+        if schedule is not None:
+            shading = _NodeShading(iso_ratio[node_all], band[node_all])
+        means = poa_interval_means(nodes, n, node_t, node_a, sky.options.model, shading,
+                                   node_all, sums)
+    for m, _, t, a, _ in planes:
         if sums:
-            means = poa_interval_means(nodes, n, node_t, node_a, sky.options.model, shading,
-                                       node_m, sums)
             for c in sums:
                 out[c][m] = means[c][m]
         if "aoi" in cols:
@@ -468,6 +478,16 @@ def _periods_arrays(sky: SkyYear, site: Site, schedule, columns) -> tuple:
         tilt[m] = t
         azim[m] = a
     return tilt, azim, out
+
+
+@dataclass(frozen=True)
+class _NodeShading:
+    """A schedule's horizon factors node by node (as ``HorizonShading`` gives them for
+    one plane), for :func:`tiltyard.engine.plane.poa_interval_means` on the nodes it
+    counts."""
+
+    isotropic_ratio: np.ndarray
+    horizon_band_fraction: np.ndarray
 
 
 def _row_kw(opts: StudyOptions) -> dict:

@@ -88,7 +88,8 @@ def plane_years(fn, arrays, repeat: int):
 def _study(name, cold: bool = False):
     # each run as a new site: the per-site caches (row layouts, plane shading) start empty
     for module, cached in ((rows, "_design_window"), (rows, "_noon_sun"),
-                           (rows, "_date_events"), (horizon, "_plane_shading")):
+                           (rows, "_date_events"), (horizon, "_plane_shading"),
+                           (horizon, "_svf_tilt_terms")):
         if hasattr(module, cached):
             getattr(module, cached).cache_clear()
     if cold:     # as the first site of a year and interval in a process

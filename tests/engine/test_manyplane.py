@@ -436,3 +436,33 @@ def test_monthly_refuses_a_wrong_month_table():
     sky = sky_year(OPEN_SITE, IrradianceOptions(model="isotropic"))
     with pytest.raises(ValueError, match="month_of_day"):
         many_plane_monthly(many_plane_terms(sky), 30.0, 180.0, np.ones(10))
+
+
+# -- a second grid pass taking the first pass's beam clip parts ----------------------
+
+@pytest.mark.parametrize("demo", ["coral-lane-clinic", "larkmoor-dairy"])
+def test_open_grid_after_site_grid_reuses_clip_parts(demo):
+    from tiltyard.engine.beam_clip import ClipReuse
+
+    site = load_demo(demo)
+    sky = sky_year(site, IrradianceOptions(model="perez", sky="clear"))
+    terms = many_plane_terms(sky)
+    open_terms = dataclasses.replace(terms, visible=np.ones_like(terms.visible))
+    open_site = site.with_changes(horizon=type(site.horizon)(), obstacles=())
+    mod = _month_of_day(sky)
+    tilt, azim = np.meshgrid(np.arange(0.0, 91.0, 1.0), np.arange(0.0, 360.0, 5.0),
+                             indexing="ij")
+    reuse = ClipReuse()
+    site_grid = many_plane_monthly(terms, tilt, azim, mod, site=site, reuse=reuse)
+    assert reuse.parts                    # the site pass kept its parts
+    # the site pass itself is the plain pass, bit for bit
+    assert site_grid.tobytes() == many_plane_monthly(terms, tilt, azim, mod,
+                                                     site=site).tobytes()
+    got = many_plane_monthly(open_terms, tilt, azim, mod, site=open_site, reuse=reuse)
+    ref = many_plane_monthly(open_terms, tilt, azim, mod, site=open_site)
+    # regression: the same sums grouped as kept nodes plus added nodes, 1e-12 relative
+    np.testing.assert_allclose(got, ref, rtol=1e-12, atol=1e-15)
+    # a pass whose weights differ on the kept nodes computes every node itself
+    other = dataclasses.replace(terms, sun_w=terms.sun_w * 1.5)
+    assert (many_plane_monthly(other, tilt, azim, mod, site=site, reuse=reuse).tobytes()
+            == many_plane_monthly(other, tilt, azim, mod, site=site).tobytes())

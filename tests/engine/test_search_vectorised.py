@@ -145,3 +145,79 @@ def test_two_period_search_matches_the_loop(seed, min_days):
     assert sw == ref_sw
     assert total == search._best_tilts_separable(cum, ref_sw, N_DAYS)[1]
     assert max(ref_total, total) > 0
+
+
+def _two_period_one_by_one(cum, n_days, min_days):
+    """The plain two-period search: every length, every start, every tilt column; the
+    first strictly better total kept (lengths ascending, then starts)."""
+    total_all = cum[n_days]
+    cum2 = np.vstack([cum, total_all[None, :] + cum[1:]])
+    best, best_sw = -np.inf, None
+    for length in range(min_days, n_days // 2 + 1):
+        seg_a = cum2[length:length + n_days] - cum2[:n_days]
+        tot = seg_a.max(axis=1) + (total_all[None, :] - seg_a).max(axis=1)
+        i = int(np.argmax(tot))
+        if tot[i] > best:
+            best, best_sw = float(tot[i]), sorted([i, (i + length) % n_days])
+    return best_sw
+
+
+@pytest.mark.parametrize("n_t", [1, 3, 9, 46, 91])
+@pytest.mark.parametrize("seed", [0, 1, 2, 3])
+def test_two_period_bounded_search_matches_the_loop(seed, n_t):
+    # smooth tables, noisy tables (the bound's excess is large) and a table with ties
+    daily = _daily(seed, n_t)
+    if seed == 2:
+        daily = daily + np.random.default_rng(5).normal(0, 0.5, daily.shape)
+    if seed == 3:
+        daily = np.round(daily, 1)
+    cum = np.vstack([np.zeros(daily.shape[1]), np.cumsum(daily, axis=0)])
+    sw, tilts, total = search._two_period_exhaustive(cum, N_DAYS, 30)
+    assert sw == _two_period_one_by_one(cum, N_DAYS, 30)
+    assert (tilts, total) == search._best_tilts_separable(cum, sw, N_DAYS)
+
+
+def _k_period_one_by_one(cum, n_days, k, min_days, lattice=14):
+    """The plain K-period search: lattice combinations one by one, then each switch
+    moved by each day in turn, every move scored alone."""
+    best, best_sw = -np.inf, None
+    for combo in itertools.combinations(range(0, n_days, lattice), k):
+        if np.diff(list(combo) + [combo[0] + n_days]).min() < min_days:
+            continue
+        _, tot = search._best_tilts_separable(cum, combo, n_days)
+        if tot > best:
+            best, best_sw = tot, list(combo)
+    improved = True
+    while improved:
+        improved = False
+        for i in range(k):
+            for delta in range(-lattice, lattice + 1):
+                if delta == 0:
+                    continue
+                trial = best_sw.copy()
+                trial[i] = (trial[i] + delta) % n_days
+                if len(set(trial)) < k:
+                    continue
+                srt = sorted(trial)
+                if np.diff(srt + [srt[0] + n_days]).min() < min_days:
+                    continue
+                _, tot = search._best_tilts_separable(cum, srt, n_days)
+                if tot > best + 1e-12:
+                    best, best_sw, improved = tot, srt, True
+    return best_sw, best
+
+
+@pytest.mark.parametrize("min_days", [14, 30, 60])
+@pytest.mark.parametrize("seed", [0, 1, 2, 3])
+def test_k_period_search_matches_the_loop(seed, min_days):
+    daily = _daily(seed, 41)
+    if seed == 2:
+        daily = daily + np.random.default_rng(7).normal(0, 0.3, daily.shape)
+    if seed == 3:
+        daily = np.round(daily, 1)
+    cum = np.vstack([np.zeros(daily.shape[1]), np.cumsum(daily, axis=0)])
+    ref_sw, ref_total = _k_period_one_by_one(cum, N_DAYS, 4, min_days)
+    sw, tilts, total = search._k_period_search(cum, N_DAYS, 4, min_days)
+    assert sw == ref_sw
+    assert total == ref_total
+    assert (tilts, total) == search._best_tilts_separable(cum, sw, N_DAYS)
