@@ -106,15 +106,13 @@ def number(value, decimals: int = 0, plain: bool = False) -> str:
     NaN (``"-"`` with ``plain``, the command line's ASCII)."""
     if value is None or not math.isfinite(float(value)):
         return "-" if plain else NO_VALUE
-    text = f"{float(value):,.{decimals}f}"
-    return text if THOUSANDS_SEP == "," else text.replace(",", THOUSANDS_SEP)
+    return f"{float(value):,.{decimals}f}".replace(",", THOUSANDS_SEP)
 
 
 def figure(value) -> str:
     """A limit or a setting in its shortest form with thousands separated: ``9000`` ->
     ``"9,000"``, ``0.1`` -> ``"0.1"``, ``-500`` -> ``"-500"``."""
-    return f"{float(value):,g}" if THOUSANDS_SEP == "," else \
-        f"{float(value):,g}".replace(",", THOUSANDS_SEP)
+    return f"{float(value):,g}".replace(",", THOUSANDS_SEP)
 
 
 def value_range(lo, hi, unit: str = "", plain: bool = False) -> str:

@@ -70,7 +70,8 @@ _MESSAGE_FIELDS = (("tilt range", ("tilt_min_deg", "tilt_max_deg")),
                    ("months", ("months",)))
 
 #: The editor's label of each engine option a message may name.
-_LABELS = {"tilt_step_deg": "Tilt step", "azimuth_deg": "Azimuth",
+_LABELS = {"tilt_min_deg": "Tilt from", "tilt_max_deg": "Tilt to",
+           "tilt_step_deg": "Tilt step", "azimuth_deg": "Azimuth",
            "min_days_between": "Min. period", "switch_dates": "Switch on", "months": "Months"}
 
 
@@ -79,7 +80,8 @@ def _form_words(message: str, kw: dict) -> str:
     wrong and what to do, by the fields' labels."""
     if message.startswith("tilt range"):
         lo, hi = kw["tilt_min_deg"], kw["tilt_max_deg"]
-        for label, which, v in (("Tilt from", "lowest", lo), ("Tilt to", "highest", hi)):
+        for label, which, v in ((_LABELS["tilt_min_deg"], "lowest", lo),
+                                (_LABELS["tilt_max_deg"], "highest", hi)):
             if not 0.0 <= v <= 90.0:
                 return (f"{label}: the {which} tilt ({degrees(v)}) must be between 0° (flat) "
                         "and 90° (vertical).")
@@ -384,11 +386,9 @@ class StudyView(StudyChartDrawing, View):
     def _basic(self, name: str, text: str):
         """The value typed in one field (format only; the engine judges ranges)."""
         if name in ("tilt_min_deg", "tilt_max_deg", "tilt_step_deg", "azimuth_deg"):
-            what = {"tilt_min_deg": "Tilt from", "tilt_max_deg": "Tilt to",
-                    "tilt_step_deg": "Tilt step", "azimuth_deg": "Azimuth"}[name]
-            return _float(text, what)
+            return _float(text, _LABELS[name])
         if name == "min_days_between":
-            return _int(text, "Min. period")
+            return _int(text, _LABELS[name])
         return _mmdd(text, self._year)
 
     def _value(self, name: str, override: dict):
